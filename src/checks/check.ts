@@ -1,0 +1,57 @@
+import type { BusinessCalendars } from '../calendar/business-calendar.js';
+import type { Finding, Severity } from '../findings.js';
+import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
+import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
+
+/**
+ * A validation check: one file in `checks/`, pure, with its parameters and their defaults.
+ * Series-level checks see one series at a time; feed-level checks see the whole feed
+ * (row accounting, master against NAVs, today against the previous snapshot).
+ */
+export type CheckParams = Readonly<Record<string, number | string | boolean>>;
+
+export interface SeriesContext {
+  readonly asOf: number;
+  readonly calendars: BusinessCalendars;
+  /** The series' master record, when the master knows it. */
+  readonly master: SeriesMasterRecord | undefined;
+  /** The assigned benchmark's levels, when available. */
+  readonly benchmark: SeriesSlice | undefined;
+  /** Every benchmark in the feed, for checks that look for a better fit. */
+  readonly benchmarks: SeriesFrame | undefined;
+  /** Corporate actions of this series, ascending by ex-date. */
+  readonly actions: readonly CorporateActionRecord[];
+  /** This series in the previous snapshot, when one was given. */
+  readonly previous: SeriesSlice | undefined;
+}
+
+export interface SeriesCheck<P extends CheckParams = CheckParams> {
+  readonly id: string;
+  readonly scope: 'series';
+  readonly purpose: string;
+  readonly defaults: P;
+  run(series: SeriesSlice, context: SeriesContext, params: P): Finding[];
+}
+
+export interface FeedContext {
+  readonly asOf: number;
+  readonly calendars: BusinessCalendars;
+  readonly nav: SeriesFrame;
+  readonly benchmarks: SeriesFrame | undefined;
+  readonly master: readonly SeriesMasterRecord[] | undefined;
+  readonly previous: SeriesFrame | undefined;
+  /** Rows that could not be read, from every input file. */
+  readonly rejected: readonly import('../ingest/records.js').RejectedRow[];
+}
+
+export interface FeedCheck<P extends CheckParams = CheckParams> {
+  readonly id: string;
+  readonly scope: 'feed';
+  readonly purpose: string;
+  readonly defaults: P;
+  run(context: FeedContext, params: P): Finding[];
+}
+
+export type Check = SeriesCheck<any> | FeedCheck<any>;
+
+export type { Finding, Severity };

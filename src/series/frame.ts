@@ -1,0 +1,130 @@
+/**
+ * The series frame: every observation of a set of time series, sorted by (series id, date),
+ * in parallel typed arrays. Series `i` occupies rows `offsets[i]` to `offsets[i + 1] - 1`, so a
+ * check or a metric looks at one series through `subarray` views and copies nothing.
+ *
+ * Rows with the same (series, date) are kept, adjacent and in file order: duplicates are for
+ * the checks to judge, never silently collapsed here.
+ */
+export interface SeriesFrame {
+  /** Series ids in ascending order; the position of an id is its series index. */
+  readonly ids: readonly string[];
+  /** `ids.length + 1` row offsets. */
+  readonly offsets: Int32Array;
+  /** Epoch days, ascending within each series. */
+  readonly dates: Int32Array;
+  readonly values: Float64Array;
+  /** Source line of each row (1-based, the header is line 1 of a CSV) for evidence. */
+  readonly lines: Int32Array;
+  readonly indexById: ReadonlyMap<string, number>;
+}
+
+/** One series of a frame, as views into the frame's arrays. */
+export interface SeriesSlice {
+  readonly id: string;
+  readonly dates: Int32Array;
+  readonly values: Float64Array;
+  readonly lines: Int32Array;
+}
+
+/** Observations in file order with dictionary-coded series ids, as ingestion produces them. */
+export interface UnsortedObservations {
+  readonly codes: Int32Array;
+  readonly dictionary: readonly string[];
+  readonly dates: Int32Array;
+  readonly values: Float64Array;
+  readonly lines: Int32Array;
+}
+
+export function seriesAt(frame: SeriesFrame, index: number): SeriesSlice {
+  const start = frame.offsets[index];
+  const end = frame.offsets[index + 1];
+  return {
+    id: frame.ids[index],
+    dates: frame.dates.subarray(start, end),
+    values: frame.values.subarray(start, end),
+    lines: frame.lines.subarray(start, end),
+  };
+}
+
+export function findSeries(frame: SeriesFrame, id: string): SeriesSlice | undefined {
+  const index = frame.indexById.get(id);
+  return index === undefined ? undefined : seriesAt(frame, index);
+}
+
+export function* eachSeries(frame: SeriesFrame): Generator<SeriesSlice> {
+  for (let i = 0; i < frame.ids.length; i++) yield seriesAt(frame, i);
+}
+
+export function rowCount(frame: SeriesFrame): number {
+  return frame.dates.length;
+}
+
+/**
+ * Sorts observations by (id, date) with a counting sort on the id rank, then a date sort
+ * only inside the series that arrive out of order; the common, already-sorted feed costs
+ * two linear passes.
+ */
+export function buildSeriesFrame(input: UnsortedObservations): SeriesFrame {
+  const { rankOfCode, sortedIds } = rankDictionary(input.dictionary, input.codes);
+  const seriesCount = sortedIds.length;
+  const offsets = new Int32Array(seriesCount + 1);
+  for (let row = 0; row < input.codes.length; row++) offsets[rankOfCode[input.codes[row]] + 1]++;
+  for (let s = 0; s < seriesCount; s++) offsets[s + 1] += offsets[s];
+
+  const order = new Int32Array(input.codes.length);
+  const cursor = offsets.slice(0, seriesCount);
+  for (let row = 0; row < input.codes.length; row++) order[cursor[rankOfCode[input.codes[row]]]++] = row;
+  for (let s = 0; s < seriesCount; s++) sortByDateWithin(order.subarray(offsets[s], offsets[s + 1]), input.dates);
+
+  const dates = new Int32Array(order.length);
+  const values = new Float64Array(order.length);
+  const lines = new Int32Array(order.length);
+  for (let i = 0; i < order.length; i++) {
+    const row = order[i];
+    dates[i] = input.dates[row];
+    values[i] = input.values[row];
+    lines[i] = input.lines[row];
+  }
+  return { ids: sortedIds, offsets, dates, values, lines, indexById: new Map(sortedIds.map((id, i) => [id, i])) };
+}
+
+/** Ranks the dictionary's ids that occur, in ascending order; codes that never occur are dropped. */
+function rankDictionary(dictionary: readonly string[], codes: Int32Array) {
+  const used = new Uint8Array(dictionary.length);
+  for (let row = 0; row < codes.length; row++) used[codes[row]] = 1;
+  const usedCodes = [...dictionary.keys()].filter((code) => used[code] === 1);
+  usedCodes.sort((a, b) => (dictionary[a] < dictionary[b] ? -1 : dictionary[a] > dictionary[b] ? 1 : 0));
+  const rankOfCode = new Int32Array(dictionary.length).fill(-1);
+  usedCodes.forEach((code, rank) => (rankOfCode[code] = rank));
+  return { rankOfCode, sortedIds: usedCodes.map((code) => dictionary[code]) };
+}
+
+function sortByDateWithin(rows: Int32Array, dates: Int32Array): void {
+  let sorted = true;
+  for (let i = 1; i < rows.length && sorted; i++) sorted = dates[rows[i - 1]] <= dates[rows[i]];
+  if (sorted) return;
+  // Row index as the tie-break keeps same-date duplicates in file order.
+  rows.sort((a, b) => dates[a] - dates[b] || a - b);
+}
+
+/** A frame built from per-series arrays; convenient for tests and generated data. */
+export function frameFromSeries(
+  series: ReadonlyArray<{ id: string; dates: ArrayLike<number>; values: ArrayLike<number> }>,
+): SeriesFrame {
+  const total = series.reduce((sum, s) => sum + s.dates.length, 0);
+  const codes = new Int32Array(total);
+  const dates = new Int32Array(total);
+  const values = new Float64Array(total);
+  const lines = new Int32Array(total);
+  let row = 0;
+  series.forEach((s, code) => {
+    for (let i = 0; i < s.dates.length; i++, row++) {
+      codes[row] = code;
+      dates[row] = s.dates[i];
+      values[row] = s.values[i];
+      lines[row] = row + 2;
+    }
+  });
+  return buildSeriesFrame({ codes, dictionary: series.map((s) => s.id), dates, values, lines });
+}
