@@ -1,0 +1,57 @@
+import { Command } from 'commander';
+import { runChecks } from '../../checks/run.js';
+import { loadFeed, loadPreviousNav, type FeedPaths } from '../../ingest/feed.js';
+import { checkAnswer, checkView, failsOn } from '../../report/check-answer.js';
+import { render } from '../../report/render.js';
+import { asOfOption, chosenFormat, failOnOption, formatOption, outOption, parseAsOf, parseFailOn } from '../options.js';
+import { emit, quarantinePathFor, writeQuarantine } from '../output.js';
+
+interface CheckOptions {
+  nav: string;
+  benchmarks?: string;
+  master?: string;
+  holidays?: string;
+  actions?: string;
+  previous?: string;
+  asOf?: string;
+  format?: string;
+  out?: string;
+  failOn: string;
+}
+
+export function checkCommand(): Command {
+  return new Command('check')
+    .description("validate a day's NAV feed: gaps, stale values, jumps, misdated rows, duplicates, restatements")
+    .requiredOption('--nav <file>', 'NAV feed (series_id, date, nav)')
+    .option('--benchmarks <file>', 'benchmark levels (benchmark_id, date, level)')
+    .option('--master <file>', 'series master (series_id, benchmark_id, …)')
+    .option('--holidays <file>', 'holidays (calendar, date)')
+    .option('--actions <file>', 'corporate actions (series_id, ex_date, kind, value)')
+    .option('--previous <file>', "the previous snapshot's NAV file, to find restated and dropped rows")
+    .addOption(asOfOption('today'))
+    .addOption(formatOption())
+    .addOption(outOption())
+    .addOption(failOnOption())
+    .action(async (options: CheckOptions) => {
+      process.exitCode = await runCheckCommand(options);
+    });
+}
+
+async function runCheckCommand(options: CheckOptions): Promise<number> {
+  const asOf = parseAsOf(options.asOf);
+  const failOn = parseFailOn(options.failOn);
+  const paths: FeedPaths = {
+    nav: options.nav,
+    benchmarks: options.benchmarks,
+    master: options.master,
+    holidays: options.holidays,
+    actions: options.actions,
+  };
+  const feed = await loadFeed(paths);
+  const previous = options.previous === undefined ? undefined : await loadPreviousNav(options.previous);
+  const findings = runChecks({ ...feed, previous, asOf });
+  const answer = checkAnswer(asOf, feed.rows, findings);
+  emit(render(chosenFormat(options.format), answer, checkView(answer)), options.out);
+  if (options.out !== undefined && feed.rejected.length > 0) writeQuarantine(quarantinePathFor(options.out), feed.rejected);
+  return failsOn(findings, failOn) ? 1 : 0;
+}

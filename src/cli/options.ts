@@ -1,0 +1,32 @@
+import { Option } from 'commander';
+import { formatIsoDate, parseIsoDate, todayEpochDay } from '../calendar/days.js';
+import { isSeverity, type Severity } from '../findings.js';
+import { ConfigError } from '../ingest/errors.js';
+import { OUTPUT_FORMATS, type OutputFormat } from '../report/render.js';
+
+/** Options several commands share, with one parser each so every command reads them alike. */
+export const formatOption = () =>
+  new Option('--format <format>', 'output format (default: table on a terminal, json otherwise)').choices(OUTPUT_FORMATS);
+export const outOption = () => new Option('--out <path>', 'write the report to a file instead of standard output');
+export const failOnOption = () =>
+  new Option('--fail-on <severity>', 'exit 1 when a finding is at or above this severity')
+    .choices(['info', 'warning', 'error', 'critical', 'none'])
+    .default('error');
+export const asOfOption = (what: string) => new Option('--as-of <date>', `as-of date, YYYY-MM-DD (default: ${what})`);
+
+export function chosenFormat(format: string | undefined): OutputFormat {
+  if (format) return format as OutputFormat;
+  return process.stdout.isTTY ? 'table' : 'json';
+}
+
+export function parseAsOf(text: string | undefined, fallback: () => number = todayEpochDay): number {
+  if (text === undefined) return fallback();
+  const day = parseIsoDate(text);
+  if (day === null) throw new ConfigError(`--as-of "${text}" is not a date; write it as YYYY-MM-DD, for example ${formatIsoDate(todayEpochDay())}.`);
+  return day;
+}
+
+export function parseFailOn(text: string): Severity | 'none' {
+  if (text === 'none' || isSeverity(text)) return text;
+  throw new ConfigError(`--fail-on "${text}" is not a severity; use info, warning, error, critical or none.`);
+}

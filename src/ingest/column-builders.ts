@@ -1,0 +1,84 @@
+import type { Column, } from './table.js';
+import { NULL_BOOLEAN, NULL_DATE } from './table.js';
+
+/**
+ * Growable typed-array builders, one per canonical column. A row is written at `row` and only
+ * kept if the whole row is accepted, so a rejected row simply gets overwritten by the next one.
+ */
+export interface ColumnBuilder {
+  ensureCapacity(rows: number): void;
+  setMissing(row: number): void;
+  finish(length: number): Column;
+}
+
+function grow<T extends Int32Array | Float64Array | Uint8Array>(array: T, rows: number, make: (n: number) => T): T {
+  if (rows <= array.length) return array;
+  const bigger = make(Math.max(rows, array.length * 2));
+  bigger.set(array);
+  return bigger;
+}
+
+export class DateBuilder implements ColumnBuilder {
+  values = new Int32Array(1024);
+  ensureCapacity(rows: number) {
+    this.values = grow(this.values, rows, (n) => new Int32Array(n));
+  }
+  setMissing(row: number) {
+    this.values[row] = NULL_DATE;
+  }
+  finish(length: number): Column {
+    return { type: 'date', values: this.values.slice(0, length) };
+  }
+}
+
+export class NumberBuilder implements ColumnBuilder {
+  values = new Float64Array(1024);
+  ensureCapacity(rows: number) {
+    this.values = grow(this.values, rows, (n) => new Float64Array(n));
+  }
+  setMissing(row: number) {
+    this.values[row] = NaN;
+  }
+  finish(length: number): Column {
+    return { type: 'number', values: this.values.slice(0, length) };
+  }
+}
+
+export class BooleanBuilder implements ColumnBuilder {
+  values = new Uint8Array(1024);
+  ensureCapacity(rows: number) {
+    this.values = grow(this.values, rows, (n) => new Uint8Array(n));
+  }
+  setMissing(row: number) {
+    this.values[row] = NULL_BOOLEAN;
+  }
+  finish(length: number): Column {
+    return { type: 'boolean', values: this.values.slice(0, length) };
+  }
+}
+
+/** Dictionary-coded strings: each distinct string is stored once and rows hold its code. */
+export class TextBuilder implements ColumnBuilder {
+  codes = new Int32Array(1024);
+  readonly dictionary: string[] = [];
+  private readonly codeByText = new Map<string, number>();
+
+  ensureCapacity(rows: number) {
+    this.codes = grow(this.codes, rows, (n) => new Int32Array(n));
+  }
+  setMissing(row: number) {
+    this.codes[row] = -1;
+  }
+  codeOf(text: string): number {
+    let code = this.codeByText.get(text);
+    if (code === undefined) {
+      code = this.dictionary.length;
+      this.dictionary.push(text);
+      this.codeByText.set(text, code);
+    }
+    return code;
+  }
+  finish(length: number): Column {
+    return { type: 'text', codes: this.codes.slice(0, length), dictionary: this.dictionary };
+  }
+}

@@ -1,0 +1,288 @@
+import { readFileSync } from 'node:fs';
+import { BooleanBuilder, DateBuilder, NumberBuilder, TextBuilder, type ColumnBuilder } from './column-builders.js';
+import { CsvRowScanner } from './csv-rows.js';
+import { resolveDateFormat } from './date-order.js';
+import { ConfigError, InputError } from './errors.js';
+import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
+import type { RejectedRow } from './records.js';
+import { parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
+import { CANONICAL_COLUMNS, type ColumnSpec, type FileKind } from './schema.js';
+import type { Column, IngestResult } from './table.js';
+
+const QUOTE_ESCAPE = /""/g;
+
+/** One canonical column being filled from one field of the file. */
+interface ColumnPlan {
+  readonly spec: ColumnSpec;
+  readonly field: number;
+  readonly builder: ColumnBuilder;
+  /** The as-written text of a number column, when the schema keeps it. */
+  readonly textCopy: TextBuilder | null;
+  /** Byte range of the previous id, to reuse its code without decoding the same id again. */
+  lastStart: number;
+  lastEnd: number;
+  lastCode: number;
+}
+
+export function readCsvFile(path: string, kind: FileKind, profile: FeedProfile): IngestResult {
+  return readCsvBuffer(readInput(path), path, kind, profile);
+}
+
+export function readInput(path: string): Buffer {
+  try {
+    return readFileSync(path);
+  } catch (error) {
+    const reason = (error as NodeJS.ErrnoException).code === 'ENOENT' ? 'it does not exist' : (error as Error).message;
+    throw new InputError(`${path}: cannot open the file because ${reason}; check the path and permissions.`);
+  }
+}
+
+/**
+ * Reads one canonical CSV file. Every data row is either accepted into the typed columns or
+ * rejected with its line, its raw text and the reason; blank lines are not data rows.
+ */
+export function readCsvBuffer(input: Uint8Array, fileName: string, kind: FileKind, profile: FeedProfile): IngestResult {
+  const bytes = Buffer.from(input.buffer, input.byteOffset, input.byteLength);
+  const begin = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
+  const quote = profile.quote.charCodeAt(0);
+  const delimiter = chooseDelimiter(bytes, begin, profile, fileName);
+  const header = readHeader(bytes, begin, delimiter, quote, fileName, kind);
+  const plans = planColumns(header.names, kind, profile, fileName);
+  const dateFormat = resolveDateFormat(bytes, header.bodyStart, header.names.length, delimiter, quote, plans, profile, fileName);
+  const reader = new RowReader(bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands));
+  const scanner = new CsvRowScanner(bytes, header.bodyStart, delimiter, quote, header.names.length + 1);
+  scanner.next(); // the header row itself
+  while (scanner.next()) {
+    if (!scanner.isBlank()) reader.take(scanner, header.names.length);
+  }
+  return reader.finish(kind);
+}
+
+function chooseDelimiter(bytes: Buffer, begin: number, profile: FeedProfile, fileName: string): number {
+  const wanted = profileDelimiter(profile);
+  if (wanted !== 'auto') return wanted.charCodeAt(0);
+  let lineEnd = bytes.indexOf(10, begin);
+  if (lineEnd < 0) lineEnd = bytes.length;
+  const headerText = bytes.toString('utf8', begin, lineEnd);
+  const candidates = [',', ';', '\t', '|'].map((d) => ({ d, count: headerText.split(d).length - 1 }));
+  const best = candidates.reduce((a, b) => (b.count > a.count ? b : a));
+  if (best.count === 0) {
+    throw new InputError(`${fileName}, line 1: no delimiter (comma, semicolon, tab or bar) found in the header; set delimiter in the feed profile.`);
+  }
+  return best.d.charCodeAt(0);
+}
+
+function readHeader(bytes: Buffer, begin: number, delimiter: number, quote: number, fileName: string, kind: FileKind) {
+  const scanner = new CsvRowScanner(bytes, begin, delimiter, quote, 4096);
+  const expected = CANONICAL_COLUMNS[kind].filter((c) => c.required).map((c) => c.name).join(', ');
+  if (!scanner.next() || scanner.isBlank()) {
+    throw new InputError(`${fileName}, line 1: the file is empty or has no header row; send a header with the columns ${expected}.`);
+  }
+  if (scanner.error) throw new InputError(`${fileName}, line 1: the header cannot be read because ${scanner.error}; fix the header row.`);
+  const names: string[] = [];
+  for (let k = 0; k < Math.min(scanner.fieldCount, scanner.starts.length); k++) {
+    names.push(decodeField(bytes, scanner.starts[k], scanner.ends[k], scanner.quoted[k]).trim());
+  }
+  return { names, bodyStart: begin };
+}
+
+function planColumns(names: readonly string[], kind: FileKind, profile: FeedProfile, fileName: string): ColumnPlan[] {
+  const plans: ColumnPlan[] = [];
+  for (const spec of CANONICAL_COLUMNS[kind]) {
+    const sourceName = profile.columns[spec.name] ?? spec.name;
+    const field = findHeader(names, sourceName);
+    if (field < 0) {
+      if (!spec.required) continue;
+      const mapped = sourceName === spec.name ? '' : ` (mapped from "${sourceName}")`;
+      throw new InputError(
+        `${fileName}, line 1: the header has no column "${spec.name}"${mapped} (found: ${names.join(', ')}); add the column or map it in the feed profile's columns.`,
+      );
+    }
+    const textCopy = spec.keepsText ? new TextBuilder() : null;
+    plans.push({ spec, field, builder: builderFor(spec), textCopy, lastStart: -1, lastEnd: -1, lastCode: -1 });
+  }
+  return plans;
+}
+
+function findHeader(names: readonly string[], wanted: string): number {
+  const exact = names.indexOf(wanted);
+  if (exact >= 0) return exact;
+  const lower = wanted.toLowerCase();
+  return names.findIndex((name) => name.toLowerCase() === lower);
+}
+
+function builderFor(spec: ColumnSpec): ColumnBuilder {
+  switch (spec.type) {
+    case 'id':
+    case 'text':
+      return new TextBuilder();
+    case 'date':
+      return new DateBuilder();
+    case 'number':
+      return new NumberBuilder();
+    case 'boolean':
+      return new BooleanBuilder();
+  }
+}
+
+export function decodeField(bytes: Buffer, start: number, end: number, quoted: number): string {
+  const text = bytes.toString('utf8', start, end);
+  return quoted ? text.replace(QUOTE_ESCAPE, '"') : text;
+}
+
+/** Fills the column builders row by row and keeps the rejected rows with their reasons. */
+class RowReader {
+  private accepted = 0;
+  private read = 0;
+  private readonly rejected: RejectedRow[] = [];
+  private lines = new Int32Array(1024);
+
+  constructor(
+    private readonly bytes: Buffer,
+    private readonly fileName: string,
+    private readonly plans: ColumnPlan[],
+    private readonly dateFormat: DateFormat,
+    private readonly numbers: NumberStyle,
+  ) {}
+
+  take(scanner: CsvRowScanner, expectedFields: number): void {
+    this.read++;
+    if (scanner.error !== null) return this.reject(scanner, scanner.error);
+    if (scanner.fieldCount !== expectedFields) {
+      if (scanner.spansLines) {
+        scanner.failOnPhysicalLine('a quoted field runs past the end of the line (unbalanced quote)');
+        return this.reject(scanner, scanner.error!);
+      }
+      const fields = `${scanner.fieldCount} field${scanner.fieldCount === 1 ? '' : 's'}`;
+      return this.reject(scanner, `expected ${expectedFields} fields as in the header, found ${fields}`);
+    }
+    const row = this.accepted;
+    if (row >= this.lines.length) this.growTo(row + 1);
+    for (const plan of this.plans) {
+      const problem = this.parseField(plan, scanner, row);
+      if (problem !== null) return this.reject(scanner, problem);
+    }
+    this.lines[row] = scanner.line;
+    this.accepted++;
+  }
+
+  /** Writes one field into its column at `row`; returns why it cannot, or null. */
+  private parseField(plan: ColumnPlan, scanner: CsvRowScanner, row: number): string | null {
+    const start = scanner.starts[plan.field];
+    const end = scanner.ends[plan.field];
+    const quoted = scanner.quoted[plan.field];
+    const builder = plan.builder;
+    if (isBlankField(this.bytes, start, end)) {
+      if (!plan.spec.nullable) return `${plan.spec.name} is empty`;
+      builder.setMissing(row);
+      plan.textCopy?.setMissing(row);
+      return null;
+    }
+    switch (plan.spec.type) {
+      case 'id':
+      case 'text': {
+        const code = this.textCode(plan, start, end, quoted);
+        const problem = plan.spec.validate?.((builder as TextBuilder).dictionary[code]) ?? null;
+        (builder as TextBuilder).codes[row] = code;
+        return problem;
+      }
+      case 'date': {
+        const day = this.parseDate(start, end);
+        if (day === null) return `${plan.spec.name} "${this.text(start, end)}" is not a valid date${this.dateHint()}`;
+        (builder as DateBuilder).values[row] = day;
+        return null;
+      }
+      case 'number': {
+        const value = parseNumberBytes(this.bytes, start, end, this.numbers);
+        if (Number.isNaN(value)) return `${plan.spec.name} "${this.text(start, end)}" is not a number`;
+        (builder as NumberBuilder).values[row] = value;
+        if (plan.textCopy) plan.textCopy.codes[row] = plan.textCopy.codeOf(this.text(start, end).trim());
+        return null;
+      }
+      case 'boolean': {
+        const flag = parseBoolean(this.text(start, end));
+        if (flag === null) return `${plan.spec.name} "${this.text(start, end)}" is not true/false, yes/no or 1/0`;
+        (builder as BooleanBuilder).values[row] = flag;
+        return null;
+      }
+    }
+  }
+
+  private textCode(plan: ColumnPlan, start: number, end: number, quoted: number): number {
+    if (!quoted && end - start === plan.lastEnd - plan.lastStart && this.sameBytes(start, plan.lastStart, end - start)) {
+      return plan.lastCode;
+    }
+    const code = (plan.builder as TextBuilder).codeOf(decodeField(this.bytes, start, end, quoted).trim());
+    if (!quoted) {
+      plan.lastStart = start;
+      plan.lastEnd = end;
+      plan.lastCode = code;
+    }
+    return code;
+  }
+
+  private sameBytes(a: number, b: number, length: number): boolean {
+    const bytes = this.bytes;
+    for (let i = 0; i < length; i++) if (bytes[a + i] !== bytes[b + i]) return false;
+    return true;
+  }
+
+  private parseDate(start: number, end: number): number | null {
+    if (this.dateFormat === 'auto' || this.dateFormat === 'iso') {
+      const day = parseIsoDateBytes(this.bytes, start, end);
+      if (day !== null || this.dateFormat === 'iso') return day;
+    }
+    return parseDateText(this.text(start, end), this.dateFormat);
+  }
+
+  private dateHint(): string {
+    return this.dateFormat === 'auto' || this.dateFormat === 'iso' ? ' (expected YYYY-MM-DD)' : ` (expected a ${this.dateFormat} date)`;
+  }
+
+  private text(start: number, end: number): string {
+    return this.bytes.toString('utf8', start, end);
+  }
+
+  private reject(scanner: CsvRowScanner, reason: string): void {
+    this.rejected.push({ file: this.fileName, line: scanner.line, raw: this.text(scanner.rowStart, scanner.rowEnd), reason });
+  }
+
+  private growTo(rows: number): void {
+    const size = Math.max(rows, this.lines.length * 2);
+    const lines = new Int32Array(size);
+    lines.set(this.lines);
+    this.lines = lines;
+    for (const plan of this.plans) {
+      plan.builder.ensureCapacity(size);
+      plan.textCopy?.ensureCapacity(size);
+    }
+  }
+
+  finish(kind: FileKind): IngestResult {
+    const columns: Record<string, Column> = {};
+    for (const plan of this.plans) {
+      columns[plan.spec.name] = plan.builder.finish(this.accepted);
+      if (plan.textCopy) columns[`${plan.spec.name}_text`] = plan.textCopy.finish(this.accepted);
+    }
+    const rows = { read: this.read, accepted: this.accepted, rejected: this.rejected.length };
+    const table = { kind, length: this.accepted, lines: this.lines.slice(0, this.accepted), columns };
+    return { file: this.fileName, kind, table, rejected: this.rejected, rows };
+  }
+}
+
+function isBlankField(bytes: Uint8Array, start: number, end: number): boolean {
+  for (let i = start; i < end; i++) if (bytes[i] !== 32 && bytes[i] !== 9) return false;
+  return true;
+}
+
+const TRUE_WORDS = new Set(['true', 'yes', 'y', '1', 't']);
+const FALSE_WORDS = new Set(['false', 'no', 'n', '0', 'f']);
+
+export function parseBoolean(text: string): 0 | 1 | null {
+  const word = text.trim().toLowerCase();
+  if (TRUE_WORDS.has(word)) return 1;
+  if (FALSE_WORDS.has(word)) return 0;
+  return null;
+}
+
+export { ConfigError };

@@ -1,0 +1,79 @@
+import type { BusinessCalendars } from '../calendar/business-calendar.js';
+import type { SeriesFrame } from '../series/frame.js';
+import { toCalendars, toCorporateActions, toMasterRecords, toSeriesFrame, toVendorFigures } from './convert.js';
+import { DEFAULT_PROFILE, type FeedProfile } from './profile.js';
+import { readFeedFile } from './read.js';
+import type {
+  CorporateActionRecord,
+  RejectedRow,
+  RowAccounting,
+  SeriesMasterRecord,
+  VendorFigureRecord,
+} from './records.js';
+import type { FileKind } from './schema.js';
+import type { IngestResult } from './table.js';
+
+/** The paths of one day's feed; only the NAV file is always needed. */
+export type FeedPaths = { readonly nav: string } & Partial<Readonly<Record<Exclude<FileKind, 'nav'>, string>>>;
+
+export type FeedProfiles = Partial<Readonly<Record<FileKind, FeedProfile>>>;
+
+/** One day's feed, read and shaped for the checks and the metrics. */
+export interface LoadedFeed {
+  readonly nav: SeriesFrame;
+  readonly benchmarks?: SeriesFrame;
+  readonly rates?: SeriesFrame;
+  readonly master?: SeriesMasterRecord[];
+  readonly actions?: CorporateActionRecord[];
+  readonly vendor?: VendorFigureRecord[];
+  readonly calendars: BusinessCalendars;
+  /** Every file read, in the order of FILE_KINDS, with its own accounting. */
+  readonly results: readonly IngestResult[];
+  readonly rows: RowAccounting;
+  readonly rejected: readonly RejectedRow[];
+}
+
+export interface LoadOptions {
+  readonly profiles?: FeedProfiles;
+  /** ISO weekdays (1 = Monday … 7 = Sunday) that are never business days; Saturday and Sunday by default. */
+  readonly weekendDays?: readonly number[];
+}
+
+export async function loadFeed(paths: FeedPaths, options: LoadOptions = {}): Promise<LoadedFeed> {
+  const read = async (kind: FileKind) => {
+    const path = paths[kind];
+    return path === undefined ? undefined : readFeedFile(path, kind, options.profiles?.[kind] ?? DEFAULT_PROFILE);
+  };
+  const nav = (await read('nav'))!;
+  const [benchmarks, master, rates, holidays, actions, vendor] = await Promise.all(
+    (['benchmarks', 'master', 'rates', 'holidays', 'actions', 'vendor'] as const).map(read),
+  );
+  const results = [nav, benchmarks, master, rates, holidays, actions, vendor].filter((r): r is IngestResult => !!r);
+  return {
+    nav: toSeriesFrame(nav.table, 'nav'),
+    benchmarks: benchmarks && toSeriesFrame(benchmarks.table, 'benchmarks'),
+    rates: rates && toSeriesFrame(rates.table, 'rates'),
+    master: master && toMasterRecords(master.table),
+    actions: actions && toCorporateActions(actions.table),
+    vendor: vendor && toVendorFigures(vendor.table),
+    calendars: toCalendars(holidays?.table, options.weekendDays),
+    results,
+    rows: totalRows(results),
+    rejected: results.flatMap((result) => result.rejected),
+  };
+}
+
+export function totalRows(results: readonly IngestResult[]): RowAccounting {
+  const rows = { read: 0, accepted: 0, rejected: 0 };
+  for (const result of results) {
+    rows.read += result.rows.read;
+    rows.accepted += result.rows.accepted;
+    rows.rejected += result.rows.rejected;
+  }
+  return rows;
+}
+
+/** Reads the NAV file of an earlier snapshot, for restatement checks. */
+export async function loadPreviousNav(path: string, profile: FeedProfile = DEFAULT_PROFILE): Promise<SeriesFrame> {
+  return toSeriesFrame((await readFeedFile(path, 'nav', profile)).table, 'nav');
+}

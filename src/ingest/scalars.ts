@@ -1,0 +1,193 @@
+import { epochDay, isValidCivilDate } from '../calendar/days.js';
+import type { DateFormat } from './profile.js';
+
+/**
+ * Scalar parsers that read straight from the bytes of a file, so the CSV hot path builds no
+ * string per value. Each returns NaN (numbers) or null (dates) for text that is not valid.
+ */
+
+const POWERS_OF_TEN = Array.from({ length: 23 }, (_, k) => 10 ** k);
+const SPACE = 32;
+const TAB = 9;
+const MINUS = 45;
+const PLUS = 43;
+const PERCENT = 37;
+const ZERO = 48;
+const NINE = 57;
+
+export interface NumberStyle {
+  /** Byte code of the decimal mark. */
+  readonly decimal: number;
+  /** Byte code of the thousands separator, or −1 for none. */
+  readonly thousands: number;
+}
+
+export const PLAIN_NUMBERS: NumberStyle = { decimal: 46, thousands: -1 };
+
+export function numberStyle(decimal: string, thousands: string): NumberStyle {
+  return { decimal: decimal.charCodeAt(0), thousands: thousands === '' ? -1 : thousands.charCodeAt(0) };
+}
+
+/**
+ * Parses a decimal number such as `-1,234.56`, `12.3%` (read as 0.123) or `1.5e-3`.
+ * Up to 15 significant digits take an exact integer path (mantissa / 10^k is correctly rounded,
+ * so it equals `Number()`); longer or exponent forms fall back to `Number()` on cleaned text.
+ */
+export function parseNumberBytes(bytes: Uint8Array, start: number, end: number, style: NumberStyle): number {
+  while (start < end && (bytes[start] === SPACE || bytes[start] === TAB)) start++;
+  while (end > start && (bytes[end - 1] === SPACE || bytes[end - 1] === TAB)) end--;
+  let scale = 1;
+  if (end > start && bytes[end - 1] === PERCENT) {
+    scale = 100;
+    end--;
+    while (end > start && bytes[end - 1] === SPACE) end--;
+  }
+  if (start === end) return NaN;
+  let i = start;
+  const negative = bytes[i] === MINUS;
+  if (negative || bytes[i] === PLUS) i++;
+  let mantissa = 0;
+  let digits = 0;
+  let fractionDigits = 0;
+  let seenDecimal = false;
+  let groupDigits = -1; // digits since the last thousands separator; −1 before the first one
+  for (; i < end; i++) {
+    const c = bytes[i];
+    if (c >= ZERO && c <= NINE) {
+      mantissa = mantissa * 10 + (c - ZERO);
+      digits++;
+      if (seenDecimal) fractionDigits++;
+      else if (groupDigits >= 0) groupDigits++;
+    } else if (c === style.decimal && !seenDecimal) {
+      if (groupDigits >= 0 && groupDigits !== 3) return NaN;
+      seenDecimal = true;
+    } else if (c === style.thousands && !seenDecimal && digits > 0) {
+      if (groupDigits >= 0 && groupDigits !== 3) return NaN;
+      groupDigits = 0;
+    } else if ((c === 101 || c === 69) && digits > 0) {
+      return slowNumber(bytes, start, end, style, scale);
+    } else {
+      return NaN;
+    }
+  }
+  if (digits === 0 || (!seenDecimal && groupDigits >= 0 && groupDigits !== 3)) return NaN;
+  if (digits > 15) return slowNumber(bytes, start, end, style, scale);
+  const magnitude = fractionDigits === 0 ? mantissa : mantissa / POWERS_OF_TEN[fractionDigits];
+  const value = negative ? -magnitude : magnitude;
+  return scale === 1 ? value : value / scale;
+}
+
+function slowNumber(bytes: Uint8Array, start: number, end: number, style: NumberStyle, scale: number): number {
+  let text = '';
+  for (let i = start; i < end; i++) {
+    const c = bytes[i];
+    if (c === style.thousands) continue;
+    text += c === style.decimal ? '.' : String.fromCharCode(c);
+  }
+  if (!/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(text)) return NaN;
+  const value = Number(text) / scale;
+  return Number.isFinite(value) ? value : NaN;
+}
+
+export function parseNumberText(text: string, style: NumberStyle = PLAIN_NUMBERS): number {
+  const bytes = Buffer.from(text, 'utf8');
+  return parseNumberBytes(bytes, 0, bytes.length, style);
+}
+
+/** `YYYY-MM-DD` straight from bytes; null when it is not that shape or not a real date. */
+export function parseIsoDateBytes(bytes: Uint8Array, start: number, end: number): number | null {
+  while (start < end && bytes[start] === SPACE) start++;
+  while (end > start && bytes[end - 1] === SPACE) end--;
+  if (end - start !== 10 || bytes[start + 4] !== MINUS || bytes[start + 7] !== MINUS) return null;
+  const year = fourDigits(bytes, start);
+  const month = twoDigits(bytes, start + 5);
+  const day = twoDigits(bytes, start + 8);
+  if (year < 0 || month < 0 || day < 0 || !isValidCivilDate(year, month, day)) return null;
+  return epochDay(year, month, day);
+}
+
+function twoDigits(bytes: Uint8Array, at: number): number {
+  const a = bytes[at] - ZERO;
+  const b = bytes[at + 1] - ZERO;
+  return a >= 0 && a <= 9 && b >= 0 && b <= 9 ? a * 10 + b : -1;
+}
+
+function fourDigits(bytes: Uint8Array, at: number): number {
+  const high = twoDigits(bytes, at);
+  const low = twoDigits(bytes, at + 2);
+  return high < 0 || low < 0 ? -1 : high * 100 + low;
+}
+
+const MONTH_NAMES = ['jan', 'feb', 'mar', 'apr', 'may', 'jun', 'jul', 'aug', 'sep', 'oct', 'nov', 'dec'];
+
+/** The parts of a date written with separators: numbers, or a month name (1..12) marked as such. */
+interface DateParts {
+  readonly numbers: [number, number, number];
+  readonly widths: [number, number, number];
+  /** Index of the part written as a month name, or −1. */
+  readonly monthNameAt: number;
+}
+
+function splitDate(text: string): DateParts | null {
+  const parts = text.trim().split(/[-/. ]/);
+  if (parts.length !== 3) return null;
+  let monthNameAt = -1;
+  const numbers = [0, 0, 0] as [number, number, number];
+  const widths = [0, 0, 0] as [number, number, number];
+  for (let k = 0; k < 3; k++) {
+    const part = parts[k];
+    if (/^\d{1,4}$/.test(part)) {
+      numbers[k] = Number(part);
+      widths[k] = part.length;
+    } else {
+      const month = MONTH_NAMES.indexOf(part.slice(0, 3).toLowerCase()) + 1;
+      if (month === 0 || monthNameAt >= 0 || !/^[A-Za-z]{3,9}$/.test(part)) return null;
+      monthNameAt = k;
+      numbers[k] = month;
+      widths[k] = part.length;
+    }
+  }
+  return { numbers, widths, monthNameAt };
+}
+
+function validDay(year: number, month: number, day: number): number | null {
+  return isValidCivilDate(year, month, day) ? epochDay(year, month, day) : null;
+}
+
+/**
+ * How a numeric date that is not ISO could be read. `day-first` and `month-first` tell whether
+ * each reading gives a real date; both true is the ambiguous case a profile must settle.
+ */
+export interface DateReadings {
+  readonly dayFirst: boolean;
+  readonly monthFirst: boolean;
+}
+
+export function numericDateReadings(text: string): DateReadings | null {
+  const parts = splitDate(text);
+  if (!parts || parts.monthNameAt >= 0 || parts.widths[2] !== 4) return null;
+  const [a, b, year] = parts.numbers;
+  return { dayFirst: isValidCivilDate(year, b, a), monthFirst: isValidCivilDate(year, a, b) };
+}
+
+/**
+ * Parses a date in any accepted written form under a date format. Unambiguous forms (ISO,
+ * `YYYYMMDD`, `YYYY/MM/DD`, month names) are read under every format; purely numeric
+ * day–month orders need `day-first` or `month-first`.
+ */
+export function parseDateText(text: string, format: DateFormat): number | null {
+  const trimmed = text.trim();
+  if (/^\d{8}$/.test(trimmed) && format !== 'day-first' && format !== 'month-first') {
+    return validDay(Number(trimmed.slice(0, 4)), Number(trimmed.slice(4, 6)), Number(trimmed.slice(6, 8)));
+  }
+  const parts = splitDate(trimmed);
+  if (!parts) return null;
+  const [first, second, third] = parts.numbers;
+  if (parts.widths[0] === 4 && parts.monthNameAt !== 0) return validDay(first, second, third);
+  if (parts.widths[2] !== 4) return null;
+  if (parts.monthNameAt === 1) return validDay(third, second, first);
+  if (parts.monthNameAt === 0) return validDay(third, first, second);
+  if (format === 'day-first') return validDay(third, second, first);
+  if (format === 'month-first') return validDay(third, first, second);
+  return null;
+}

@@ -1,0 +1,47 @@
+import { formatIsoDate } from '../calendar/days.js';
+import { severityRank, summarizeFindings, type Finding, type FindingSummary } from '../findings.js';
+import type { RowAccounting } from '../ingest/records.js';
+import type { ReportView } from './view.js';
+
+/** The `check --format json` answer of interface.md. */
+export interface CheckAnswer {
+  readonly as_of: string;
+  readonly rows: RowAccounting;
+  readonly findings: readonly Finding[];
+  readonly summary: FindingSummary;
+}
+
+export function checkAnswer(asOf: number, rows: RowAccounting, findings: readonly Finding[]): CheckAnswer {
+  return { as_of: formatIsoDate(asOf), rows, findings, summary: summarizeFindings(findings) };
+}
+
+/** Most severe first, then by series and date, so the first screen holds what matters. */
+export function checkView(answer: CheckAnswer): ReportView {
+  const ordered = [...answer.findings].sort(
+    (a, b) =>
+      severityRank(b.severity) - severityRank(a.severity) ||
+      (a.series_id ?? '').localeCompare(b.series_id ?? '') ||
+      (a.start ?? '').localeCompare(b.start ?? ''),
+  );
+  const severities = Object.entries(answer.summary.by_severity)
+    .filter(([, count]) => count > 0)
+    .map(([severity, count]) => `${count} ${severity}`)
+    .join(', ');
+  return {
+    title: `navassay feed check, as of ${answer.as_of}`,
+    preface: [
+      `Rows read ${answer.rows.read}: ${answer.rows.accepted} accepted, ${answer.rows.rejected} rejected.`,
+      `Findings: ${answer.findings.length}${severities ? ` (${severities})` : ''}.`,
+    ],
+    columns: ['severity', 'check', 'series', 'from', 'to', 'message'],
+    rows: ordered.map((f) => [f.severity, f.check, f.series_id, f.start, f.end, f.message]),
+    emptyText: 'No findings: every check passed.',
+  };
+}
+
+/** Exit status 1 when a finding is at or above the fail-on severity. */
+export function failsOn(findings: readonly Finding[], failOn: string): boolean {
+  if (failOn === 'none') return false;
+  const threshold = severityRank(failOn as Finding['severity']);
+  return findings.some((finding) => severityRank(finding.severity) >= threshold);
+}

@@ -1,0 +1,83 @@
+import Table from 'cli-table3';
+import { CAUTION, cellText, type ReportView } from './view.js';
+
+export const OUTPUT_FORMATS = ['table', 'json', 'csv', 'markdown', 'html'] as const;
+export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
+
+/** Renders a command's answer: json as the answer object itself, the rest from its view. */
+export function render(format: OutputFormat, answer: unknown, view: ReportView): string {
+  switch (format) {
+    case 'json':
+      return JSON.stringify(answer, null, 2) + '\n';
+    case 'table':
+      return renderTable(view);
+    case 'csv':
+      return renderCsv(view);
+    case 'markdown':
+      return renderMarkdown(view);
+    case 'html':
+      return renderHtml(view);
+  }
+}
+
+export function renderTable(view: ReportView): string {
+  const lines = [view.title, ...view.preface, ''];
+  if (view.rows.length === 0) lines.push(view.emptyText);
+  else {
+    const table = new Table({ head: [...view.columns], wordWrap: true, style: { head: [], border: [] } });
+    for (const row of view.rows) table.push(row.map(cellText));
+    lines.push(table.toString());
+  }
+  return [...lines, '', CAUTION, ''].join('\n');
+}
+
+export function renderCsv(view: ReportView): string {
+  const lines = [view.columns.map(csvCell).join(',')];
+  for (const row of view.rows) lines.push(row.map((value) => csvCell(cellText(value))).join(','));
+  return lines.join('\n') + '\n';
+}
+
+function csvCell(text: string): string {
+  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+export function renderMarkdown(view: ReportView): string {
+  const escape = (text: string) => text.replace(/\|/g, '\\|').replace(/\r?\n/g, ' ');
+  const lines = [`# ${view.title}`, '', ...view.preface.map((line) => `- ${line}`), ''];
+  if (view.rows.length === 0) lines.push(view.emptyText);
+  else {
+    lines.push(`| ${view.columns.map(escape).join(' | ')} |`, `|${view.columns.map(() => ' --- ').join('|')}|`);
+    for (const row of view.rows) lines.push(`| ${row.map((value) => escape(cellText(value))).join(' | ')} |`);
+  }
+  return [...lines, '', `> ${CAUTION}`, ''].join('\n');
+}
+
+export function renderHtml(view: ReportView): string {
+  const head = view.columns.map((c) => `<th scope="col">${escapeHtml(c)}</th>`).join('');
+  const body = view.rows
+    .map((row) => `<tr>${row.map((value) => `<td>${escapeHtml(cellText(value))}</td>`).join('')}</tr>`)
+    .join('\n');
+  const table = view.rows.length === 0 ? `<p>${escapeHtml(view.emptyText)}</p>` : `<table>\n<thead><tr>${head}</tr></thead>\n<tbody>\n${body}\n</tbody>\n</table>`;
+  return `<!doctype html>
+<html lang="en">
+<head><meta charset="utf-8"><title>${escapeHtml(view.title)}</title>
+<style>
+body { font-family: system-ui, sans-serif; margin: 2rem; color: #222; }
+table { border-collapse: collapse; font-size: 0.9rem; }
+th, td { border: 1px solid #bbb; padding: 0.3rem 0.5rem; text-align: left; vertical-align: top; }
+thead th { background: #eee; }
+.caution { margin-top: 1.5rem; font-size: 0.85rem; color: #555; max-width: 60rem; }
+</style></head>
+<body>
+<h1>${escapeHtml(view.title)}</h1>
+<ul>${view.preface.map((line) => `<li>${escapeHtml(line)}</li>`).join('')}</ul>
+${table}
+<p class="caution">${escapeHtml(CAUTION)}</p>
+</body>
+</html>
+`;
+}
+
+export function escapeHtml(text: string): string {
+  return text.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+}

@@ -1,0 +1,31 @@
+/**
+ * A report view: the rows a person reads, shared by the table, csv, markdown and html outputs.
+ * The json output is the command's own answer object (interface.md), not a view.
+ */
+export interface ReportView {
+  readonly title: string;
+  /** Lines shown above the rows: as-of date, row accounting, counts. */
+  readonly preface: readonly string[];
+  readonly columns: readonly string[];
+  readonly rows: ReadonlyArray<ReadonlyArray<string | number | null>>;
+  /** Shown when there are no rows. */
+  readonly emptyText: string;
+}
+
+/** The caution every report that people act on carries. */
+export const CAUTION =
+  'Risk figures describe the past and are no guarantee of future results. navassay checks data and arithmetic; ' +
+  "it gives no advice, and what may be published is decided by the firm's compliance function under its local rules.";
+
+export function cellText(value: string | number | null): string {
+  if (value === null) return '';
+  if (typeof value === 'number') return Number.isInteger(value) ? String(value) : formatNumber(value);
+  return value;
+}
+
+/** Up to 6 significant decimals, no trailing zeros: enough to compare with a printed figure. */
+export function formatNumber(value: number): string {
+  if (!Number.isFinite(value)) return String(value);
+  const fixed = Math.abs(value) >= 1e-4 || value === 0 ? value.toFixed(6) : value.toExponential(4);
+  return fixed.includes('e') ? fixed : fixed.replace(/\.?0+$/, '');
+}
