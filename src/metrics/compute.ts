@@ -1,0 +1,180 @@
+import { formatIsoDate } from '../calendar/days.js';
+import type { SeriesMasterRecord } from '../ingest/records.js';
+import { findSeries, type SeriesFrame } from '../series/frame.js';
+import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
+import { annualizationOf, describeMethodology, type Methodology } from './methodology.js';
+import { sampleWindow, type BenchmarkSource, type Outcome, type RiskFreeSource, type WindowSample } from './sampling.js';
+import { windowStatistics, type WindowStatistics } from './statistics.js';
+import { parseWindow, windowMonths } from './windows.js';
+
+/** The data metrics are computed from. */
+export interface MetricInputs {
+  readonly nav: SeriesFrame;
+  readonly benchmarks: SeriesFrame;
+  readonly master: readonly SeriesMasterRecord[];
+  readonly rates?: SeriesFrame;
+  /** An annual risk-free rate given on the command line; it overrides the methodology's source. */
+  readonly constantRate?: number;
+}
+
+export interface ComputeMetricsRequest extends MetricInputs {
+  /** Epoch day; observations after it are not used. */
+  readonly asOf: number;
+  readonly windows: readonly string[];
+  readonly methodology: Methodology;
+  /** Defaults to every metric id, in interface order. */
+  readonly metrics?: readonly MetricId[];
+}
+
+/** One line of `metrics --format json`. */
+export interface MetricRow {
+  readonly series_id: string;
+  readonly window: string;
+  readonly metric: MetricId;
+  readonly value: number | null;
+  readonly observations: number;
+  readonly reason?: string;
+}
+
+/** The whole `metrics --format json` answer. */
+export interface MetricsAnswer {
+  readonly as_of: string;
+  readonly methodology: Methodology;
+  readonly metrics: MetricRow[];
+}
+
+/** One figure to compute: a series, a window label, a metric, under a methodology. */
+export interface MetricRequest {
+  readonly seriesId: string;
+  readonly asOf: number;
+  readonly window: string;
+  readonly metric: MetricId;
+  readonly methodology: Methodology;
+}
+
+export interface MetricValue {
+  readonly value: number | null;
+  readonly observations: number;
+  readonly reason?: string;
+}
+
+export function computeMetrics(request: ComputeMetricsRequest): MetricsAnswer {
+  const calculator = new MetricCalculator(request);
+  const methodology = calculator.effectiveMethodology(request.methodology);
+  const metrics = request.metrics ?? METRIC_IDS;
+  const rows: MetricRow[] = [];
+  for (const seriesId of calculator.seriesIds()) {
+    for (const window of request.windows) {
+      for (const metric of metrics) {
+        const figure = calculator.metric({ seriesId, asOf: request.asOf, window, metric, methodology });
+        rows.push({ series_id: seriesId, window, metric, ...figure });
+      }
+    }
+  }
+  return { as_of: formatIsoDate(request.asOf), methodology: describeMethodology(methodology), metrics: rows };
+}
+
+/**
+ * Computes single figures cheaply and repeatedly: a window is sampled and its statistics built
+ * once per (series, as-of, window, sampling settings); every other methodology dimension is
+ * arithmetic on the cached statistics. Reconciliation keeps one calculator per run.
+ */
+export class MetricCalculator {
+  private readonly masterById = new Map<string, SeriesMasterRecord>();
+  private readonly cache = new Map<string, Outcome<WindowStatistics>>();
+
+  constructor(private readonly inputs: MetricInputs) {
+    for (const record of inputs.master) if (!this.masterById.has(record.series_id)) this.masterById.set(record.series_id, record);
+  }
+
+  /** The methodology as applied: a command-line constant rate replaces its risk-free source. */
+  effectiveMethodology(methodology: Methodology): Methodology {
+    const rate = this.inputs.constantRate;
+    return rate === undefined ? methodology : { ...methodology, risk_free: { source: 'constant', annual_rate: rate } };
+  }
+
+  /** Every series in the master or the NAV file, in ascending id order. */
+  seriesIds(): string[] {
+    const ids = new Set([...this.masterById.keys(), ...this.inputs.nav.ids]);
+    return [...ids].sort((a, b) => (a < b ? -1 : a > b ? 1 : 0));
+  }
+
+  metric(request: MetricRequest): MetricValue {
+    const stats = this.statistics(request);
+    if (!stats.ok) return { value: null, observations: 0, reason: stats.reason };
+    const observations = request.metric === 'max_drawdown' ? stats.value.navObservations : stats.value.n;
+    const outcome = metricFromStatistics(request.metric, stats.value, this.effectiveMethodology(request.methodology));
+    return outcome.value === null ? { value: null, observations, reason: outcome.reason } : { value: outcome.value, observations };
+  }
+
+  /** The window's statistics (cached), or why the window cannot be computed at all. */
+  statistics(request: Omit<MetricRequest, 'metric'>): Outcome<WindowStatistics> {
+    const methodology = this.effectiveMethodology(request.methodology);
+    const key = this.cacheKey(request, methodology);
+    let stats = this.cache.get(key);
+    if (!stats) {
+      const sample = this.sample({ ...request, methodology });
+      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value) } : sample;
+      this.cache.set(key, stats);
+    }
+    return stats;
+  }
+
+  /** The window's returns as sampled under the methodology, or why they cannot be. */
+  sample(request: Omit<MetricRequest, 'metric'>): Outcome<WindowSample> {
+    const methodology = this.effectiveMethodology(request.methodology);
+    const months = parseWindow(request.window);
+    if (months === null) throw new RangeError(unknownWindowMessage(request.window));
+    const fund = findSeries(this.inputs.nav, request.seriesId);
+    if (!fund || fund.dates.length === 0) return { ok: false, reason: `series ${request.seriesId} has no NAV observations` };
+    return sampleWindow({
+      fund,
+      benchmark: this.benchmarkSource(request.seriesId, methodology),
+      riskFree: this.riskFreeSource(request.seriesId, methodology),
+      span: windowMonths(request.asOf, months, methodology.window_end),
+      asOf: request.asOf,
+      frequency: methodology.frequency,
+      annualization: annualizationOf(methodology),
+    });
+  }
+
+  /** The benchmark a series is measured against: the methodology's override, else the master's. */
+  benchmarkId(seriesId: string, methodology: Methodology): string | null {
+    return methodology.benchmark ?? this.masterById.get(seriesId)?.benchmark_id ?? null;
+  }
+
+  private benchmarkSource(seriesId: string, methodology: Methodology): BenchmarkSource {
+    const id = this.benchmarkId(seriesId, methodology);
+    if (id === null) {
+      return this.masterById.has(seriesId)
+        ? { missing: `no benchmark is mapped to series ${seriesId} in the series master` }
+        : { missing: `series ${seriesId} is not in the series master, so it has no benchmark` };
+    }
+    const levels = findSeries(this.inputs.benchmarks, id);
+    return levels && levels.dates.length > 0 ? { id, levels } : { missing: `benchmark ${id} has no levels` };
+  }
+
+  private riskFreeSource(seriesId: string, methodology: Methodology): RiskFreeSource {
+    const source = methodology.risk_free;
+    if (source.source === 'none') return { annualRate: 0 };
+    if (source.source === 'constant') return { annualRate: source.annual_rate };
+    const id = source.rate_id ?? this.masterById.get(seriesId)?.rate_id ?? null;
+    if (id === null) return { missing: `no risk-free rate: series ${seriesId} has no rate_id in the series master and no constant rate was given` };
+    const rates = this.inputs.rates ? findSeries(this.inputs.rates, id) : undefined;
+    return rates && rates.dates.length > 0 ? { id, rates } : { missing: `risk-free rate ${id} has no observations` };
+  }
+
+  private cacheKey(request: Omit<MetricRequest, 'metric'>, m: Methodology): string {
+    const rate = m.risk_free.source === 'series' ? `series:${m.risk_free.rate_id ?? ''}` : m.risk_free.source === 'constant' ? `constant:${m.risk_free.annual_rate}` : 'none';
+    return [request.seriesId, request.asOf, request.window, m.frequency, m.window_end, m.benchmark ?? '', rate, annualizationOf(m)].join('|');
+  }
+}
+
+/** One figure, for callers that keep a calculator (reconciliation calls this with many variants). */
+export function computeMetric(calculator: MetricCalculator, request: MetricRequest): MetricValue {
+  return calculator.metric(request);
+}
+
+export function unknownWindowMessage(label: string): string {
+  return `unknown window "${label}": write a whole number of years or months, such as 3y or 6m`;
+}

@@ -1,0 +1,321 @@
+import { annualizationOf, type Methodology } from './methodology.js';
+import {
+  correlation,
+  divisor,
+  interceptYonX,
+  isNegligibleVariance,
+  residualSumOfSquares,
+  slopeYonX,
+  variance,
+  varianceY,
+  type PairMoments,
+  type TargetSums,
+} from './moments.js';
+import type { BasisStatistics, WindowStatistics } from './statistics.js';
+
+/**
+ * The metrics as arithmetic on a window's statistics under a methodology. docs/methodology.md
+ * states each formula; the functions here follow it line by line.
+ */
+
+export const METRIC_IDS = [
+  'return_annualized',
+  'std_dev',
+  'downside_deviation',
+  'beta',
+  'alpha',
+  'r_squared',
+  'sharpe',
+  'sortino',
+  'tracking_error',
+  'information_ratio',
+  'treynor',
+  'max_drawdown',
+] as const;
+export type MetricId = (typeof METRIC_IDS)[number];
+
+export function isMetricId(text: string): text is MetricId {
+  return (METRIC_IDS as readonly string[]).includes(text);
+}
+
+export type MetricOutcome = { readonly value: number; readonly reason?: undefined } | { readonly value: null; readonly reason: string };
+
+/** Thrown inside a formula when a figure cannot be computed; caught at the metric's boundary. */
+class NotComputable extends Error {}
+
+function refuse(reason: string): never {
+  throw new NotComputable(reason);
+}
+
+export function metricFromStatistics(metric: MetricId, stats: WindowStatistics, methodology: Methodology): MetricOutcome {
+  if (needsBenchmark(metric) && stats.benchmarkReason !== null) return { value: null, reason: stats.benchmarkReason };
+  if (needsRiskFree(metric, methodology) && stats.riskFreeReason !== null) return { value: null, reason: stats.riskFreeReason };
+  return guarded(() => FORMULAS[metric](stats, methodology));
+}
+
+/** Runs a formula, turning a refusal or a non-finite answer into a reason. */
+export function guarded(formula: () => number): MetricOutcome {
+  try {
+    const value = formula();
+    return Number.isFinite(value) ? { value } : { value: null, reason: `the result is not a finite number (${value})` };
+  } catch (error) {
+    if (error instanceof NotComputable) return { value: null, reason: error.message };
+    throw error;
+  }
+}
+
+export function needsBenchmark(metric: MetricId): boolean {
+  switch (metric) {
+    case 'beta':
+    case 'alpha':
+    case 'r_squared':
+    case 'tracking_error':
+    case 'information_ratio':
+    case 'treynor':
+      return true;
+    default:
+      return false;
+  }
+}
+
+export function needsRiskFree(metric: MetricId, methodology: Methodology): boolean {
+  switch (metric) {
+    case 'sharpe':
+    case 'treynor':
+      return true;
+    case 'sortino':
+    case 'downside_deviation':
+      return methodology.mar === 'risk_free';
+    case 'beta':
+    case 'r_squared':
+      return methodology.regression === 'excess';
+    case 'alpha':
+      if (methodology.alpha_form === 'excess_return') return false;
+      return methodology.alpha_form === 'jensen_geometric' || methodology.regression === 'excess';
+    default:
+      return false;
+  }
+}
+
+type Formula = (stats: WindowStatistics, methodology: Methodology) => number;
+
+const FORMULAS: Readonly<Record<MetricId, Formula>> = {
+  return_annualized: (stats, m) => annualizedGrowth(stats.growth.fund, stats.n, annualizationOf(m)),
+  std_dev: (stats, m) => annualizedDeviation(fundVariance(basisOf(stats, m).raw, stats.n, m), m),
+  downside_deviation: (stats, m) => downsideDeviation(stats, m),
+  beta: (stats, m) => beta(stats, m),
+  alpha: (stats, m) => alpha(stats, m),
+  r_squared: (stats, m) => rSquared(regressionOf(stats, m)),
+  sharpe: (stats, m) => sharpe(stats, m),
+  sortino: (stats, m) => sortino(stats, m),
+  tracking_error: (stats, m) => trackingError(stats, m),
+  information_ratio: (stats, m) => informationRatio(stats, m),
+  treynor: (stats, m) => treynor(stats, m),
+  max_drawdown: (stats) => stats.maxDrawdown,
+};
+
+// ---------------------------------------------------------------------------------------------
+// Building blocks
+
+export function basisOf(stats: WindowStatistics, m: Methodology): BasisStatistics {
+  return m.return_type === 'log' ? stats.log : stats.simple;
+}
+
+/** The benchmark–fund pair the regression runs on: excess returns or raw returns. */
+export function regressionOf(stats: WindowStatistics, m: Methodology): PairMoments {
+  const basis = basisOf(stats, m);
+  return m.regression === 'excess' ? basis.excess : basis.raw;
+}
+
+/** (Π(1 + r))^(A/N) − 1, from Σ ln(1 + r). */
+export function annualizedGrowth(logGrowth: number, periods: number, annualization: number): number {
+  if (periods < 1) refuse('the window has no periods');
+  return Math.expm1((logGrowth * annualization) / periods);
+}
+
+function annualizedDeviation(perPeriodVariance: number, m: Methodology): number {
+  return Math.sqrt(perPeriodVariance * annualizationOf(m));
+}
+
+function requirePeriods(n: number, m: Methodology): void {
+  if (divisor(n, m.sd_denominator) < 1) refuse(`${n} period(s) are too few for a ${m.sd_denominator} deviation`);
+}
+
+function fundVariance(pair: PairMoments, n: number, m: Methodology): number {
+  requirePeriods(n, m);
+  return varianceY(pair, m.sd_denominator);
+}
+
+function targetSums(basis: BasisStatistics, m: Methodology): TargetSums {
+  return m.mar === 'risk_free' ? basis.belowRiskFree : basis.belowZero;
+}
+
+/** Mean of r − MAR per period: the excess mean for a risk-free MAR, the plain mean for zero. */
+function meanOverTarget(basis: BasisStatistics, m: Methodology): number {
+  return m.mar === 'risk_free' ? basis.excess.meanY : basis.raw.meanY;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Metrics
+
+function downsideDeviation(stats: WindowStatistics, m: Methodology): number {
+  if (stats.n < 1) refuse('the window has no periods');
+  const sums = targetSums(basisOf(stats, m), m);
+  const count = m.dd_denominator === 'full' ? stats.n : Math.max(sums.countBelow, 1);
+  return annualizedDeviation(sums.sumSqBelow / count, m);
+}
+
+function sortino(stats: WindowStatistics, m: Methodology): number {
+  const deviation = downsideDeviation(stats, m);
+  if (deviation === 0) refuse('no period fell below the minimum acceptable return, so the downside deviation is zero');
+  return (annualizationOf(m) * meanOverTarget(basisOf(stats, m), m)) / deviation;
+}
+
+function beta(stats: WindowStatistics, m: Methodology): number {
+  const pair = regressionOf(stats, m);
+  if (pair.n < 2) refuse('a regression needs at least 2 periods');
+  if (isNegligibleVariance(pair.sumSqX / pair.n, pair.meanX)) refuse('the benchmark returns have zero variance');
+  return slopeYonX(pair);
+}
+
+function alpha(stats: WindowStatistics, m: Methodology): number {
+  const A = annualizationOf(m);
+  if (m.alpha_form === 'excess_return') {
+    return annualizedGrowth(stats.growth.fund, stats.n, A) - annualizedGrowth(stats.growth.benchmark, stats.n, A);
+  }
+  const slope = beta(stats, m);
+  if (m.alpha_form === 'jensen') return A * interceptYonX(regressionOf(stats, m));
+  const riskFree = annualizedGrowth(stats.growth.riskFree, stats.n, A);
+  const fund = annualizedGrowth(stats.growth.fund, stats.n, A);
+  const benchmark = annualizedGrowth(stats.growth.benchmark, stats.n, A);
+  return fund - riskFree - slope * (benchmark - riskFree);
+}
+
+export function rSquared(pair: PairMoments): number {
+  if (pair.n < 2) refuse('a correlation needs at least 2 periods');
+  if (isNegligibleVariance(pair.sumSqX / pair.n, pair.meanX)) refuse('the benchmark returns have zero variance');
+  if (isNegligibleVariance(pair.sumSqY / pair.n, pair.meanY)) refuse('the fund returns have zero variance');
+  const r = correlation(pair);
+  return r * r;
+}
+
+function sharpe(stats: WindowStatistics, m: Methodology): number {
+  const excess = basisOf(stats, m).excess;
+  const perPeriodVariance = fundVariance(excess, stats.n, m);
+  if (isNegligibleVariance(perPeriodVariance, excess.meanY)) refuse('the excess returns have zero variance');
+  return (excess.meanY / Math.sqrt(perPeriodVariance)) * Math.sqrt(annualizationOf(m));
+}
+
+function trackingError(stats: WindowStatistics, m: Methodology): number {
+  requirePeriods(stats.n, m);
+  return annualizedDeviation(variance(basisOf(stats, m).active, m.sd_denominator), m);
+}
+
+function informationRatio(stats: WindowStatistics, m: Methodology): number {
+  const active = basisOf(stats, m).active;
+  const error = trackingError(stats, m);
+  if (isNegligibleVariance(error * error, active.mean)) refuse('the tracking error is zero');
+  return (annualizationOf(m) * active.mean) / error;
+}
+
+function treynor(stats: WindowStatistics, m: Methodology): number {
+  const slope = beta(stats, m);
+  if (slope === 0) refuse('beta is zero');
+  return (annualizationOf(m) * basisOf(stats, m).excess.meanY) / slope;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Further measures of the same statistics (Bacon 2008), not among the published metric ids
+
+/** σ_fund / σ_benchmark, the ratio of total risks (the denominator convention cancels). */
+export function famaBeta(stats: WindowStatistics, m: Methodology): MetricOutcome {
+  return guarded(() => {
+    const pair = basisOf(stats, m).raw;
+    if (isNegligibleVariance(pair.sumSqX / pair.n, pair.meanX)) refuse('the benchmark returns have zero variance');
+    return Math.sqrt(pair.sumSqY / pair.sumSqX);
+  });
+}
+
+/** Annualised standard deviation of the regression residuals (the risk beta does not explain). */
+export function specificRisk(stats: WindowStatistics, m: Methodology): MetricOutcome {
+  return guarded(() => {
+    const pair = regressionOf(stats, m);
+    beta(stats, m);
+    requirePeriods(stats.n, m);
+    return annualizedDeviation(residualSumOfSquares(pair) / divisor(pair.n, m.sd_denominator), m);
+  });
+}
+
+/** Alpha (in the methodology's form) per unit of specific risk. */
+export function appraisalRatio(stats: WindowStatistics, m: Methodology): MetricOutcome {
+  const a = metricFromStatistics('alpha', stats, m);
+  const risk = specificRisk(stats, m);
+  if (a.value === null) return a;
+  if (risk.value === null) return risk;
+  const riskValue = risk.value;
+  return guarded(() => (riskValue === 0 ? refuse('the specific risk is zero') : a.value / riskValue));
+}
+
+/**
+ * M²: the fund's excess (geometric, annualised) return rescaled to the benchmark's total risk,
+ * plus the risk-free return: G_f + (G_p − G_f) × σ_b / σ_p.
+ */
+export function modiglianiM2(stats: WindowStatistics, m: Methodology): MetricOutcome {
+  return guarded(() => {
+    const A = annualizationOf(m);
+    const pair = basisOf(stats, m).raw;
+    if (isNegligibleVariance(pair.sumSqY / pair.n, pair.meanY)) refuse('the fund returns have zero variance');
+    const riskFree = annualizedGrowth(stats.growth.riskFree, stats.n, A);
+    const fund = annualizedGrowth(stats.growth.fund, stats.n, A);
+    return riskFree + (fund - riskFree) * Math.sqrt(pair.sumSqX / pair.sumSqY);
+  });
+}
+
+/** Share of periods below the minimum acceptable return. */
+export function downsideFrequency(stats: WindowStatistics, m: Methodology): number {
+  return targetSums(basisOf(stats, m), m).countBelow / stats.n;
+}
+
+/** Mean shortfall below the minimum acceptable return, per period (not annualised). */
+export function downsidePotential(stats: WindowStatistics, m: Methodology): number {
+  return targetSums(basisOf(stats, m), m).shortfallBelow / stats.n;
+}
+
+/** √(Σ max(r − MAR, 0)² / N), per period (not annualised). */
+export function upsideRisk(stats: WindowStatistics, m: Methodology): number {
+  return Math.sqrt(targetSums(basisOf(stats, m), m).sumSqAbove / stats.n);
+}
+
+/** Mean of |x − mean x|; two passes, as the mean must be known first. */
+export function meanAbsoluteDeviation(values: ArrayLike<number>): number {
+  const mean = arithmeticMean(values);
+  let total = 0;
+  for (let i = 0; i < values.length; i++) total += Math.abs(values[i] - mean);
+  return total / values.length;
+}
+
+/**
+ * Sample excess kurtosis, the bias-corrected estimator
+ * n(n+1)/((n−1)(n−2)(n−3)) Σ((x − x̄)/s)⁴ − 3(n−1)²/((n−2)(n−3)), with s the sample deviation.
+ */
+export function sampleExcessKurtosis(values: ArrayLike<number>): number {
+  const n = values.length;
+  if (n < 4) return NaN;
+  const mean = arithmeticMean(values);
+  let sumSq = 0;
+  let sumFourth = 0;
+  for (let i = 0; i < n; i++) {
+    const d2 = (values[i] - mean) ** 2;
+    sumSq += d2;
+    sumFourth += d2 * d2;
+  }
+  const sampleVariance = sumSq / (n - 1);
+  const scaled = sumFourth / (sampleVariance * sampleVariance);
+  return ((n * (n + 1)) / ((n - 1) * (n - 2) * (n - 3))) * scaled - (3 * (n - 1) ** 2) / ((n - 2) * (n - 3));
+}
+
+function arithmeticMean(values: ArrayLike<number>): number {
+  let total = 0;
+  for (let i = 0; i < values.length; i++) total += values[i];
+  return total / values.length;
+}

@@ -1,0 +1,277 @@
+import { formatIsoDate, isoWeekStart, monthEndDay, monthIndex } from '../calendar/days.js';
+import type { Frequency } from './methodology.js';
+import { formatMonth, monthStartDay, type WindowMonths } from './windows.js';
+
+/**
+ * From a series' observations to the returns of one window. The window is first covered by
+ * month-end values (the last observation inside each month, on or before its last day and on or
+ * before the as-of day); every frequency then samples inside the same calendar span, from the
+ * window's first month-end value to its last.
+ */
+
+/** Dates ascending with their values: a series slice, or any view like it. */
+export interface Observations {
+  readonly dates: Int32Array;
+  readonly values: Float64Array;
+}
+
+export type Outcome<T> = { readonly ok: true; readonly value: T } | { readonly ok: false; readonly reason: string };
+
+export type BenchmarkSource = { readonly id: string; readonly levels: Observations } | { readonly missing: string };
+
+export type RiskFreeSource =
+  | { readonly id: string; readonly rates: Observations }
+  | { readonly annualRate: number }
+  | { readonly missing: string };
+
+export interface WindowRequest {
+  readonly fund: Observations;
+  readonly benchmark: BenchmarkSource;
+  readonly riskFree: RiskFreeSource;
+  readonly span: WindowMonths;
+  /** Observations after this epoch day are not used. */
+  readonly asOf: number;
+  readonly frequency: Frequency;
+  /** Periods a year: an annual rate becomes a per-period rate by dividing by it. */
+  readonly annualization: number;
+}
+
+export interface WindowSample {
+  /** Simple returns of the fund, one per period. */
+  readonly fund: Float64Array;
+  /** Simple returns of the benchmark over the same periods, or null with `benchmarkReason`. */
+  readonly benchmark: Float64Array | null;
+  readonly benchmarkReason: string | null;
+  /** Risk-free return of each period, or null with `riskFreeReason`. */
+  readonly riskFree: Float64Array | null;
+  readonly riskFreeReason: string | null;
+  /** Every NAV observation from the window's first month-end value to its last. */
+  readonly navPath: Float64Array;
+  /** Epoch days of the fund's sample points (periods + 1): the first is the window's start. */
+  readonly pointDays: Int32Array;
+}
+
+/** A rate missing for a weekly or daily period may be taken from this many days before it. */
+export const RATE_LOOKBACK_DAYS = 31;
+
+export function sampleWindow(request: WindowRequest): Outcome<WindowSample> {
+  const { fund, span, asOf, frequency } = request;
+  const fundMonthEnds = coverWindow(fund, span, asOf, 'NAV');
+  if (!fundMonthEnds.ok) return fundMonthEnds;
+  const points = samplePoints(fund.dates, fundMonthEnds.value, frequency);
+  const pointDays = gatherDays(fund.dates, points);
+  const first = points[0];
+  const last = points[points.length - 1];
+
+  const benchmark = benchmarkReturns(request, pointDays);
+  const riskFree = riskFreeReturns(request, pointDays);
+  return {
+    ok: true,
+    value: {
+      fund: returnsAt(fund.values, points),
+      benchmark: benchmark.ok ? benchmark.value : null,
+      benchmarkReason: benchmark.ok ? null : benchmark.reason,
+      riskFree: riskFree.ok ? riskFree.value : null,
+      riskFreeReason: riskFree.ok ? null : riskFree.reason,
+      navPath: fund.values.subarray(first, last + 1),
+      pointDays,
+    },
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Month-end values
+
+/** Index of the first date above `day` (binary search). */
+export function upperBound(dates: Int32Array, day: number): number {
+  let lo = 0;
+  let hi = dates.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (dates[mid] <= day) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/** Index of the first date on or after `day`. */
+export function lowerBound(dates: Int32Array, day: number): number {
+  return upperBound(dates, day - 1);
+}
+
+/** Index of a month's month-end observation, or −1 when the month has none (up to `cutoff`). */
+export function monthEndIndex(dates: Int32Array, month: number, cutoff: number): number {
+  const last = upperBound(dates, Math.min(monthEndDay(month), cutoff)) - 1;
+  return last >= 0 && dates[last] >= monthStartDay(month) ? last : -1;
+}
+
+/** Month-end indices for every month of the span (start month included), −1 where missing. */
+export function monthEndIndices(dates: Int32Array, span: WindowMonths, cutoff: number): Int32Array {
+  const indices = new Int32Array(span.months + 1);
+  for (let k = 0; k <= span.months; k++) indices[k] = monthEndIndex(dates, span.startMonth + k, cutoff);
+  return indices;
+}
+
+const LISTED_MONTHS = 12;
+
+/** The span's month-end indices, or the reason the series cannot cover it. */
+export function coverWindow(series: Observations, span: WindowMonths, cutoff: number, what: string): Outcome<Int32Array> {
+  if (series.dates.length === 0 || series.dates[0] > cutoff) return { ok: false, reason: `no ${what} observations` };
+  const indices = monthEndIndices(series.dates, span, cutoff);
+  const missing: number[] = [];
+  indices.forEach((index, k) => index < 0 && missing.push(span.startMonth + k));
+  if (missing.length > 0) return { ok: false, reason: missingMonthsReason(series, span, missing, what) };
+  for (const index of indices) {
+    const value = series.values[index];
+    if (!(value > 0) || !Number.isFinite(value)) {
+      return { ok: false, reason: `${what} ${value} on ${formatIsoDate(series.dates[index])} is not a positive number` };
+    }
+  }
+  return { ok: true, value: indices };
+}
+
+function missingMonthsReason(series: Observations, span: WindowMonths, missing: number[], what: string): string {
+  const firstDay = series.dates[0];
+  if (monthIndex(firstDay) > span.startMonth && missing[0] === span.startMonth) {
+    return (
+      `history too short: the window needs a ${what} month-end value for ${formatMonth(span.startMonth)}, ` +
+      `the first ${what} observation is on ${formatIsoDate(firstDay)}`
+    );
+  }
+  const listed = missing.slice(0, LISTED_MONTHS).map(formatMonth).join(', ');
+  const more = missing.length > LISTED_MONTHS ? ` and ${missing.length - LISTED_MONTHS} more` : '';
+  return `missing ${what} month-end values for ${listed}${more}`;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Sample points
+
+/** The calendar period an observation belongs to at a frequency, as a sortable number. */
+export function periodKey(day: number, frequency: Frequency): number {
+  if (frequency === 'monthly') return monthIndex(day);
+  return frequency === 'weekly' ? isoWeekStart(day) : day;
+}
+
+/**
+ * Indices of the sample points: the window's first month-end value, then the last observation of
+ * each period up to the window's last month-end value (which always closes the window).
+ */
+export function samplePoints(dates: Int32Array, monthEnds: Int32Array, frequency: Frequency): Int32Array {
+  if (frequency === 'monthly') return monthEnds;
+  const first = monthEnds[0];
+  const last = monthEnds[monthEnds.length - 1];
+  const points: number[] = [first];
+  for (let i = first + 1; i < last; i++) {
+    if (periodKey(dates[i + 1], frequency) !== periodKey(dates[i], frequency)) points.push(i);
+  }
+  if (last > first) points.push(last);
+  return Int32Array.from(points);
+}
+
+function gatherDays(dates: Int32Array, points: Int32Array): Int32Array {
+  const days = new Int32Array(points.length);
+  for (let k = 0; k < points.length; k++) days[k] = dates[points[k]];
+  return days;
+}
+
+/** Simple returns between consecutive sample points. */
+export function returnsAt(values: Float64Array, points: Int32Array): Float64Array {
+  const returns = new Float64Array(points.length - 1);
+  for (let k = 1; k < points.length; k++) returns[k - 1] = values[points[k]] / values[points[k - 1]] - 1;
+  return returns;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Benchmark
+
+function benchmarkReturns(request: WindowRequest, pointDays: Int32Array): Outcome<Float64Array> {
+  const source = request.benchmark;
+  if ('missing' in source) return { ok: false, reason: source.missing };
+  const label = `benchmark ${source.id}`;
+  const monthEnds = coverWindow(source.levels, request.span, request.asOf, `${label} level`);
+  if (!monthEnds.ok) return monthEnds;
+  const points =
+    request.frequency === 'monthly'
+      ? monthEnds.value
+      : alignedPoints(source.levels.dates, monthEnds.value, pointDays, request.frequency);
+  return { ok: true, value: returnsAt(source.levels.values, points) };
+}
+
+/**
+ * The benchmark read at the fund's sample points: its own window-start and window-end month-end
+ * values at the ends, and in between its last level in the fund's period or, when it has none
+ * there (a benchmark holiday), its latest earlier level.
+ */
+function alignedPoints(dates: Int32Array, monthEnds: Int32Array, fundDays: Int32Array, frequency: Frequency): Int32Array {
+  const first = monthEnds[0];
+  const last = monthEnds[monthEnds.length - 1];
+  const points = new Int32Array(fundDays.length);
+  points[0] = first;
+  let cursor = first;
+  for (let k = 1; k < fundDays.length - 1; k++) {
+    const key = periodKey(fundDays[k], frequency);
+    while (cursor < last && periodKey(dates[cursor + 1], frequency) <= key) cursor++;
+    points[k] = cursor;
+  }
+  if (fundDays.length > 1) points[fundDays.length - 1] = last;
+  return points;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Risk-free rate
+
+/**
+ * The risk-free return of each period: the mean of the annual rates observed in the period,
+ * divided by the annualisation. A month without a rate makes the window's rate unknown; a
+ * week or a day without one takes the latest rate of the preceding `RATE_LOOKBACK_DAYS` days.
+ */
+function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome<Float64Array> {
+  const source = request.riskFree;
+  const periods = pointDays.length - 1;
+  if ('missing' in source) return { ok: false, reason: source.missing };
+  if ('annualRate' in source) return { ok: true, value: new Float64Array(periods).fill(source.annualRate / request.annualization) };
+
+  const perPeriod = new Float64Array(periods);
+  const missing: string[] = [];
+  for (let k = 0; k < periods; k++) {
+    const [from, to] = periodDays(pointDays[k + 1], request.frequency, request.asOf);
+    const rate = meanRate(source.rates, from, to) ?? lookBackRate(source.rates, from, request.frequency);
+    if (rate === null) missing.push(describePeriod(pointDays[k + 1], request.frequency));
+    else perPeriod[k] = rate / request.annualization;
+  }
+  if (missing.length === 0) return { ok: true, value: perPeriod };
+  const listed = missing.slice(0, LISTED_MONTHS).join(', ');
+  const more = missing.length > LISTED_MONTHS ? ` and ${missing.length - LISTED_MONTHS} more` : '';
+  return { ok: false, reason: `no risk-free rate ${source.id} for ${listed}${more}` };
+}
+
+/** First and last epoch day of the period holding `day`, cut at the as-of day. */
+function periodDays(day: number, frequency: Frequency, asOf: number): [number, number] {
+  if (frequency === 'monthly') {
+    const month = monthIndex(day);
+    return [monthStartDay(month), Math.min(monthEndDay(month), asOf)];
+  }
+  const start = periodKey(day, frequency);
+  const end = frequency === 'weekly' ? start + 6 : start;
+  return [start, Math.min(end, asOf)];
+}
+
+function meanRate(rates: Observations, from: number, to: number): number | null {
+  const begin = lowerBound(rates.dates, from);
+  const end = upperBound(rates.dates, to);
+  if (end <= begin) return null;
+  let sum = 0;
+  for (let i = begin; i < end; i++) sum += rates.values[i];
+  return sum / (end - begin);
+}
+
+function lookBackRate(rates: Observations, periodStart: number, frequency: Frequency): number | null {
+  if (frequency === 'monthly') return null;
+  const before = upperBound(rates.dates, periodStart - 1) - 1;
+  return before >= 0 && rates.dates[before] >= periodStart - RATE_LOOKBACK_DAYS ? rates.values[before] : null;
+}
+
+function describePeriod(day: number, frequency: Frequency): string {
+  if (frequency === 'monthly') return formatMonth(monthIndex(day));
+  return frequency === 'weekly' ? `the week of ${formatIsoDate(isoWeekStart(day))}` : formatIsoDate(day);
+}

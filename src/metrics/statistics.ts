@@ -1,0 +1,103 @@
+import { PairMoments, SeriesMoments, TargetSums } from './moments.js';
+import type { WindowSample } from './sampling.js';
+
+/**
+ * A window's sufficient statistics, built in one pass over its returns. Every metric, under every
+ * methodology that shares the window's sampling, is then a few arithmetic operations on these.
+ */
+
+/** Moments of the returns in one basis: simple returns r, or log returns ln(1 + r). */
+export interface BasisStatistics {
+  /** Benchmark (x, the explanatory variable) and fund (y). */
+  readonly raw: PairMoments;
+  /** Benchmark excess (x = r_b − rf) and fund excess (y = r − rf). */
+  readonly excess: PairMoments;
+  /** Active return: fund minus benchmark. */
+  readonly active: SeriesMoments;
+  /** Fund returns about a minimum acceptable return of the risk-free rate. */
+  readonly belowRiskFree: TargetSums;
+  /** Fund returns about a minimum acceptable return of zero. */
+  readonly belowZero: TargetSums;
+}
+
+export interface WindowStatistics {
+  /** Periods (returns) in the window. */
+  readonly n: number;
+  readonly simple: BasisStatistics;
+  readonly log: BasisStatistics;
+  /** Σ ln(1 + r): compounding in log space, for annualised (geometric) returns. */
+  readonly growth: { readonly fund: number; readonly benchmark: number; readonly riskFree: number };
+  /** Largest peak-to-trough fall of the NAV path, a positive decimal (0 when it never falls). */
+  readonly maxDrawdown: number;
+  readonly navObservations: number;
+  /** Why benchmark figures cannot be computed, or null when they can. */
+  readonly benchmarkReason: string | null;
+  /** Why risk-free dependent figures cannot be computed, or null when they can. */
+  readonly riskFreeReason: string | null;
+}
+
+export function windowStatistics(sample: WindowSample): WindowStatistics {
+  const n = sample.fund.length;
+  const zeros = new Float64Array(n);
+  const fund = sample.fund;
+  const benchmark = sample.benchmark ?? zeros;
+  const riskFree = sample.riskFree ?? zeros;
+  const logFund = log1pAll(fund);
+  const logBenchmark = log1pAll(benchmark);
+  return {
+    n,
+    simple: basisStatistics(fund, benchmark, riskFree),
+    log: basisStatistics(logFund, logBenchmark, riskFree),
+    growth: { fund: sum(logFund), benchmark: sum(logBenchmark), riskFree: sum(log1pAll(riskFree)) },
+    maxDrawdown: maxDrawdown(sample.navPath),
+    navObservations: sample.navPath.length,
+    benchmarkReason: sample.benchmarkReason,
+    riskFreeReason: sample.riskFreeReason,
+  };
+}
+
+/** All of one basis' moments in a single pass over fund, benchmark and risk-free returns. */
+export function basisStatistics(fund: Float64Array, benchmark: Float64Array, riskFree: Float64Array): BasisStatistics {
+  const stats = {
+    raw: new PairMoments(),
+    excess: new PairMoments(),
+    active: new SeriesMoments(),
+    belowRiskFree: new TargetSums(),
+    belowZero: new TargetSums(),
+  };
+  for (let i = 0; i < fund.length; i++) {
+    const p = fund[i];
+    const b = benchmark[i];
+    const f = riskFree[i];
+    stats.raw.add(b, p);
+    stats.excess.add(b - f, p - f);
+    stats.active.add(p - b);
+    stats.belowRiskFree.add(p, f);
+    stats.belowZero.add(p, 0);
+  }
+  return stats;
+}
+
+/** The largest fall from a running peak, as a positive fraction of the peak. */
+export function maxDrawdown(values: ArrayLike<number>): number {
+  let peak = -Infinity;
+  let deepest = 0;
+  for (let i = 0; i < values.length; i++) {
+    const value = values[i];
+    if (value > peak) peak = value;
+    else deepest = Math.max(deepest, 1 - value / peak);
+  }
+  return deepest;
+}
+
+function log1pAll(values: Float64Array): Float64Array {
+  const logs = new Float64Array(values.length);
+  for (let i = 0; i < values.length; i++) logs[i] = Math.log1p(values[i]);
+  return logs;
+}
+
+function sum(values: Float64Array): number {
+  let total = 0;
+  for (let i = 0; i < values.length; i++) total += values[i];
+  return total;
+}
