@@ -1,0 +1,159 @@
+import { DataType, makeVector, tableFromIPC, TimeUnit, util, type Data, type Table, type Vector } from 'apache-arrow';
+import { ingestColumnarFile, TextDictionaryBuilder, type SourceColumn } from './columnar-ingest.js';
+import { InputError } from './errors.js';
+import type { FeedProfile } from './profile.js';
+import type { FileKind } from './schema.js';
+import { NULL_BOOLEAN, NULL_DATE, type IngestResult } from './table.js';
+
+const MILLIS_PER_DAY = 86_400_000;
+
+/**
+ * Reads a canonical file held as Arrow IPC (file or stream format, `.arrow` / `.feather` v2).
+ * Typed columns are taken as typed; text columns are parsed with the profile's rules.
+ */
+export function readArrowBuffer(bytes: Uint8Array, fileName: string, kind: FileKind, profile: FeedProfile): IngestResult {
+  const table = openArrowTable(bytes, fileName);
+  const columnNames = table.schema.fields.map((field) => field.name);
+  return ingestColumnarFile(
+    {
+      fileName,
+      rowCount: table.numRows,
+      columnNames,
+      readColumn: (name) => arrowSourceColumn(table.getChild(name)!, name, fileName),
+    },
+    kind,
+    profile,
+  );
+}
+
+function openArrowTable(bytes: Uint8Array, fileName: string): Table {
+  try {
+    return tableFromIPC(bytes);
+  } catch (error) {
+    throw new InputError(
+      `${fileName} cannot be read as an Arrow IPC file (${(error as Error).message}); check that it is an uncompressed Arrow file or stream, or export it as CSV or Parquet.`,
+    );
+  }
+}
+
+/** Turns one Arrow column of any supported type into a source column, chunk by chunk. */
+export function arrowSourceColumn(vector: Vector, name: string, fileName: string): SourceColumn {
+  const type = vector.type as DataType;
+  if (DataType.isDate(type) || DataType.isTimestamp(type)) return { form: 'days', days: arrowDays(vector) };
+  if (DataType.isInt(type) || DataType.isFloat(type) || DataType.isDecimal(type)) {
+    return { form: 'number', values: arrowNumbers(vector) };
+  }
+  if (DataType.isBool(type)) return { form: 'boolean', values: arrowBooleans(vector) };
+  if (DataType.isUtf8(type) || DataType.isLargeUtf8(type) || DataType.isDictionary(type)) {
+    return arrowText(vector);
+  }
+  throw new InputError(
+    `${fileName} has column ${name} of Arrow type ${String(type)}, which navassay cannot read; store it as a string, number, date or boolean column.`,
+  );
+}
+
+/** Calls `visit` for each chunk with the row number its first value has in the whole column. */
+function eachChunk(vector: Vector, visit: (data: Data, firstRow: number) => void): void {
+  let firstRow = 0;
+  for (const data of vector.data) {
+    visit(data, firstRow);
+    firstRow += data.length;
+  }
+}
+
+function isNullAt(data: Data, index: number): boolean {
+  if (data.nullCount === 0 || !data.nullBitmap || data.nullBitmap.length === 0) return false;
+  const bit = data.offset + index;
+  return (data.nullBitmap[bit >> 3] & (1 << (bit & 7))) === 0;
+}
+
+function arrowDays(vector: Vector): Int32Array {
+  const days = new Int32Array(vector.length);
+  const type = vector.type as DataType;
+  const millisPerUnit = DataType.isTimestamp(type) ? timestampMillisPerUnit(type.unit) : 1;
+  eachChunk(vector, (data, firstRow) => {
+    const values = data.values as Int32Array | BigInt64Array;
+    for (let i = 0; i < data.length; i++) {
+      days[firstRow + i] = isNullAt(data, i) ? NULL_DATE : toEpochDay(values[i], millisPerUnit);
+    }
+  });
+  return days;
+}
+
+/** Date32 holds epoch days already; Date64 and timestamps hold BigInt counts of a time unit. */
+function toEpochDay(value: number | bigint, millisPerUnit: number): number {
+  if (typeof value === 'number') return value;
+  return Math.floor((Number(value) * millisPerUnit) / MILLIS_PER_DAY);
+}
+
+function timestampMillisPerUnit(unit: TimeUnit): number {
+  switch (unit) {
+    case TimeUnit.SECOND:
+      return 1000;
+    case TimeUnit.MILLISECOND:
+      return 1;
+    case TimeUnit.MICROSECOND:
+      return 1e-3;
+    case TimeUnit.NANOSECOND:
+      return 1e-6;
+  }
+}
+
+function arrowNumbers(vector: Vector): Float64Array {
+  const numbers = new Float64Array(vector.length);
+  const type = vector.type as DataType;
+  // Float16 stores raw half-precision bits and Decimal stores 128-bit words: only `get` decodes them.
+  const decodesItself = DataType.isDecimal(type) || (DataType.isFloat(type) && type.precision === 0);
+  const scale = DataType.isDecimal(type) ? type.scale : 0;
+  eachChunk(vector, (data, firstRow) => {
+    const values = data.values as ArrayLike<number | bigint>;
+    for (let i = 0; i < data.length; i++) {
+      if (isNullAt(data, i)) numbers[firstRow + i] = NaN;
+      else if (decodesItself) numbers[firstRow + i] = decodedNumber(vector, firstRow + i, scale);
+      else numbers[firstRow + i] = Number(values[i]);
+    }
+  });
+  return numbers;
+}
+
+function decodedNumber(vector: Vector, row: number, scale: number): number {
+  const value: unknown = vector.get(row);
+  if (typeof value === 'number') return value;
+  return util.bigNumToNumber(value as Parameters<typeof util.bigNumToNumber>[0], scale);
+}
+
+function arrowBooleans(vector: Vector): Uint8Array {
+  const flags = new Uint8Array(vector.length);
+  eachChunk(vector, (data, firstRow) => {
+    const bits = data.values as Uint8Array;
+    for (let i = 0; i < data.length; i++) {
+      const bit = data.offset + i;
+      flags[firstRow + i] = isNullAt(data, i) ? NULL_BOOLEAN : (bits[bit >> 3] >> (bit & 7)) & 1;
+    }
+  });
+  return flags;
+}
+
+/**
+ * Dictionary columns are re-coded once per dictionary entry, so a million rows of a few thousand
+ * ids decode a few thousand strings; plain string columns go through a lookup per row.
+ */
+function arrowText(vector: Vector): SourceColumn {
+  const builder = new TextDictionaryBuilder(vector.length);
+  eachChunk(vector, (data, firstRow) => {
+    if (data.dictionary) {
+      const codeOfEntry = Int32Array.from(data.dictionary.toArray() as ArrayLike<unknown>, (entry) =>
+        builder.codeFor(entry === null || entry === undefined ? null : String(entry)),
+      );
+      const indices = data.values as ArrayLike<number | bigint>;
+      for (let i = 0; i < data.length; i++) {
+        builder.codes[firstRow + i] = isNullAt(data, i) ? -1 : codeOfEntry[Number(indices[i])];
+      }
+    } else {
+      const chunk = makeVector(data);
+      for (let i = 0; i < data.length; i++) builder.set(firstRow + i, isNullAt(data, i) ? null : (chunk.get(i) as string));
+    }
+  });
+  const { codes, dictionary } = builder.finish();
+  return { form: 'text', codes, dictionary };
+}

@@ -1,0 +1,136 @@
+import { writeFileSync } from 'node:fs';
+import {
+  Bool,
+  DateDay,
+  Dictionary,
+  Float64,
+  Int32,
+  makeData,
+  makeVector,
+  Table,
+  tableFromIPC,
+  tableToIPC,
+  Utf8,
+  vectorFromArray,
+  type Vector,
+} from 'apache-arrow';
+import { arrowSourceColumn } from './arrow-reader.js';
+import type { SourceColumn } from './columnar-ingest.js';
+import { InputError } from './errors.js';
+import { CANONICAL_COLUMNS, type FileKind } from './schema.js';
+import { NULL_BOOLEAN, NULL_DATE, type CanonicalTable, type Column } from './table.js';
+
+/**
+ * Canonical tables as Arrow tables, the form snapshots are stored in and tests and the bench
+ * write their Arrow and Parquet inputs from.
+ *
+ * Column types: text and ids are Dictionary<Utf8, Int32>, so the codes are copied as they are;
+ * dates are Date32 (unit DAY), whose storage is Int32 days since 1970-01-01, exactly the
+ * canonical epoch days, while any Arrow tool still sees real dates; numbers are Float64 and
+ * booleans Bool. Missing values are Arrow nulls. A `line` Int32 column keeps each row's source
+ * line (CSV) or record number (Arrow, Parquet).
+ */
+export const LINE_COLUMN = 'line';
+
+export function canonicalToArrow(table: CanonicalTable): Table {
+  const vectors: Record<string, Vector> = {};
+  for (const [name, column] of Object.entries(table.columns)) vectors[name] = columnToVector(column, table.length);
+  vectors[LINE_COLUMN] = makeVector(table.lines);
+  return new Table(vectors);
+}
+
+function columnToVector(column: Column, length: number): Vector {
+  switch (column.type) {
+    case 'text':
+      return textVector(column.codes, column.dictionary);
+    case 'date':
+      return primitiveVector(new DateDay(), column.values, (value) => value !== NULL_DATE);
+    case 'number':
+      return primitiveVector(new Float64(), column.values, (value) => !Number.isNaN(value));
+    case 'boolean':
+      return booleanVector(column.values, length);
+  }
+}
+
+/** Bit `i` set when row `i` holds a value, as Arrow's validity bitmaps want. */
+function validityBitmap(length: number, isValid: (row: number) => boolean): { nullBitmap: Uint8Array; nullCount: number } {
+  const nullBitmap = new Uint8Array(Math.ceil(length / 8));
+  let nullCount = 0;
+  for (let row = 0; row < length; row++) {
+    if (isValid(row)) nullBitmap[row >> 3] |= 1 << (row & 7);
+    else nullCount++;
+  }
+  return { nullBitmap, nullCount };
+}
+
+function textVector(codes: Int32Array, dictionary: readonly string[]): Vector {
+  const { nullBitmap, nullCount } = validityBitmap(codes.length, (row) => codes[row] >= 0);
+  // Null slots still need an index inside the dictionary; 0 is never read through the bitmap.
+  const indices = codes.map((code) => (code < 0 ? 0 : code));
+  const type = new Dictionary(new Utf8(), new Int32());
+  const values = vectorFromArray([...dictionary], new Utf8());
+  return makeVector(makeData({ type, length: codes.length, nullCount, nullBitmap, data: indices, dictionary: values }));
+}
+
+function primitiveVector<T extends DateDay | Float64>(
+  type: T,
+  values: T['TArray'],
+  holdsValue: (value: number) => boolean,
+): Vector {
+  const { nullBitmap, nullCount } = validityBitmap(values.length, (row) => holdsValue(values[row] as number));
+  return makeVector(makeData({ type, length: values.length, nullCount, nullBitmap, data: values } as never));
+}
+
+function booleanVector(values: Uint8Array, length: number): Vector {
+  const { nullBitmap, nullCount } = validityBitmap(length, (row) => values[row] !== NULL_BOOLEAN);
+  const bits = new Uint8Array(Math.ceil(length / 8));
+  for (let row = 0; row < length; row++) if (values[row] === 1) bits[row >> 3] |= 1 << (row & 7);
+  return makeVector(makeData({ type: new Bool(), length, nullCount, nullBitmap, data: bits }));
+}
+
+/** The inverse of `canonicalToArrow`; every column is taken by its Arrow type. */
+export function arrowToCanonical(kind: FileKind, arrow: Table, fileName = `${kind} table`): CanonicalTable {
+  for (const spec of CANONICAL_COLUMNS[kind]) {
+    if (spec.required && !arrow.getChild(spec.name)) {
+      throw new InputError(
+        `${fileName} has no column ${spec.name}, which a stored ${kind} table needs; write the table again with canonicalToArrow.`,
+      );
+    }
+  }
+  const columns: Record<string, Column> = {};
+  for (const field of arrow.schema.fields) {
+    if (field.name === LINE_COLUMN) continue;
+    columns[field.name] = sourceToColumn(arrowSourceColumn(arrow.getChild(field.name)!, field.name, fileName));
+  }
+  const lineVector = arrow.getChild(LINE_COLUMN);
+  const lines = lineVector
+    ? Int32Array.from(lineVector.toArray() as ArrayLike<number>)
+    : Int32Array.from({ length: arrow.numRows }, (_, row) => row + 1);
+  return { kind, length: arrow.numRows, lines, columns };
+}
+
+function sourceToColumn(source: SourceColumn): Column {
+  switch (source.form) {
+    case 'days':
+      return { type: 'date', values: source.days };
+    case 'number':
+      return { type: 'number', values: source.values };
+    case 'text':
+      return { type: 'text', codes: source.codes, dictionary: source.dictionary };
+    case 'boolean':
+      return { type: 'boolean', values: source.values };
+  }
+}
+
+/** The table as Arrow IPC file-format bytes. */
+export function canonicalToArrowIpc(table: CanonicalTable): Uint8Array {
+  return tableToIPC(canonicalToArrow(table), 'file');
+}
+
+export function arrowIpcToCanonical(kind: FileKind, bytes: Uint8Array, fileName?: string): CanonicalTable {
+  return arrowToCanonical(kind, tableFromIPC(bytes), fileName);
+}
+
+export function writeArrowIpc(table: CanonicalTable, path: string): void {
+  writeFileSync(path, canonicalToArrowIpc(table));
+}

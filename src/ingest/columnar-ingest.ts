@@ -1,0 +1,389 @@
+import { formatIsoDate } from '../calendar/days.js';
+import { ConfigError, InputError } from './errors.js';
+import type { DateFormat, FeedProfile } from './profile.js';
+import type { RejectedRow } from './records.js';
+import { numberStyle, numericDateReadings, parseDateText, parseNumberText, type NumberStyle } from './scalars.js';
+import { CANONICAL_COLUMNS, type ColumnSpec, type FileKind } from './schema.js';
+import { NULL_BOOLEAN, NULL_DATE, type CanonicalTable, type Column, type IngestResult } from './table.js';
+
+/**
+ * The format-neutral half of reading a columnar file (Arrow IPC, Parquet). A format reader only
+ * turns each source column into a `SourceColumn`; this module maps those onto the canonical
+ * columns, parses text with the profile's rules, rejects unreadable rows and builds the result.
+ * Everything works column by column over typed arrays; text is converted once per distinct value.
+ */
+
+/** One source column as the file typed it. Missing values: NULL_DATE, NaN, code −1, NULL_BOOLEAN. */
+export type SourceColumn =
+  | { readonly form: 'days'; readonly days: Int32Array }
+  | { readonly form: 'number'; readonly values: Float64Array }
+  | { readonly form: 'text'; readonly codes: Int32Array; readonly dictionary: readonly string[] }
+  | { readonly form: 'boolean'; readonly values: Uint8Array };
+
+/** What a format reader knows about a file once it has opened it. */
+export interface ColumnarFile {
+  readonly fileName: string;
+  readonly rowCount: number;
+  readonly columnNames: readonly string[];
+  /** Reads one source column by its name in the file. */
+  readonly readColumn: (sourceName: string) => SourceColumn;
+}
+
+/** Finds the source name of a canonical column: the profile's mapping first, then the canonical name. */
+export function findSourceName(
+  canonical: string,
+  columnNames: readonly string[],
+  profile: FeedProfile,
+): string | undefined {
+  const wanted = [profile.columns[canonical], canonical].filter((name): name is string => name !== undefined);
+  for (const name of wanted) if (columnNames.includes(name)) return name;
+  for (const name of wanted) {
+    const folded = name.trim().toLowerCase();
+    const match = columnNames.find((found) => found.trim().toLowerCase() === folded);
+    if (match !== undefined) return match;
+  }
+  return undefined;
+}
+
+/** Reads every canonical column of a kind from a columnar file and applies the row rules. */
+export function ingestColumnarFile(file: ColumnarFile, kind: FileKind, profile: FeedProfile): IngestResult {
+  const specs = CANONICAL_COLUMNS[kind];
+  const found: FoundColumn[] = [];
+  for (const spec of specs) {
+    const sourceName = findSourceName(spec.name, file.columnNames, profile);
+    if (sourceName === undefined) {
+      if (spec.required) throw missingKindColumnError(file, kind, spec, profile);
+      continue;
+    }
+    const source = file.readColumn(sourceName);
+    const converted = toCanonicalColumn(spec, source, profile, { fileName: file.fileName, sourceName });
+    found.push({ spec, sourceName, source, converted });
+  }
+  return assembleResult(file, kind, found);
+}
+
+function missingKindColumnError(file: ColumnarFile, kind: FileKind, spec: ColumnSpec, profile: FeedProfile): InputError {
+  const mapped = profile.columns[spec.name];
+  const looked = mapped && mapped !== spec.name ? `"${mapped}" (mapped to ${spec.name})` : `"${spec.name}"`;
+  const found = file.columnNames.length > 0 ? file.columnNames.join(', ') : 'none';
+  return new InputError(
+    `${file.fileName} has no column ${looked}, which a ${kind} file needs (columns found: ${found}); rename the column or map it in the feed profile's columns.`,
+  );
+}
+
+interface FoundColumn {
+  readonly spec: ColumnSpec;
+  readonly sourceName: string;
+  readonly source: SourceColumn;
+  readonly converted: Column;
+}
+
+interface ConversionContext {
+  readonly fileName: string;
+  readonly sourceName: string;
+}
+
+/** Converts a source column to the canonical type of its spec; values that do not convert become missing. */
+export function toCanonicalColumn(
+  spec: ColumnSpec,
+  source: SourceColumn,
+  profile: FeedProfile,
+  context: ConversionContext,
+): Column {
+  switch (spec.type) {
+    case 'id':
+    case 'text':
+      return toText(source);
+    case 'date':
+      return toDates(source, profile.date_format, context);
+    case 'number':
+      return toNumbers(source, numberStyle(profile.decimal, profile.thousands));
+    case 'boolean':
+      return toBooleans(source);
+  }
+}
+
+type TextColumn = Extract<Column, { type: 'text' }>;
+
+function toText(source: SourceColumn): TextColumn {
+  if (source.form === 'text') return { type: 'text', codes: source.codes, dictionary: source.dictionary };
+  const encoder = new TextDictionaryBuilder(source.form === 'days' ? source.days.length : source.values.length);
+  for (let row = 0; row < encoder.codes.length; row++) encoder.set(row, displayValue(source, row));
+  return encoder.finish();
+}
+
+/** The value of a non-text source cell as text, or null when missing. */
+function displayValue(source: SourceColumn, row: number): string | null {
+  switch (source.form) {
+    case 'text':
+      return source.codes[row] < 0 ? null : source.dictionary[source.codes[row]];
+    case 'days':
+      return source.days[row] === NULL_DATE ? null : formatIsoDate(source.days[row]);
+    case 'number':
+      return Number.isNaN(source.values[row]) ? null : String(source.values[row]);
+    case 'boolean':
+      return source.values[row] === NULL_BOOLEAN ? null : source.values[row] === 1 ? 'true' : 'false';
+  }
+}
+
+function toDates(source: SourceColumn, format: DateFormat, context: ConversionContext): Column {
+  if (source.form === 'days') return { type: 'date', values: source.days };
+  const text = toText(source);
+  const resolved = resolveDateFormat(text.dictionary, format, text.codes, context);
+  const daysOfCode = Int32Array.from(text.dictionary, (entry) => parseDateText(entry, resolved) ?? NULL_DATE);
+  return { type: 'date', values: mapCodes(text.codes, daysOfCode, NULL_DATE, Int32Array) };
+}
+
+function toNumbers(source: SourceColumn, style: NumberStyle): Column {
+  if (source.form === 'number') return { type: 'number', values: source.values };
+  if (source.form !== 'text') return { type: 'number', values: new Float64Array(rowCountOf(source)).fill(NaN) };
+  const valueOfCode = Float64Array.from(source.dictionary, (entry) => parseNumberText(entry, style));
+  return { type: 'number', values: mapCodes(source.codes, valueOfCode, NaN, Float64Array) };
+}
+
+function toBooleans(source: SourceColumn): Column {
+  if (source.form === 'boolean') return { type: 'boolean', values: source.values };
+  const values = new Uint8Array(rowCountOf(source)).fill(NULL_BOOLEAN);
+  if (source.form === 'number') {
+    source.values.forEach((value, row) => (values[row] = value === 1 ? 1 : value === 0 ? 0 : NULL_BOOLEAN));
+  } else if (source.form === 'text') {
+    const valueOfCode = Uint8Array.from(source.dictionary, parseBooleanText);
+    return { type: 'boolean', values: mapCodes(source.codes, valueOfCode, NULL_BOOLEAN, Uint8Array) };
+  }
+  return { type: 'boolean', values };
+}
+
+const TRUE_WORDS = new Set(['true', 't', 'yes', 'y', '1']);
+const FALSE_WORDS = new Set(['false', 'f', 'no', 'n', '0']);
+
+/** `true`/`yes`/`y`/`1` → 1, `false`/`no`/`n`/`0` → 0 (any case), anything else → NULL_BOOLEAN. */
+export function parseBooleanText(text: string): number {
+  const word = text.trim().toLowerCase();
+  return TRUE_WORDS.has(word) ? 1 : FALSE_WORDS.has(word) ? 0 : NULL_BOOLEAN;
+}
+
+function mapCodes<T extends Int32Array | Float64Array | Uint8Array>(
+  codes: Int32Array,
+  valueOfCode: T,
+  missing: number,
+  Output: { new (length: number): T },
+): T {
+  const values = new Output(codes.length);
+  for (let row = 0; row < codes.length; row++) values[row] = codes[row] < 0 ? missing : valueOfCode[codes[row]];
+  return values;
+}
+
+/**
+ * Under `auto`, numeric dates such as 03/04/2026 need the file to prove their order: a value
+ * like 31/01/2026 proves day-first. Proof both ways, or none with ambiguous values, stops the run.
+ */
+export function resolveDateFormat(
+  dictionary: readonly string[],
+  format: DateFormat,
+  codes: Int32Array,
+  context: ConversionContext,
+): DateFormat {
+  if (format !== 'auto') return format;
+  let dayFirstProof: string | undefined;
+  let monthFirstProof: string | undefined;
+  let ambiguous: string | undefined;
+  for (const entry of dictionary) {
+    if (parseDateText(entry, 'auto') !== null) continue;
+    const readings = numericDateReadings(entry);
+    if (!readings) continue;
+    if (readings.dayFirst && readings.monthFirst) ambiguous ??= entry;
+    else if (readings.dayFirst) dayFirstProof ??= entry;
+    else if (readings.monthFirst) monthFirstProof ??= entry;
+  }
+  const where = (text: string) => `${context.fileName} record ${firstRecordWith(dictionary, codes, text)}`;
+  if (dayFirstProof !== undefined && monthFirstProof !== undefined) {
+    throw new ConfigError(
+      `${where(monthFirstProof)} has the date "${monthFirstProof}" in column ${context.sourceName}, which only reads month-first while "${dayFirstProof}" only reads day-first; set date_format in the feed profile to the order the vendor uses.`,
+    );
+  }
+  if (dayFirstProof !== undefined) return 'day-first';
+  if (monthFirstProof !== undefined) return 'month-first';
+  if (ambiguous !== undefined) {
+    throw new ConfigError(
+      `${where(ambiguous)} has the date "${ambiguous}" in column ${context.sourceName}, which reads both day-first and month-first; set date_format to day-first or month-first in the feed profile.`,
+    );
+  }
+  return 'auto';
+}
+
+function firstRecordWith(dictionary: readonly string[], codes: Int32Array, text: string): number {
+  const code = dictionary.indexOf(text);
+  return codes.indexOf(code) + 1;
+}
+
+function rowCountOf(source: SourceColumn): number {
+  return source.form === 'days' ? source.days.length : source.form === 'text' ? source.codes.length : source.values.length;
+}
+
+function isMissing(column: Column, row: number): boolean {
+  switch (column.type) {
+    case 'date':
+      return column.values[row] === NULL_DATE;
+    case 'number':
+      return Number.isNaN(column.values[row]);
+    case 'text':
+      return column.codes[row] < 0;
+    case 'boolean':
+      return column.values[row] === NULL_BOOLEAN;
+  }
+}
+
+function isPresent(source: SourceColumn, row: number): boolean {
+  return displayValue(source, row) !== null;
+}
+
+const NO_PROBLEM = -1;
+
+/**
+ * For each row, the index (into `found`) of the first column that makes it unreadable, or −1, and
+ * that column's complaint. A value that is missing where the column is not nullable, a value that
+ * is present but does not convert, and a text value its column does not allow all reject the row.
+ */
+function findProblems(found: readonly FoundColumn[], rowCount: number) {
+  const problemOf = new Int16Array(rowCount).fill(NO_PROBLEM);
+  found.forEach(({ spec, source, converted }, index) => {
+    const complaintOfCode = textComplaints(spec, converted);
+    for (let row = 0; row < rowCount; row++) {
+      if (problemOf[row] !== NO_PROBLEM) continue;
+      if (isMissing(converted, row)) {
+        if (!spec.nullable || isPresent(source, row)) problemOf[row] = index;
+      } else if (complaintOfCode && complaintOfCode[(converted as TextColumn).codes[row]] !== null) {
+        problemOf[row] = index;
+      }
+    }
+  });
+  return problemOf;
+}
+
+/** A text column's validation run once per distinct value; null when the column has no rule. */
+function textComplaints(spec: ColumnSpec, column: Column): (string | null)[] | null {
+  if (column.type !== 'text' || !spec.validate) return null;
+  return column.dictionary.map(spec.validate);
+}
+
+function assembleResult(file: ColumnarFile, kind: FileKind, found: readonly FoundColumn[]): IngestResult {
+  const problemOf = findProblems(found, file.rowCount);
+  const acceptedRows: number[] = [];
+  const rejected: RejectedRow[] = [];
+  for (let row = 0; row < file.rowCount; row++) {
+    if (problemOf[row] === NO_PROBLEM) acceptedRows.push(row);
+    else rejected.push(rejectedRow(file.fileName, found, row, found[problemOf[row]]));
+  }
+  const keep = Int32Array.from(acceptedRows);
+  const columns: Record<string, Column> = {};
+  for (const { spec, source, converted } of found) {
+    columns[spec.name] = gatherColumn(converted, keep);
+    if (spec.keepsText) columns[`${spec.name}_text`] = gatherColumn(toText(source), keep);
+  }
+  const lines = keep.map((row) => row + 1);
+  const table: CanonicalTable = { kind, length: keep.length, lines, columns };
+  return {
+    file: file.fileName,
+    kind,
+    table,
+    rejected,
+    rows: { read: file.rowCount, accepted: keep.length, rejected: rejected.length },
+  };
+}
+
+function rejectedRow(fileName: string, found: readonly FoundColumn[], row: number, culprit: FoundColumn): RejectedRow {
+  const record: Record<string, string | number | boolean | null> = {};
+  for (const { sourceName, source } of found) record[sourceName] = rawValue(source, row);
+  return { file: fileName, line: row + 1, raw: JSON.stringify(record), reason: problemReason(culprit, row) };
+}
+
+function rawValue(source: SourceColumn, row: number): string | number | boolean | null {
+  if (source.form === 'number') return Number.isNaN(source.values[row]) ? null : source.values[row];
+  if (source.form === 'boolean') return source.values[row] === NULL_BOOLEAN ? null : source.values[row] === 1;
+  return displayValue(source, row);
+}
+
+const TYPE_WORDS = { id: 'an id', text: 'text', date: 'a date', number: 'a number', boolean: 'true or false' } as const;
+
+function problemReason({ spec, sourceName, source, converted }: FoundColumn, row: number): string {
+  const label = sourceName === spec.name ? spec.name : `${sourceName} (${spec.name})`;
+  const shown = displayValue(source, row);
+  if (shown === null) return `${label} is missing.`;
+  if (!isMissing(converted, row) && converted.type === 'text' && spec.validate) {
+    return `${spec.validate(converted.dictionary[converted.codes[row]])}.`;
+  }
+  return `${label} ${JSON.stringify(shown)} is not ${TYPE_WORDS[spec.type]}.`;
+}
+
+function gatherColumn(column: Column, keep: Int32Array): Column {
+  switch (column.type) {
+    case 'date':
+      return { type: 'date', values: gather(column.values, keep, Int32Array) };
+    case 'number':
+      return { type: 'number', values: gather(column.values, keep, Float64Array) };
+    case 'boolean':
+      return { type: 'boolean', values: gather(column.values, keep, Uint8Array) };
+    case 'text':
+      return compactDictionary(gather(column.codes, keep, Int32Array), column.dictionary);
+  }
+}
+
+function gather<T extends Int32Array | Float64Array | Uint8Array>(
+  values: T,
+  keep: Int32Array,
+  Output: { new (length: number): T },
+): T {
+  const out = new Output(keep.length);
+  for (let i = 0; i < keep.length; i++) out[i] = values[keep[i]];
+  return out;
+}
+
+/** Renumbers codes so the dictionary holds only the values in use, in order of first appearance. */
+export function compactDictionary(codes: Int32Array, dictionary: readonly string[]): TextColumn {
+  const newCodeOf = new Int32Array(dictionary.length).fill(-1);
+  const kept: string[] = [];
+  const out = new Int32Array(codes.length);
+  for (let row = 0; row < codes.length; row++) {
+    const code = codes[row];
+    if (code < 0) {
+      out[row] = -1;
+      continue;
+    }
+    if (newCodeOf[code] < 0) newCodeOf[code] = kept.push(dictionary[code]) - 1;
+    out[row] = newCodeOf[code];
+  }
+  return { type: 'text', codes: out, dictionary: kept };
+}
+
+/**
+ * Builds a text column value by value, giving equal strings one code. Values are trimmed and blank
+ * ones count as missing, as in a CSV cell.
+ */
+export class TextDictionaryBuilder {
+  readonly codes: Int32Array;
+  private readonly dictionary: string[] = [];
+  private readonly codeOf = new Map<string, number>();
+
+  constructor(length: number) {
+    this.codes = new Int32Array(length);
+  }
+
+  set(row: number, value: string | null | undefined): void {
+    this.codes[row] = this.codeFor(value);
+  }
+
+  codeFor(untrimmed: string | null | undefined): number {
+    const value = untrimmed?.trim();
+    if (value === undefined || value === '') return -1;
+    let code = this.codeOf.get(value);
+    if (code === undefined) {
+      code = this.dictionary.push(value) - 1;
+      this.codeOf.set(value, code);
+    }
+    return code;
+  }
+
+  finish(): TextColumn {
+    return { type: 'text', codes: this.codes, dictionary: this.dictionary };
+  }
+}
