@@ -10,6 +10,8 @@ import { CANONICAL_COLUMNS, type ColumnSpec, type FileKind } from './schema.js';
 import type { Column, IngestResult } from './table.js';
 
 const QUOTE_ESCAPE = /""/g;
+/** textCode's answer for an id holding a quote in an unquoted field. */
+const STRAY_QUOTE = -2;
 
 /** One canonical column being filled from one field of the file. */
 interface ColumnPlan {
@@ -49,7 +51,7 @@ export function readCsvBuffer(input: Uint8Array, fileName: string, kind: FileKin
   const header = readHeader(bytes, begin, delimiter, quote, fileName, kind);
   const plans = planColumns(header.names, kind, profile, fileName);
   const dateFormat = resolveDateFormat(bytes, header.bodyStart, header.names.length, delimiter, quote, plans, profile, fileName);
-  const reader = new RowReader(bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands));
+  const reader = new RowReader(bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands), quote);
   const scanner = new CsvRowScanner(bytes, header.bodyStart, delimiter, quote, header.names.length + 1);
   scanner.next(); // the header row itself
   while (scanner.next()) {
@@ -75,8 +77,11 @@ function chooseDelimiter(bytes: Buffer, begin: number, profile: FeedProfile, fil
 function readHeader(bytes: Buffer, begin: number, delimiter: number, quote: number, fileName: string, kind: FileKind) {
   const scanner = new CsvRowScanner(bytes, begin, delimiter, quote, 4096);
   const expected = CANONICAL_COLUMNS[kind].filter((c) => c.required).map((c) => c.name).join(', ');
-  if (!scanner.next() || scanner.isBlank()) {
-    throw new InputError(`${fileName}, line 1: the file is empty or has no header row; send a header with the columns ${expected}.`);
+  if (!scanner.next()) {
+    throw new InputError(`${fileName}, line 1: the file is empty; send a header row with the columns ${expected}.`);
+  }
+  if (scanner.isBlank()) {
+    throw new InputError(`${fileName}, line 1: the first line is blank, so the file has no header row; put the header with the columns ${expected} on line 1.`);
   }
   if (scanner.error) throw new InputError(`${fileName}, line 1: the header cannot be read because ${scanner.error}; fix the header row.`);
   const names: string[] = [];
@@ -143,6 +148,7 @@ class RowReader {
     private readonly plans: ColumnPlan[],
     private readonly dateFormat: DateFormat,
     private readonly numbers: NumberStyle,
+    private readonly quote: number,
   ) {}
 
   take(scanner: CsvRowScanner, expectedFields: number): void {
@@ -156,6 +162,12 @@ class RowReader {
       const fields = `${scanner.fieldCount} field${scanner.fieldCount === 1 ? '' : 's'}`;
       return this.reject(scanner, `expected ${expectedFields} fields as in the header, found ${fields}`);
     }
+    if (scanner.spansLines && this.lineBreakOutsideText(scanner)) {
+      // An id, date or number never holds a line break: a stray quote swallowed the lines after
+      // it. Keep only the first physical line as the rejected row and read the others again.
+      scanner.failOnPhysicalLine('a quoted field runs past the end of the line (unbalanced quote)');
+      return this.reject(scanner, scanner.error!);
+    }
     const row = this.accepted;
     if (row >= this.lines.length) this.growTo(row + 1);
     for (const plan of this.plans) {
@@ -164,6 +176,18 @@ class RowReader {
     }
     this.lines[row] = scanner.line;
     this.accepted++;
+  }
+
+  /** True when a field of a column other than free text holds a line break. */
+  private lineBreakOutsideText(scanner: CsvRowScanner): boolean {
+    const bytes = this.bytes;
+    for (const plan of this.plans) {
+      if (plan.spec.type === 'text' || !scanner.quoted[plan.field]) continue;
+      for (let i = scanner.starts[plan.field]; i < scanner.ends[plan.field]; i++) {
+        if (bytes[i] === 10 || bytes[i] === 13) return true;
+      }
+    }
+    return false;
   }
 
   /** Writes one field into its column at `row`; returns why it cannot, or null. */
@@ -182,6 +206,15 @@ class RowReader {
       case 'id':
       case 'text': {
         const code = this.textCode(plan, start, end, quoted);
+        if (code === STRAY_QUOTE) {
+          return `${plan.spec.name} "${this.text(start, end).trim()}" has a quote inside an unquoted field (unbalanced quote)`;
+        }
+        if ((builder as TextBuilder).dictionary[code] === '') {
+          // Only space-like characters beyond space and tab (such as U+00A0): empty once trimmed.
+          if (!plan.spec.nullable) return `${plan.spec.name} is empty`;
+          builder.setMissing(row);
+          return null;
+        }
         const problem = plan.spec.validate?.((builder as TextBuilder).dictionary[code]) ?? null;
         (builder as TextBuilder).codes[row] = code;
         return problem;
@@ -208,9 +241,13 @@ class RowReader {
     }
   }
 
+  /** The dictionary code of a text field, or STRAY_QUOTE for an id with a quote in an unquoted field. */
   private textCode(plan: ColumnPlan, start: number, end: number, quoted: number): number {
     if (!quoted && end - start === plan.lastEnd - plan.lastStart && this.sameBytes(start, plan.lastStart, end - start)) {
       return plan.lastCode;
+    }
+    if (!quoted && plan.spec.type === 'id' && this.holdsByte(start, end, this.quote)) {
+      return STRAY_QUOTE;
     }
     const code = (plan.builder as TextBuilder).codeOf(decodeField(this.bytes, start, end, quoted).trim());
     if (!quoted) {
@@ -219,6 +256,12 @@ class RowReader {
       plan.lastCode = code;
     }
     return code;
+  }
+
+  private holdsByte(start: number, end: number, byte: number): boolean {
+    const bytes = this.bytes;
+    for (let i = start; i < end; i++) if (bytes[i] === byte) return true;
+    return false;
   }
 
   private sameBytes(a: number, b: number, length: number): boolean {

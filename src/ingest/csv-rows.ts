@@ -2,7 +2,8 @@
  * Splits CSV bytes into rows and fields without building strings: each row leaves the byte
  * range of every field in `starts`/`ends`. Quoted fields follow RFC 4180 (a doubled quote is a
  * literal quote, a quoted field may span lines). A row whose quotes do not balance is cut back
- * to its own physical line and flagged, so the rows after it are still read.
+ * to its own physical line and flagged, so the rows after it are still read. A line ends at LF,
+ * CRLF or a lone CR; line numbers count physical lines that way.
  */
 const LF = 10;
 const CR = 13;
@@ -55,7 +56,7 @@ export class CsvRowScanner {
       if (position < length && bytes[position] === this.quote) {
         const close = this.closingQuote(position + 1);
         if (close < 0) return this.failOnPhysicalLine('a quoted field is never closed (unbalanced quote)');
-        if (!this.spansLines && bytes.subarray(fieldStart, close).includes(LF)) this.spansLines = true;
+        if (!this.spansLines && hasLineBreak(bytes, fieldStart, close)) this.spansLines = true;
         this.record(fieldStart + 1, close, 1);
         position = close + 1;
         if (position < length && bytes[position] !== this.delimiter && bytes[position] !== LF && bytes[position] !== CR) {
@@ -77,7 +78,7 @@ export class CsvRowScanner {
     }
     this.rowEnd = position;
     this.position = skipLineEnding(bytes, position);
-    this.nextLine += this.spansLines ? 1 + countLineFeeds(bytes, this.rowStart, this.rowEnd) : 1;
+    this.nextLine += this.spansLines ? 1 + countLineBreaks(bytes, this.rowStart, this.rowEnd) : 1;
     return true;
   }
 
@@ -128,8 +129,21 @@ function skipLineEnding(bytes: Uint8Array, position: number): number {
   return position;
 }
 
-function countLineFeeds(bytes: Uint8Array, start: number, end: number): number {
+/** True when the range holds a line break (LF, CR or CRLF): a quoted field that spans lines. */
+function hasLineBreak(bytes: Uint8Array, start: number, end: number): boolean {
+  for (let i = start; i < end; i++) if (bytes[i] === LF || bytes[i] === CR) return true;
+  return false;
+}
+
+/** Line breaks in the range, counting CRLF once and a lone CR or LF once, as the scanner does. */
+function countLineBreaks(bytes: Uint8Array, start: number, end: number): number {
   let count = 0;
-  for (let i = start; i < end; i++) if (bytes[i] === LF) count++;
+  for (let i = start; i < end; i++) {
+    if (bytes[i] === LF) count++;
+    else if (bytes[i] === CR) {
+      count++;
+      if (bytes[i + 1] === LF && i + 1 < end) i++;
+    }
+  }
   return count;
 }

@@ -1,7 +1,7 @@
 import { CsvRowScanner } from './csv-rows.js';
 import { ConfigError } from './errors.js';
 import type { DateFormat, FeedProfile } from './profile.js';
-import { numericDateReadings } from './scalars.js';
+import { numericDateReadings, parseDateText } from './scalars.js';
 import type { ColumnSpec } from './schema.js';
 
 /**
@@ -38,13 +38,17 @@ export function resolveDateFormat(
   if (dateFields.length === 0) return 'auto';
   const scanner = new CsvRowScanner(bytes, bodyStart, delimiter, quote, fieldCount + 1);
   scanner.next();
-  const evidence = gatherEvidence(scanner, bytes, dateFields);
+  const evidence = gatherEvidence(scanner, bytes, dateFields, fieldCount);
   if (!evidence) return 'auto';
   return decide(evidence, fileName);
 }
 
-/** Scans the date fields; null when the first data row's dates are not numeric day–month forms. */
-function gatherEvidence(scanner: CsvRowScanner, bytes: Buffer, dateFields: readonly number[]): Evidence | null {
+/**
+ * Scans the date fields of the rows that split into the header's number of fields. Returns null
+ * (keep `auto`) when the first such row with a readable date writes it in a form that needs no
+ * order (ISO, `YYYYMMDD`, a month name); rows whose dates are unreadable either way do not count.
+ */
+function gatherEvidence(scanner: CsvRowScanner, bytes: Buffer, dateFields: readonly number[], fieldCount: number): Evidence | null {
   const evidence: Evidence = {
     dayFirstLine: 0,
     dayFirstText: '',
@@ -53,19 +57,22 @@ function gatherEvidence(scanner: CsvRowScanner, bytes: Buffer, dateFields: reado
     ambiguousLine: 0,
     ambiguousText: '',
   };
-  let firstRow = true;
+  let sawNumeric = false;
   while (scanner.next()) {
-    if (scanner.isBlank() || scanner.error !== null) continue;
+    if (scanner.isBlank() || scanner.error !== null || scanner.fieldCount !== fieldCount) continue;
     for (const field of dateFields) {
-      if (field >= scanner.fieldCount) continue;
       const text = bytes.toString('utf8', scanner.starts[field], scanner.ends[field]).trim();
-      const readings = text === '' ? null : numericDateReadings(text);
-      if (firstRow && readings === null && text !== '') return null;
-      if (readings) record(evidence, readings, scanner.line, text);
+      if (text === '') continue;
+      const readings = numericDateReadings(text);
+      if (readings) {
+        sawNumeric = true;
+        record(evidence, readings, scanner.line, text);
+      } else if (!sawNumeric && parseDateText(text, 'auto') !== null) {
+        return null;
+      }
     }
-    firstRow = false;
   }
-  return evidence;
+  return sawNumeric ? evidence : null;
 }
 
 function record(evidence: Evidence, readings: { dayFirst: boolean; monthFirst: boolean }, line: number, text: string) {
@@ -86,6 +93,7 @@ function decide(evidence: Evidence, fileName: string): DateFormat {
   }
   if (evidence.dayFirstLine) return 'day-first';
   if (evidence.monthFirstLine) return 'month-first';
+  if (!evidence.ambiguousLine) return 'auto'; // only impossible dates such as 13/13/2026: each row is rejected
   throw new ConfigError(
     `${fileName}, line ${evidence.ambiguousLine}: dates such as "${evidence.ambiguousText}" read both day-first and month-first and no row settles which; set date_format: day-first or month-first in the feed profile.`,
   );

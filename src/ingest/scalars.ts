@@ -30,17 +30,20 @@ export function numberStyle(decimal: string, thousands: string): NumberStyle {
 
 /**
  * Parses a decimal number such as `-1,234.56`, `12.3%` (read as 0.123) or `1.5e-3`.
- * Up to 15 significant digits take an exact integer path (mantissa / 10^k is correctly rounded,
- * so it equals `Number()`); longer or exponent forms fall back to `Number()` on cleaned text.
+ * Up to 15 significant digits take an exact integer path: the digits form an exact integer m
+ * and the value is m / 10^k with k the number of decimals (plus 2 for a percent sign), one
+ * correctly rounded division, so it equals `Number()` of the same text. Longer or exponent forms
+ * fall back to `Number()` on cleaned text. Thousands separators must group exactly three digits
+ * (the first group one to three, not starting with 0) and may only appear before the decimal mark.
  */
 export function parseNumberBytes(bytes: Uint8Array, start: number, end: number, style: NumberStyle): number {
   while (start < end && (bytes[start] === SPACE || bytes[start] === TAB)) start++;
   while (end > start && (bytes[end - 1] === SPACE || bytes[end - 1] === TAB)) end--;
-  let scale = 1;
+  let percent = false;
   if (end > start && bytes[end - 1] === PERCENT) {
-    scale = 100;
+    percent = true;
     end--;
-    while (end > start && bytes[end - 1] === SPACE) end--;
+    while (end > start && (bytes[end - 1] === SPACE || bytes[end - 1] === TAB)) end--;
   }
   if (start === end) return NaN;
   let i = start;
@@ -62,30 +65,52 @@ export function parseNumberBytes(bytes: Uint8Array, start: number, end: number, 
       if (groupDigits >= 0 && groupDigits !== 3) return NaN;
       seenDecimal = true;
     } else if (c === style.thousands && !seenDecimal && digits > 0) {
-      if (groupDigits >= 0 && groupDigits !== 3) return NaN;
+      if (groupDigits >= 0) {
+        if (groupDigits !== 3) return NaN;
+      } else if (digits > 3 || mantissa === 0) {
+        return NaN; // the first group is 1 to 3 digits and does not start with 0
+      }
       groupDigits = 0;
     } else if ((c === 101 || c === 69) && digits > 0) {
-      return slowNumber(bytes, start, end, style, scale);
+      if (!seenDecimal && groupDigits >= 0 && groupDigits !== 3) return NaN;
+      return slowNumber(bytes, start, end, style, percent);
     } else {
       return NaN;
     }
   }
   if (digits === 0 || (!seenDecimal && groupDigits >= 0 && groupDigits !== 3)) return NaN;
-  if (digits > 15) return slowNumber(bytes, start, end, style, scale);
-  const magnitude = fractionDigits === 0 ? mantissa : mantissa / POWERS_OF_TEN[fractionDigits];
-  const value = negative ? -magnitude : magnitude;
-  return scale === 1 ? value : value / scale;
+  if (digits > 15) return slowNumber(bytes, start, end, style, percent);
+  // A percent sign moves the decimal point two places: one exact division, never two roundings.
+  const exponent = percent ? fractionDigits + 2 : fractionDigits;
+  const magnitude = exponent === 0 ? mantissa : mantissa / POWERS_OF_TEN[exponent];
+  return negative ? -magnitude : magnitude;
 }
 
-function slowNumber(bytes: Uint8Array, start: number, end: number, style: NumberStyle, scale: number): number {
+const PLAIN_NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+
+function slowNumber(bytes: Uint8Array, start: number, end: number, style: NumberStyle, percent: boolean): number {
   let text = '';
+  let afterMark = false;
   for (let i = start; i < end; i++) {
     const c = bytes[i];
-    if (c === style.thousands) continue;
+    if (c === style.thousands) {
+      if (afterMark) return NaN; // a separator after the decimal mark or in the exponent
+      continue;
+    }
+    if (c === style.decimal || c === 101 || c === 69) afterMark = true;
     text += c === style.decimal ? '.' : String.fromCharCode(c);
   }
-  if (!/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(text)) return NaN;
-  const value = Number(text) / scale;
+  const match = PLAIN_NUMBER.exec(text);
+  if (!match) return NaN;
+  let value: number;
+  if (percent) {
+    // Shift the exponent rather than divide by 100, so `1.2345678901234567%` rounds once.
+    const exponentAt = match[2] === undefined ? text.length : text.length - match[2].length;
+    const exponent = match[2] === undefined ? 0 : Number(match[2].slice(1));
+    value = Number(`${text.slice(0, exponentAt)}e${exponent - 2}`);
+  } else {
+    value = Number(text);
+  }
   return Number.isFinite(value) ? value : NaN;
 }
 
@@ -119,6 +144,20 @@ function fourDigits(bytes: Uint8Array, at: number): number {
 }
 
 const MONTH_NAMES = ['jan', 'feb', 'mar', 'apr', 'may', 'jun', 'jul', 'aug', 'sep', 'oct', 'nov', 'dec'];
+const FULL_MONTH_NAMES = [
+  'january', 'february', 'march', 'april', 'may', 'june',
+  'july', 'august', 'september', 'october', 'november', 'december',
+];
+
+/** 1..12 for an English month name (`Dec`, `December`, `Sept`, any case), else 0. */
+function monthFromName(part: string): number {
+  const word = part.toLowerCase();
+  const short = MONTH_NAMES.indexOf(word);
+  if (short >= 0) return short + 1;
+  const full = FULL_MONTH_NAMES.indexOf(word);
+  if (full >= 0) return full + 1;
+  return word === 'sept' ? 9 : 0;
+}
 
 /** The parts of a date written with separators: numbers, or a month name (1..12) marked as such. */
 interface DateParts {
@@ -140,8 +179,8 @@ function splitDate(text: string): DateParts | null {
       numbers[k] = Number(part);
       widths[k] = part.length;
     } else {
-      const month = MONTH_NAMES.indexOf(part.slice(0, 3).toLowerCase()) + 1;
-      if (month === 0 || monthNameAt >= 0 || !/^[A-Za-z]{3,9}$/.test(part)) return null;
+      const month = monthFromName(part);
+      if (month === 0 || monthNameAt >= 0) return null;
       monthNameAt = k;
       numbers[k] = month;
       widths[k] = part.length;
