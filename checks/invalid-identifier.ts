@@ -1,0 +1,55 @@
+import type { FeedCheck, FeedContext } from '../src/checks/check.js';
+import type { Finding } from '../src/findings.js';
+import { ISO_4217_CODES } from '../src/checks/iso4217.js';
+import { isinCheckDigit, isValidIsin, looksLikeIsin } from '../src/checks/isin.js';
+import { makeFinding } from '../src/checks/support.js';
+
+/**
+ * Identifiers that cannot be right: series ids shaped like an ISIN whose ISO 6166 check digit
+ * is wrong, and master currencies that are not active ISO 4217 codes (such as `GBX` for pence
+ * or `RMB`, common in vendor files but not ISO codes).
+ */
+export const invalidIdentifier: FeedCheck<Record<string, never>> = {
+  id: 'invalid_identifier',
+  scope: 'feed',
+  purpose: 'ISIN-shaped ids with a wrong check digit and currencies that are not ISO 4217 codes.',
+  defaults: {},
+  run(context) {
+    return [...badIsins(context), ...badCurrencies(context)];
+  },
+};
+
+function badIsins({ nav, master }: FeedContext): Finding[] {
+  const ids = [...new Set([...nav.ids, ...(master ?? []).map((record) => record.series_id)])].sort();
+  return ids
+    .filter((id) => looksLikeIsin(id) && !isValidIsin(id))
+    .map((id) =>
+      makeFinding({
+        check: 'invalid_identifier',
+        severity: 'error',
+        seriesId: id,
+        start: null,
+        end: null,
+        message: `${id} looks like an ISIN but its check digit should be ${isinCheckDigit(id.slice(0, 11))}, not ${id[11]}; the identifier is mistyped.`,
+        evidence: { kind: 'isin_check_digit', id, expected_check_digit: isinCheckDigit(id.slice(0, 11)) },
+        identity: ['isin'],
+      }),
+    );
+}
+
+function badCurrencies({ master }: FeedContext): Finding[] {
+  return (master ?? [])
+    .filter((record) => record.currency !== null && !ISO_4217_CODES.has(record.currency.trim().toUpperCase()))
+    .map((record) =>
+      makeFinding({
+        check: 'invalid_identifier',
+        severity: 'error',
+        seriesId: record.series_id,
+        start: null,
+        end: null,
+        message: `${record.series_id}'s currency "${record.currency}" in the series master is not an ISO 4217 currency code.`,
+        evidence: { kind: 'currency', currency: record.currency, master_line: record.line },
+        identity: ['currency', record.currency],
+      }),
+    );
+}

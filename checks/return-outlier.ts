@@ -1,0 +1,73 @@
+import type { SeriesCheck } from '../src/checks/check.js';
+import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
+import { SPIKE_DEFAULTS, isSpikeReversal } from './spike-reversal.js';
+import { SPLIT_DEFAULTS, splitLikeRatio } from './split-like-jump.js';
+
+interface OutlierParams {
+  threshold: number;
+  min_move: number;
+  [key: string]: number;
+}
+
+/**
+ * A day far outside the series' usual behaviour relative to its benchmark: the residual of
+ * the day's return against beta × benchmark return lies `threshold` robust standard
+ * deviations (MAD × 1.4826) from normal, and at least `min_move` in size. Daily residuals are
+ * fat-tailed, so the bar is 8 rather than the 3–4 that normal data would suggest. Days that
+ * are split-like jumps or spike reversals (judged with those checks' defaults) are left to
+ * those checks. Without a benchmark the series is judged against its own typical move.
+ */
+export const returnOutlier: SeriesCheck<OutlierParams> = {
+  id: 'return_outlier',
+  scope: 'series',
+  purpose: 'A one-day move far outside the series’ usual behaviour relative to its benchmark.',
+  defaults: { threshold: 8, min_move: 0.005 },
+  run(series, context, params) {
+    const returns = seriesReturns(series, context);
+    const findings = [];
+    for (let k = 0; k < returns.count; k++) {
+      if (!isOutlier(returns, k, params) || explainedElsewhere(returns, k)) continue;
+      const before = returns.from[k];
+      const day = returns.to[k];
+      const benchmarkMove = Number.isFinite(returns.bench[k]) ? Math.expm1(returns.bench[k]) : null;
+      findings.push(
+        makeFinding({
+          check: 'return_outlier',
+          severity: 'warning',
+          seriesId: series.id,
+          start: series.dates[day],
+          end: series.dates[day],
+          message:
+            `${series.id} moved ${percent(Math.expm1(returns.fund[k]))} on ${isoDate(series.dates[day])}` +
+            (benchmarkMove === null ? '' : ` while its benchmark moved ${percent(benchmarkMove)}`) +
+            `, ${round(Math.abs(returns.z[k]), 1)} times its usual spread; check the price.`,
+          evidence: {
+            previous: { date: isoDate(series.dates[before]), value: series.values[before], line: series.lines[before] },
+            current: { date: isoDate(series.dates[day]), value: series.values[day], line: series.lines[day] },
+            return: round(Math.expm1(returns.fund[k]), 6),
+            benchmark_return: benchmarkMove === null ? null : round(benchmarkMove, 6),
+            beta: round(returns.beta, 4),
+            residual: round(returns.residual[k], 6),
+            robust_scale: round(returns.scale, 6),
+            robust_z: round(returns.z[k], 2),
+          },
+          identity: [isoDate(series.dates[day])],
+        }),
+      );
+    }
+    return findings;
+  },
+};
+
+function isOutlier(returns: SeriesReturns, k: number, params: OutlierParams): boolean {
+  return Math.abs(returns.z[k]) >= params.threshold && Math.abs(returns.residual[k]) >= params.min_move;
+}
+
+function explainedElsewhere(returns: SeriesReturns, k: number): boolean {
+  return (
+    splitLikeRatio(returns, k, SPLIT_DEFAULTS) !== null ||
+    isSpikeReversal(returns, k, SPIKE_DEFAULTS) ||
+    (k > 0 && isSpikeReversal(returns, k - 1, SPIKE_DEFAULTS))
+  );
+}

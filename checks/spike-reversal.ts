@@ -1,0 +1,70 @@
+import type { SeriesCheck } from '../src/checks/check.js';
+import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
+
+export interface SpikeParams {
+  min_move: number;
+  min_z: number;
+  reversal_tolerance: number;
+  [key: string]: number;
+}
+
+export const SPIKE_DEFAULTS: SpikeParams = { min_move: 0.01, min_z: 6, reversal_tolerance: 0.25 };
+
+/**
+ * A large one-day move, relative to the benchmark, that the next observation undoes: the
+ * signature of a keying error. "Large" means both at least `min_move` (1 %) and at least
+ * `min_z` robust standard deviations of the series' own residual moves; "undoes" means the
+ * two days together leave less than `reversal_tolerance` of the first move.
+ */
+export const spikeReversal: SeriesCheck<SpikeParams> = {
+  id: 'spike_reversal',
+  scope: 'series',
+  purpose: 'A large one-day move that reverses the next day, as a keying error does.',
+  defaults: SPIKE_DEFAULTS,
+  run(series, context, params) {
+    const returns = seriesReturns(series, context);
+    const findings = [];
+    for (let k = 0; k + 1 < returns.count; k++) {
+      if (!isSpikeReversal(returns, k, params)) continue;
+      const before = returns.from[k];
+      const spike = returns.to[k];
+      const after = returns.to[k + 1];
+      const day = series.dates[spike];
+      findings.push(
+        makeFinding({
+          check: 'spike_reversal',
+          severity: 'error',
+          seriesId: series.id,
+          start: day,
+          end: day,
+          message: `${series.id}'s NAV of ${series.values[spike]} on ${isoDate(day)} is ${percent(Math.expm1(returns.raw[k]))} away from the day before and back the next day (${series.values[after]} on ${isoDate(series.dates[after])}); likely a keying error.`,
+          evidence: {
+            before: { date: isoDate(series.dates[before]), value: series.values[before], line: series.lines[before] },
+            spike: { date: isoDate(day), value: series.values[spike], line: series.lines[spike] },
+            after: { date: isoDate(series.dates[after]), value: series.values[after], line: series.lines[after] },
+            move: round(Math.expm1(returns.raw[k]), 6),
+            reversal: round(Math.expm1(returns.raw[k + 1]), 6),
+            robust_z: round(returns.z[k], 2),
+          },
+          identity: [isoDate(day)],
+        }),
+      );
+      k++;
+    }
+    return findings;
+  },
+};
+
+/** Step `k` is a large move and step `k + 1` takes it back. */
+export function isSpikeReversal(returns: SeriesReturns, k: number, params: SpikeParams): boolean {
+  if (k + 1 >= returns.count || returns.to[k] !== returns.from[k + 1]) return false;
+  const out = returns.residual[k];
+  const back = returns.residual[k + 1];
+  return (
+    Math.abs(out) >= params.min_move &&
+    Math.abs(returns.z[k]) >= params.min_z &&
+    Math.sign(back) === -Math.sign(out) &&
+    Math.abs(out + back) <= params.reversal_tolerance * Math.abs(out)
+  );
+}

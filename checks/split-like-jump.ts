@@ -1,0 +1,102 @@
+import type { SeriesCheck, SeriesContext } from '../src/checks/check.js';
+import type { CorporateActionRecord } from '../src/ingest/records.js';
+import type { SeriesSlice } from '../src/series/frame.js';
+import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { isoDate, makeFinding, round } from '../src/checks/support.js';
+
+export interface SplitParams {
+  ratio_tolerance: number;
+  persist_days: number;
+  [key: string]: number;
+}
+
+/** Split, consolidation and quoting-unit ratios seen in practice (cents ↔ units is 100). */
+export const SIMPLE_RATIOS = [2, 3, 4, 5, 10, 100].flatMap((r) => [r, 1 / r]);
+
+export const SPLIT_DEFAULTS: SplitParams = { ratio_tolerance: 0.02, persist_days: 3 };
+
+/** A benchmark day beyond this is itself suspect and is not used to explain a fund's move. */
+const PLAUSIBLE_BENCHMARK_DAY = 0.15;
+
+/**
+ * A one-day move whose ratio, once the benchmark's move is taken out, lies within
+ * `ratio_tolerance` of a simple ratio, that the benchmark did not make, and that persists for
+ * `persist_days` observations. When the corporate-actions file has a split or distribution
+ * inside the step that accounts for the move, the finding is kept as `info` with the action
+ * as evidence; otherwise it is an `error`.
+ */
+export const splitLikeJump: SeriesCheck<SplitParams> = {
+  id: 'split_like_jump',
+  scope: 'series',
+  purpose: 'A one-day move by a simple ratio (2, 10, 100 … or inverses) that persists and the benchmark did not make.',
+  defaults: SPLIT_DEFAULTS,
+  run(series, context, params) {
+    const returns = seriesReturns(series, context);
+    const findings = [];
+    for (let k = 0; k < returns.count; k++) {
+      const ratio = splitLikeRatio(returns, k, params);
+      if (ratio !== null) findings.push(describe(series, context, returns, k, ratio, params));
+    }
+    return findings;
+  },
+};
+
+/** The simple ratio step `k` resembles, or null when it is not a persisting split-like jump. */
+export function splitLikeRatio(returns: SeriesReturns, k: number, params: SplitParams): number | null {
+  const bench = returns.bench[k];
+  const market = Number.isFinite(bench) && Math.abs(bench) < PLAUSIBLE_BENCHMARK_DAY ? returns.beta * bench : 0;
+  const ratio = nearestSimpleRatio(returns.raw[k] - market, params.ratio_tolerance);
+  if (ratio === null) return null;
+  if (Number.isFinite(bench) && Math.abs(bench - Math.log(ratio)) < Math.log(1 + params.ratio_tolerance)) return null;
+  return persists(returns, k, Math.log(ratio), params.persist_days) ? ratio : null;
+}
+
+function nearestSimpleRatio(logMove: number, tolerance: number): number | null {
+  for (const ratio of SIMPLE_RATIOS) if (Math.abs(logMove - Math.log(ratio)) < Math.log(1 + tolerance)) return ratio;
+  return null;
+}
+
+/** The level stays nearer the new level than the old one for the next `days` steps. */
+function persists(returns: SeriesReturns, k: number, jump: number, days: number): boolean {
+  let cumulative = 0;
+  for (let j = k; j < Math.min(returns.count, k + 1 + days); j++) {
+    cumulative += returns.raw[j];
+    if (Math.abs(cumulative) < Math.abs(jump) / 2) return false;
+  }
+  return true;
+}
+
+function describe(series: SeriesSlice, context: SeriesContext, returns: SeriesReturns, k: number, ratio: number, params: SplitParams) {
+  const before = returns.from[k];
+  const after = returns.to[k];
+  const actions = context.actions.filter((a) => a.ex_date > series.dates[before] && a.ex_date <= series.dates[after]);
+  const explained = actions.length > 0 && nearestSimpleRatio(returns.fund[k], params.ratio_tolerance) === null;
+  const day = series.dates[after];
+  const move = `from ${series.values[before]} on ${isoDate(series.dates[before])} to ${series.values[after]} on ${isoDate(day)}`;
+  const ratioText = ratio >= 1 ? `×${round(ratio, 4)}` : `÷${round(1 / ratio, 4)}`;
+  return makeFinding({
+    check: 'split_like_jump',
+    severity: explained ? 'info' : 'error',
+    seriesId: series.id,
+    start: day,
+    end: day,
+    message: explained
+      ? `${series.id}'s NAV moved ${move} (${ratioText}), explained by the announced ${actions.map(actionText).join(' and ')}.`
+      : `${series.id}'s NAV moved ${move}, close to ${ratioText}, the benchmark did not, and no split or distribution is on file; check for an unannounced split or a change of quoting unit.`,
+    evidence: {
+      previous: { date: isoDate(series.dates[before]), value: series.values[before], line: series.lines[before] },
+      current: { date: isoDate(day), value: series.values[after], line: series.lines[after] },
+      ratio: round(Math.exp(returns.raw[k]), 6),
+      nearest_simple_ratio: round(ratio, 6),
+      benchmark_return: Number.isFinite(returns.bench[k]) ? round(Math.expm1(returns.bench[k]), 6) : null,
+      corporate_actions: actions.map((a) => ({ kind: a.kind, ex_date: isoDate(a.ex_date), value: a.value, line: a.line })),
+    },
+    identity: [isoDate(day)],
+  });
+}
+
+function actionText(action: CorporateActionRecord): string {
+  return action.kind === 'split'
+    ? `split of ${action.value} new units per old unit (ex-date ${isoDate(action.ex_date)})`
+    : `distribution of ${action.value} per unit (ex-date ${isoDate(action.ex_date)})`;
+}

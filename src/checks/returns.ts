@@ -1,0 +1,192 @@
+/**
+ * The return picture of one series that the move-based checks (split-like jumps, spike
+ * reversals, outliers, date shifts, benchmark fit) share. Built once per series and cached
+ * on the slice object, so five checks cost one pass.
+ *
+ * A step joins two consecutive *anchors*: usable observations (first row of a date, positive,
+ * not after the as-of) whose value differs from the previous one. Repeated values are folded
+ * into the next step, so a stale run and its catch-up read as one honest multi-day move
+ * instead of flat days followed by a jump. Each step carries the fund's log return (raw, and
+ * adjusted for announced splits and distributions), the benchmark's log return over exactly
+ * the same two dates (NaN when the benchmark lacks either date), the business days it spans
+ * and its residual against the benchmark in robust standard units.
+ */
+import type { SeriesContext } from './check.js';
+import type { SeriesSlice } from '../series/frame.js';
+import { calendarOf, median, robustScale } from './support.js';
+
+export interface SeriesReturns {
+  readonly count: number;
+  /** Slice rows where each step starts and ends. */
+  readonly from: Int32Array;
+  readonly to: Int32Array;
+  /** ln(v_to / v_from) as published. */
+  readonly raw: Float64Array;
+  /** `raw` corrected for announced corporate actions with an ex-date inside the step. */
+  readonly fund: Float64Array;
+  /** The assigned benchmark's log return over the same dates; NaN when unknown. */
+  readonly bench: Float64Array;
+  /** Positions in the benchmark slice of the step's two dates (-1 when absent). */
+  readonly benchFrom: Int32Array;
+  readonly benchTo: Int32Array;
+  /** Business days the step spans (1 for consecutive business days). */
+  readonly span: Float64Array;
+  /** fund − intercept − beta·bench; − the typical drift alone when the benchmark cannot price the step. */
+  readonly residual: Float64Array;
+  /** residual / (scale·√span): the step in robust standard units of this series. */
+  readonly z: Float64Array;
+  readonly beta: number;
+  /** Robust standard deviation of a one-business-day residual. */
+  readonly scale: number;
+  readonly hasBenchmark: boolean;
+}
+
+/** Steps whose robust z exceeds this are gross errors, left out of every fitted statistic. */
+export const GROSS_Z = 8;
+
+const cache = new WeakMap<SeriesSlice, { context: SeriesContext; returns: SeriesReturns }>();
+
+export function seriesReturns(series: SeriesSlice, context: SeriesContext): SeriesReturns {
+  const hit = cache.get(series);
+  if (hit && hit.context === context) return hit.returns;
+  const returns = computeReturns(series, context);
+  cache.set(series, { context, returns });
+  return returns;
+}
+
+function anchorRows(series: SeriesSlice, asOf: number): number[] {
+  const anchors: number[] = [];
+  let previousValue = NaN;
+  for (let i = 0; i < series.dates.length; i++) {
+    const day = series.dates[i];
+    const value = series.values[i];
+    if (day > asOf) break;
+    if (i > 0 && day === series.dates[i - 1]) continue;
+    if (!(value > 0) || !Number.isFinite(value) || value === previousValue) continue;
+    anchors.push(i);
+    previousValue = value;
+  }
+  return anchors;
+}
+
+function computeReturns(series: SeriesSlice, context: SeriesContext): SeriesReturns {
+  const anchors = anchorRows(series, context.asOf);
+  const count = Math.max(0, anchors.length - 1);
+  const from = new Int32Array(count);
+  const to = new Int32Array(count);
+  const raw = new Float64Array(count);
+  const fund = new Float64Array(count);
+  const bench = new Float64Array(count).fill(NaN);
+  const benchFrom = new Int32Array(count).fill(-1);
+  const benchTo = new Int32Array(count).fill(-1);
+  const span = new Float64Array(count);
+  const calendar = calendarOf(context);
+  const benchmark = context.benchmark;
+  const benchPositions = benchmark ? positionsInBenchmark(series, anchors, benchmark) : undefined;
+  let actionCursor = 0;
+
+  for (let k = 0; k < count; k++) {
+    const a = anchors[k];
+    const b = anchors[k + 1];
+    from[k] = a;
+    to[k] = b;
+    raw[k] = Math.log(series.values[b] / series.values[a]);
+    let adjustedEnd = series.values[b];
+    while (actionCursor < context.actions.length && context.actions[actionCursor].ex_date <= series.dates[a]) actionCursor++;
+    for (let j = actionCursor; j < context.actions.length && context.actions[j].ex_date <= series.dates[b]; j++) {
+      const action = context.actions[j];
+      adjustedEnd = action.kind === 'split' ? adjustedEnd * action.value : adjustedEnd + action.value;
+    }
+    fund[k] = Math.log(adjustedEnd / series.values[a]);
+    span[k] = Math.max(1, context.calendars.businessDayDistance(calendar, series.dates[a], series.dates[b]));
+    if (benchmark && benchPositions) {
+      const p = benchPositions[k];
+      const q = benchPositions[k + 1];
+      benchFrom[k] = p;
+      benchTo[k] = q;
+      if (p >= 0 && q >= 0) bench[k] = Math.log(benchmark.values[q] / benchmark.values[p]);
+    }
+  }
+  const hasBenchmark = benchmark !== undefined;
+  const alone = fitAlone(fund, span);
+  const fit = hasBenchmark ? fitAgainstBenchmark(fund, bench, span) : alone;
+  const residual = new Float64Array(count);
+  const z = new Float64Array(count);
+  for (let k = 0; k < count; k++) {
+    // A step the benchmark cannot price is judged against the series' own typical move.
+    const own = !hasBenchmark || !Number.isFinite(bench[k]);
+    residual[k] = own ? fund[k] - alone.intercept * span[k] : fund[k] - fit.intercept * span[k] - fit.beta * bench[k];
+    z[k] = residual[k] / ((own ? alone.scale : fit.scale) * Math.sqrt(span[k]));
+  }
+  return { count, from, to, raw, fund, bench, benchFrom, benchTo, span, residual, z, hasBenchmark, ...fit };
+}
+
+/** For each anchor, the position of a benchmark level stamped on exactly that date (or -1). */
+function positionsInBenchmark(series: SeriesSlice, anchors: number[], benchmark: SeriesSlice): Int32Array {
+  const positions = new Int32Array(anchors.length).fill(-1);
+  let p = 0;
+  for (let k = 0; k < anchors.length; k++) {
+    const day = series.dates[anchors[k]];
+    while (p < benchmark.dates.length && benchmark.dates[p] < day) p++;
+    if (p < benchmark.dates.length && benchmark.dates[p] === day && benchmark.values[p] > 0) positions[k] = p;
+  }
+  return positions;
+}
+
+interface Fit {
+  intercept: number;
+  beta: number;
+  scale: number;
+}
+
+/**
+ * Least squares of fund on benchmark returns, refitted twice without the gross errors it
+ * finds (a split of ln 2 among daily moves of 0.01 would otherwise bend the line).
+ */
+function fitAgainstBenchmark(fund: Float64Array, bench: Float64Array, span: Float64Array): Fit {
+  let fit: Fit = { intercept: 0, beta: 1, scale: Infinity };
+  for (let pass = 0; pass < 3; pass++) {
+    const kept = (k: number) =>
+      Number.isFinite(bench[k]) &&
+      Math.abs(fund[k] - fit.intercept * span[k] - fit.beta * bench[k]) <= GROSS_Z * fit.scale * Math.sqrt(span[k]);
+    fit = leastSquares(fund, bench, span, kept, fit);
+  }
+  return fit;
+}
+
+function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Array, kept: (k: number) => boolean, prior: Fit): Fit {
+  let n = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+  for (let k = 0; k < fund.length; k++) {
+    if (!kept(k)) continue;
+    n++;
+    sx += bench[k];
+    sy += fund[k];
+    sxx += bench[k] * bench[k];
+    sxy += bench[k] * fund[k];
+  }
+  if (n < 3) return { intercept: 0, beta: prior.beta, scale: residualScale(fund, bench, span, 0, prior.beta) };
+  const varX = sxx - (sx * sx) / n;
+  const beta = varX > 0 ? (sxy - (sx * sy) / n) / varX : 0;
+  const intercept = (sy - beta * sx) / n;
+  return { intercept, beta, scale: residualScale(fund, bench, span, intercept, beta) };
+}
+
+function residualScale(fund: Float64Array, bench: Float64Array, span: Float64Array, intercept: number, beta: number): number {
+  const perDay: number[] = [];
+  for (let k = 0; k < fund.length; k++) {
+    if (Number.isFinite(bench[k])) perDay.push((fund[k] - intercept * span[k] - beta * bench[k]) / Math.sqrt(span[k]));
+  }
+  return floorScale(robustScale(perDay));
+}
+
+function fitAlone(fund: Float64Array, span: Float64Array): Fit {
+  const perDay = Array.from(fund, (r, k) => r / span[k]);
+  const drift = median(perDay);
+  const deviations = Array.from(fund, (r, k) => (r - drift * span[k]) / Math.sqrt(span[k]));
+  return { intercept: Number.isFinite(drift) ? drift : 0, beta: 0, scale: floorScale(robustScale(deviations, 0)) };
+}
+
+/** A flat or perfectly smooth series has zero spread; a tiny floor keeps z finite. */
+function floorScale(scale: number): number {
+  return Number.isFinite(scale) && scale > 1e-7 ? scale : 1e-7;
+}

@@ -1,0 +1,96 @@
+/**
+ * The check runner: every enabled check over every series and the feed as a whole, findings
+ * sorted so that two runs on the same input print the same report.
+ */
+import type { BusinessCalendars } from '../calendar/business-calendar.js';
+import { severityRank, type Finding } from '../findings.js';
+import type { CorporateActionRecord, RejectedRow, SeriesMasterRecord } from '../ingest/records.js';
+import { findSeries, seriesAt, type SeriesFrame } from '../series/frame.js';
+import type { FeedCheck, FeedContext, SeriesCheck, SeriesContext } from './check.js';
+import { CHECKS } from './registry.js';
+import { parseCheckSettings, SettingsResolver, type CheckSettings } from './settings.js';
+
+export interface CheckInput {
+  readonly nav: SeriesFrame;
+  readonly benchmarks?: SeriesFrame;
+  readonly master?: readonly SeriesMasterRecord[];
+  readonly actions?: readonly CorporateActionRecord[];
+  readonly previous?: SeriesFrame;
+  readonly rejected: readonly RejectedRow[];
+  readonly calendars: BusinessCalendars;
+  /** Epoch day. */
+  readonly asOf: number;
+}
+
+/** Runs the catalogue. `settings` is validated here too, so a bad key fails before any work. */
+export function runChecks(input: CheckInput, settings: CheckSettings = {}): Finding[] {
+  const resolver = new SettingsResolver(parseCheckSettings(settings));
+  const findings: Finding[] = [];
+  const seriesChecks = CHECKS.filter((check): check is SeriesCheck => check.scope === 'series');
+  const feedChecks = CHECKS.filter((check): check is FeedCheck => check.scope === 'feed');
+  const masterById = new Map((input.master ?? []).map((record) => [record.series_id, record]));
+  const actionsById = groupActions(input.actions ?? []);
+
+  for (let i = 0; i < input.nav.ids.length; i++) {
+    const series = seriesAt(input.nav, i);
+    const master = masterById.get(series.id);
+    const context: SeriesContext = {
+      asOf: input.asOf,
+      calendars: input.calendars,
+      master,
+      benchmark: master?.benchmark_id && input.benchmarks ? findSeries(input.benchmarks, master.benchmark_id) : undefined,
+      benchmarks: input.benchmarks,
+      actions: actionsById.get(series.id) ?? [],
+      previous: input.previous ? findSeries(input.previous, series.id) : undefined,
+    };
+    for (const check of seriesChecks) {
+      const { enabled, params } = resolver.resolve(check, master?.category, series.id);
+      if (enabled) findings.push(...check.run(series, context, params));
+    }
+  }
+
+  const feed: FeedContext = {
+    asOf: input.asOf,
+    calendars: input.calendars,
+    nav: input.nav,
+    benchmarks: input.benchmarks,
+    master: input.master,
+    previous: input.previous,
+    rejected: input.rejected,
+  };
+  for (const check of feedChecks) {
+    const { enabled, params } = resolver.resolve(check, null, null);
+    if (enabled) findings.push(...check.run(feed, params));
+  }
+  return findings.sort(compareFindings);
+}
+
+function groupActions(actions: readonly CorporateActionRecord[]): Map<string, CorporateActionRecord[]> {
+  const byId = new Map<string, CorporateActionRecord[]>();
+  for (const action of actions) {
+    const list = byId.get(action.series_id);
+    if (list) list.push(action);
+    else byId.set(action.series_id, [action]);
+  }
+  for (const list of byId.values()) list.sort((a, b) => a.ex_date - b.ex_date);
+  return byId;
+}
+
+/** Series first (file-level findings last), then date, check, severity (worst first) and key. */
+export function compareFindings(a: Finding, b: Finding): number {
+  return (
+    compareText(a.series_id, b.series_id) ||
+    compareText(a.start, b.start) ||
+    compareText(a.check, b.check) ||
+    severityRank(b.severity) - severityRank(a.severity) ||
+    compareText(a.key, b.key) ||
+    compareText(a.message, b.message)
+  );
+}
+
+function compareText(a: string | null, b: string | null): number {
+  if (a === b) return 0;
+  if (a === null) return 1;
+  if (b === null) return -1;
+  return a < b ? -1 : 1;
+}

@@ -1,0 +1,129 @@
+/**
+ * Small helpers every check shares: building findings, grouping days into runs, robust
+ * statistics. Nothing here knows about a particular check.
+ */
+import { formatIsoDate } from '../calendar/days.js';
+import { findingKey, type Finding, type Severity } from '../findings.js';
+import type { SeriesContext } from './check.js';
+import type { SeriesSlice } from '../series/frame.js';
+
+export const isoDate = formatIsoDate;
+
+export interface FindingDraft {
+  readonly check: string;
+  readonly severity: Severity;
+  readonly seriesId: string | null;
+  readonly start: number | null;
+  readonly end: number | null;
+  readonly message: string;
+  readonly evidence: Record<string, unknown>;
+  /** Facts that identify the problem tomorrow too: dates, ids, kinds; never line numbers. */
+  readonly identity: ReadonlyArray<string | number | null>;
+}
+
+export function makeFinding(draft: FindingDraft): Finding {
+  return {
+    check: draft.check,
+    severity: draft.severity,
+    series_id: draft.seriesId,
+    start: draft.start === null ? null : isoDate(draft.start),
+    end: draft.end === null ? null : isoDate(draft.end),
+    message: draft.message,
+    evidence: draft.evidence,
+    key: findingKey(draft.check, draft.seriesId, ...draft.identity),
+  };
+}
+
+export function calendarOf(context: Pick<SeriesContext, 'master'>): string | undefined {
+  return context.master?.calendar ?? undefined;
+}
+
+/** Index of the first row of each distinct date (duplicates beyond the first are skipped). */
+export function firstRowOfEachDate(series: SeriesSlice, upTo = Infinity): number[] {
+  const rows: number[] = [];
+  for (let i = 0; i < series.dates.length; i++) {
+    if (series.dates[i] > upTo) break;
+    if (i === 0 || series.dates[i] !== series.dates[i - 1]) rows.push(i);
+  }
+  return rows;
+}
+
+/** Splits ascending positions into runs of consecutive ones (`next` says what follows what). */
+export function consecutiveRuns<T>(items: readonly T[], follows: (previous: T, current: T) => boolean): T[][] {
+  const runs: T[][] = [];
+  for (const item of items) {
+    const run = runs[runs.length - 1];
+    if (run && follows(run[run.length - 1], item)) run.push(item);
+    else runs.push([item]);
+  }
+  return runs;
+}
+
+/** At most `limit` items, so evidence stays readable when a problem spans months. */
+export function capped<T>(items: readonly T[], limit = 20): T[] {
+  return items.slice(0, limit);
+}
+
+export function median(values: ArrayLike<number>): number {
+  const sorted = Float64Array.from(values).sort();
+  const n = sorted.length;
+  if (n === 0) return NaN;
+  const middle = n >> 1;
+  return n % 2 === 1 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
+}
+
+/** Median absolute deviation scaled by 1.4826, so it estimates the standard deviation of normal data. */
+export function robustScale(values: ArrayLike<number>, centre = median(values)): number {
+  const deviations = new Float64Array(values.length);
+  for (let i = 0; i < values.length; i++) deviations[i] = Math.abs(values[i] - centre);
+  return 1.4826 * median(deviations);
+}
+
+export function correlation(x: ArrayLike<number>, y: ArrayLike<number>, n = x.length): number {
+  let sx = 0, sy = 0, sxx = 0, syy = 0, sxy = 0;
+  for (let i = 0; i < n; i++) {
+    sx += x[i];
+    sy += y[i];
+    sxx += x[i] * x[i];
+    syy += y[i] * y[i];
+    sxy += x[i] * y[i];
+  }
+  const cxx = sxx - (sx * sx) / n;
+  const cyy = syy - (sy * sy) / n;
+  const cxy = sxy - (sx * sy) / n;
+  return cxx > 0 && cyy > 0 ? cxy / Math.sqrt(cxx * cyy) : NaN;
+}
+
+export function round(value: number, digits = 6): number {
+  if (!Number.isFinite(value)) return value;
+  const factor = 10 ** digits;
+  return Math.round(value * factor) / factor;
+}
+
+/** Position of the last entry of ascending `dates` that is ≤ `day`, or -1. */
+export function lastAtOrBefore(dates: Int32Array, day: number): number {
+  let low = 0, high = dates.length - 1, found = -1;
+  while (low <= high) {
+    const mid = (low + high) >> 1;
+    if (dates[mid] <= day) {
+      found = mid;
+      low = mid + 1;
+    } else high = mid - 1;
+  }
+  return found;
+}
+
+/** Position of the first entry of ascending `dates` equal to `day`, or -1. */
+export function exactPosition(dates: Int32Array, day: number): number {
+  let low = 0, high = dates.length - 1;
+  while (low < high) {
+    const mid = (low + high) >> 1;
+    if (dates[mid] < day) low = mid + 1;
+    else high = mid;
+  }
+  return dates.length > 0 && dates[low] === day ? low : -1;
+}
+
+export function percent(ratio: number, digits = 2): string {
+  return `${(ratio * 100).toFixed(digits)} %`;
+}
