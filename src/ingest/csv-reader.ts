@@ -86,7 +86,7 @@ function readHeader(bytes: Buffer, begin: number, delimiter: number, quote: numb
   if (scanner.error) throw new InputError(`${fileName}, line 1: the header cannot be read because ${scanner.error}; fix the header row.`);
   const names: string[] = [];
   for (let k = 0; k < Math.min(scanner.fieldCount, scanner.starts.length); k++) {
-    names.push(decodeField(bytes, scanner.starts[k], scanner.ends[k], scanner.quoted[k]).trim());
+    names.push(decodeQuoted(bytes, scanner.starts[k], scanner.ends[k], scanner.quoted[k], quote).trim());
   }
   return { names, bodyStart: begin };
 }
@@ -131,8 +131,16 @@ function builderFor(spec: ColumnSpec): ColumnBuilder {
 }
 
 export function decodeField(bytes: Buffer, start: number, end: number, quoted: number): string {
+  return decodeQuoted(bytes, start, end, quoted, 34);
+}
+
+/** A field's text with a doubled quote character (the profile's, not only `"`) made single. */
+function decodeQuoted(bytes: Buffer, start: number, end: number, quoted: number, quote: number): string {
   const text = bytes.toString('utf8', start, end);
-  return quoted ? text.replace(QUOTE_ESCAPE, '"') : text;
+  if (!quoted) return text;
+  if (quote === 34) return text.replace(QUOTE_ESCAPE, '"');
+  const mark = String.fromCharCode(quote);
+  return text.split(mark + mark).join(mark);
 }
 
 /** Fills the column builders row by row and keeps the rejected rows with their reasons. */
@@ -249,7 +257,7 @@ class RowReader {
     if (!quoted && plan.spec.type === 'id' && this.holdsByte(start, end, this.quote)) {
       return STRAY_QUOTE;
     }
-    const code = (plan.builder as TextBuilder).codeOf(decodeField(this.bytes, start, end, quoted).trim());
+    const code = (plan.builder as TextBuilder).codeOf(decodeQuoted(this.bytes, start, end, quoted, this.quote).trim());
     if (!quoted) {
       plan.lastStart = start;
       plan.lastEnd = end;
