@@ -2,7 +2,7 @@ import { Command, CommanderError } from 'commander';
 import { NavassayError } from '../ingest/errors.js';
 import { checkCommand } from './commands/check.js';
 import { demoCommand } from './commands/demo.js';
-import { ingestCommand } from './commands/ingest.js';
+
 import { metricsCommand } from './commands/metrics.js';
 import { runCommand } from './commands/run.js';
 import { packageVersion } from './version.js';
@@ -14,7 +14,7 @@ export function buildProgram(): Command {
     .helpOption('--help', 'show help')
     .showHelpAfterError('(add --help for usage)')
     .exitOverride();
-  for (const command of [demoCommand(), runCommand(), checkCommand(), metricsCommand(), ingestCommand()]) {
+  for (const command of [demoCommand(), runCommand(), checkCommand(), metricsCommand()]) {
     command.version(packageVersion(), '--version', 'print the version').helpOption('--help', 'show help').exitOverride();
     program.addCommand(command);
   }

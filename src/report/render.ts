@@ -20,15 +20,27 @@ export function render(format: OutputFormat, answer: unknown, view: ReportView):
   }
 }
 
-export function renderTable(view: ReportView): string {
+export function renderTable(view: ReportView, width = process.stdout.columns || 140): string {
   const lines = [view.title, ...view.preface, ''];
   if (view.rows.length === 0) lines.push(view.emptyText);
   else {
-    const table = new Table({ head: [...view.columns], wordWrap: true, style: { head: [], border: [] } });
-    for (const row of view.rows) table.push(row.map(cellText));
+    const cells = view.rows.map((row) => row.map(cellText));
+    const colWidths = fitColumns(view.columns, cells, width);
+    const table = new Table({ head: [...view.columns], colWidths, wordWrap: true, style: { head: [], border: [] } });
+    for (const row of cells) table.push(row);
     lines.push(table.toString());
   }
   return [...lines, '', CAUTION, ''].join('\n');
+}
+
+/** Natural column widths, with the widest column narrowed (and wrapped) so the table fits the terminal. */
+function fitColumns(columns: readonly string[], cells: readonly string[][], width: number): number[] {
+  const natural = columns.map((name, k) => 2 + Math.max(name.length, ...cells.map((row) => row[k].length)));
+  const total = natural.reduce((sum, w) => sum + w + 1, 1);
+  if (total <= width) return natural;
+  const widest = natural.indexOf(Math.max(...natural));
+  natural[widest] = Math.max(24, natural[widest] - (total - width));
+  return natural;
 }
 
 export function renderCsv(view: ReportView): string {

@@ -1,0 +1,57 @@
+import { cpus } from 'node:os';
+import { readCsvBuffer } from '../src/ingest/csv-reader.js';
+import { toSeriesFrame } from '../src/ingest/convert.js';
+import { DEFAULT_PROFILE } from '../src/ingest/profile.js';
+import { benchUniverse, navCsv } from './universe.js';
+
+/**
+ * Ingestion speed on one core: reads a generated NAV universe several times and reports the best
+ * and median rows per second and MB/s. Run with `npm run bench` (after `npm run build`).
+ * Arguments: [series] [business days] [runs].
+ */
+const [seriesCount = 2000, businessDays = 1300, runs = 5] = process.argv.slice(2).map(Number);
+
+interface Measurement {
+  readonly label: string;
+  readonly rows: number;
+  readonly bytes: number;
+  readonly seconds: number[];
+}
+
+function measure(label: string, rows: number, bytes: number, work: () => void): Measurement {
+  work(); // warm-up: lets the JIT compile the hot path before timing
+  const seconds: number[] = [];
+  for (let run = 0; run < runs; run++) {
+    const started = process.hrtime.bigint();
+    work();
+    seconds.push(Number(process.hrtime.bigint() - started) / 1e9);
+  }
+  return { label, rows, bytes, seconds };
+}
+
+function report(m: Measurement): string {
+  const sorted = [...m.seconds].sort((a, b) => a - b);
+  const best = sorted[0];
+  const median = sorted[Math.floor(sorted.length / 2)];
+  const rate = (s: number) => `${(m.rows / s / 1e6).toFixed(2)} M rows/s, ${(m.bytes / s / 1e6).toFixed(0)} MB/s`;
+  return `${m.label.padEnd(34)} best ${rate(best)} (${best.toFixed(3)} s); median ${rate(median)}`;
+}
+
+const universe = benchUniverse(seriesCount, businessDays);
+const csv = navCsv(universe);
+const rows = seriesCount * businessDays;
+console.log(`navassay ingestion bench: ${seriesCount} series × ${businessDays} days = ${rows.toLocaleString('en')} NAV rows, CSV ${(csv.length / 1e6).toFixed(1)} MB`);
+console.log(`machine: ${cpus()[0]?.model ?? 'unknown cpu'}, ${cpus().length} cores, Node ${process.version}; ${runs} timed runs after one warm-up, one core`);
+
+let parsed = readCsvBuffer(csv, 'bench.csv', 'nav', DEFAULT_PROFILE);
+if (parsed.rows.accepted !== rows) throw new Error(`bench data lost rows: ${JSON.stringify(parsed.rows)}`);
+const results = [
+  measure('CSV → typed columns', rows, csv.length, () => {
+    parsed = readCsvBuffer(csv, 'bench.csv', 'nav', DEFAULT_PROFILE);
+  }),
+  measure('typed columns → series frame', rows, csv.length, () => void toSeriesFrame(parsed.table, 'nav')),
+  measure('CSV → series frame (whole path)', rows, csv.length, () => {
+    void toSeriesFrame(readCsvBuffer(csv, 'bench.csv', 'nav', DEFAULT_PROFILE).table, 'nav');
+  }),
+];
+for (const result of results) console.log(report(result));

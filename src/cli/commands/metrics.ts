@@ -1,0 +1,83 @@
+import { Command, Option } from 'commander';
+import { monthEndDay, monthIndex, todayEpochDay } from '../../calendar/days.js';
+import { ConfigError } from '../../ingest/errors.js';
+import { loadFeed } from '../../ingest/feed.js';
+import { computeMetrics } from '../../metrics/compute.js';
+import { DEFAULT_METHODOLOGY } from '../../metrics/methodology.js';
+import { parseWindow } from '../../metrics/windows.js';
+import { metricsView } from '../../report/metrics-answer.js';
+import { render } from '../../report/render.js';
+import { asOfOption, chosenFormat, formatOption, outOption, parseAsOf } from '../options.js';
+import { emit } from '../output.js';
+
+interface MetricsOptions {
+  nav: string;
+  benchmarks: string;
+  master: string;
+  rates?: string;
+  rf?: string;
+  asOf?: string;
+  windows: string;
+  format?: string;
+  out?: string;
+}
+
+export function metricsCommand(): Command {
+  return new Command('metrics')
+    .description('recompute risk figures from NAVs, benchmark levels and the risk-free rate (default methodology: monthly)')
+    .requiredOption('--nav <file>', 'NAV feed (series_id, date, nav)')
+    .requiredOption('--benchmarks <file>', 'benchmark levels (benchmark_id, date, level)')
+    .requiredOption('--master <file>', 'series master (series_id, benchmark_id, [rate_id] …)')
+    .addOption(new Option('--rates <file>', 'risk-free rates (rate_id, date, rate), matched by the master\'s rate_id').conflicts('rf'))
+    .addOption(new Option('--rf <rate>', 'a constant annual risk-free rate as a decimal, such as 0.02'))
+    .addOption(asOfOption('the last month-end on or before today'))
+    .option('--windows <list>', 'comma-separated windows such as 1y,3y,5y or 6m', '1y,3y,5y')
+    .addOption(formatOption())
+    .addOption(outOption())
+    .action(async (options: MetricsOptions) => {
+      process.exitCode = await runMetricsCommand(options);
+    });
+}
+
+async function runMetricsCommand(options: MetricsOptions): Promise<number> {
+  const asOf = parseAsOf(options.asOf, lastMonthEnd);
+  const windows = parseWindowList(options.windows);
+  const constantRate = options.rf === undefined ? undefined : parseRate(options.rf);
+  const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates });
+  const methodology = constantRate === undefined && options.rates === undefined ? { ...DEFAULT_METHODOLOGY, risk_free: { source: 'none' as const } } : DEFAULT_METHODOLOGY;
+  const answer = computeMetrics({
+    nav: feed.nav,
+    benchmarks: feed.benchmarks!,
+    master: feed.master!,
+    rates: feed.rates,
+    constantRate,
+    asOf,
+    windows,
+    methodology,
+  });
+  emit(render(chosenFormat(options.format), answer, metricsView(answer)), options.out);
+  return 0;
+}
+
+export function lastMonthEnd(): number {
+  const today = todayEpochDay();
+  const thisMonthEnd = monthEndDay(monthIndex(today));
+  return thisMonthEnd === today ? today : monthEndDay(monthIndex(today) - 1);
+}
+
+export function parseWindowList(text: string): string[] {
+  const windows = text.split(',').map((label) => label.trim()).filter(Boolean);
+  const bad = windows.find((label) => parseWindow(label) === null);
+  if (bad !== undefined || windows.length === 0) {
+    throw new ConfigError(`--windows "${text}" is not a list of windows; write whole years or months separated by commas, such as 1y,3y,5y or 6m.`);
+  }
+  return windows;
+}
+
+function parseRate(text: string): number {
+  const rate = Number(text);
+  if (text.trim() === '' || !Number.isFinite(rate) || Math.abs(rate) >= 1) {
+    throw new ConfigError(`--rf "${text}" is not an annual rate as a decimal; write 0.02 for 2 %.`);
+  }
+  return rate;
+}
