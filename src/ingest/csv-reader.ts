@@ -63,8 +63,8 @@ export function readCsvBuffer(input: Uint8Array, fileName: string, kind: FileKin
 function chooseDelimiter(bytes: Buffer, begin: number, profile: FeedProfile, fileName: string): number {
   const wanted = profileDelimiter(profile);
   if (wanted !== 'auto') return wanted.charCodeAt(0);
-  let lineEnd = bytes.indexOf(10, begin);
-  if (lineEnd < 0) lineEnd = bytes.length;
+  let lineEnd = begin; // the header line ends at LF, CRLF or a lone CR
+  while (lineEnd < bytes.length && bytes[lineEnd] !== 10 && bytes[lineEnd] !== 13) lineEnd++;
   const headerText = bytes.toString('utf8', begin, lineEnd);
   const candidates = [',', ';', '\t', '|'].map((d) => ({ d, count: headerText.split(d).length - 1 }));
   const best = candidates.reduce((a, b) => (b.count > a.count ? b : a));

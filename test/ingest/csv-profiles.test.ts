@@ -97,6 +97,11 @@ describe('feed profiles', () => {
     ]);
   });
 
+  it('auto delimiter looks at the header line only, also when lines end in a lone CR', () => {
+    const result = readText('series_id;benchmark_id\rNVA0001;"a,b,c"\r', 'master', { delimiter: 'auto' });
+    expect(rowsOf(result)).toEqual([{ line: 2, series_id: 'NVA0001', benchmark_id: 'a,b,c' }]);
+  });
+
   it('quoted fields: doubled quotes, embedded delimiters and newlines', () => {
     const text =
       'series_id,benchmark_id,name,category\n' +
