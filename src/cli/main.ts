@@ -3,6 +3,7 @@ import { NavassayError } from '../ingest/errors.js';
 import { checkCommand } from './commands/check.js';
 import { demoCommand } from './commands/demo.js';
 
+import { ingestCommand } from './commands/ingest.js';
 import { metricsCommand } from './commands/metrics.js';
 import { runCommand } from './commands/run.js';
 import { packageVersion } from './version.js';
@@ -14,7 +15,7 @@ export function buildProgram(): Command {
     .helpOption('--help', 'show help')
     .showHelpAfterError('(add --help for usage)')
     .exitOverride();
-  for (const command of [demoCommand(), runCommand(), checkCommand(), metricsCommand()]) {
+  for (const command of [demoCommand(), runCommand(), checkCommand(), metricsCommand(), ingestCommand()]) {
     command.version(packageVersion(), '--version', 'print the version').helpOption('--help', 'show help').exitOverride();
     program.addCommand(command);
   }

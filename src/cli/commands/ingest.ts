@@ -1,0 +1,79 @@
+import { Command } from 'commander';
+import { formatIsoDate } from '../../calendar/days.js';
+import { loadRunConfig } from '../../config/run-config.js';
+import { ConfigError } from '../../ingest/errors.js';
+import { loadFeed, type FeedPaths, type LoadOptions } from '../../ingest/feed.js';
+import { render } from '../../report/render.js';
+import { storeSnapshot } from '../snapshots.js';
+import { asOfOption, chosenFormat, formatOption, outOption, parseAsOf } from '../options.js';
+import { emit } from '../output.js';
+
+interface IngestOptions {
+  config?: string;
+  nav?: string;
+  benchmarks?: string;
+  master?: string;
+  rates?: string;
+  holidays?: string;
+  actions?: string;
+  vendor?: string;
+  store: string;
+  feed: string;
+  asOf?: string;
+  format?: string;
+  out?: string;
+}
+
+export function ingestCommand(): Command {
+  return new Command('ingest')
+    .description("read a day's feed files and keep them as a canonical snapshot in the store")
+    .option('--config <file>', 'take the files, profiles, store and feed name from a run configuration')
+    .option('--nav <file>', 'NAV feed (series_id, date, nav)')
+    .option('--benchmarks <file>', 'benchmark levels')
+    .option('--master <file>', 'series master')
+    .option('--rates <file>', 'risk-free rates')
+    .option('--holidays <file>', 'holidays')
+    .option('--actions <file>', 'corporate actions')
+    .option('--vendor <file>', "vendor's risk figures")
+    .option('--store <dir>', 'snapshot store directory', 'navassay-store')
+    .option('--feed <name>', "the feed's name in the store", 'feed')
+    .addOption(asOfOption("the configuration's as_of, else today"))
+    .addOption(formatOption())
+    .addOption(outOption())
+    .action(async (options: IngestOptions) => {
+      process.exitCode = await runIngest(options);
+    });
+}
+
+async function runIngest(options: IngestOptions): Promise<number> {
+  const config = options.config === undefined ? undefined : loadRunConfig(options.config);
+  const paths: FeedPaths | undefined = config?.paths ?? (options.nav ? { ...options, nav: options.nav } : undefined);
+  if (!paths) throw new ConfigError('ingest needs --nav FILE (and any other files of the day) or --config FILE; see navassay ingest --help.');
+  const asOf = parseAsOf(options.asOf ?? config?.as_of);
+  const loadOptions: LoadOptions = config ? { profiles: config.profiles, weekendDays: config.weekend } : {};
+  const feed = await loadFeed(pickFeedPaths(paths), loadOptions);
+  const store = config?.store ?? options.store;
+  const feedName = config?.feed ?? options.feed;
+  const snapshot = storeSnapshot({ store, feed: feedName }, asOf, feed);
+  const answer = {
+    feed: feedName,
+    as_of: formatIsoDate(asOf),
+    snapshot: snapshot.dir,
+    rows: feed.rows,
+    files: feed.results.map((r) => ({ kind: r.kind, path: r.file, rows: r.rows })),
+  };
+  const view = {
+    title: `navassay ingest: ${feedName} as of ${answer.as_of}`,
+    preface: [`Snapshot: ${snapshot.dir}`, `Rows read ${feed.rows.read}: ${feed.rows.accepted} accepted, ${feed.rows.rejected} rejected (kept in the snapshot's rejected.csv).`],
+    columns: ['kind', 'file', 'read', 'accepted', 'rejected'],
+    rows: answer.files.map((f) => [f.kind, f.path, f.rows.read, f.rows.accepted, f.rows.rejected]),
+    emptyText: 'No files.',
+  };
+  emit(render(chosenFormat(options.format), answer, view), options.out);
+  return 0;
+}
+
+function pickFeedPaths(paths: FeedPaths): FeedPaths {
+  const { nav, benchmarks, master, rates, holidays, actions, vendor } = paths;
+  return { nav, benchmarks, master, rates, holidays, actions, vendor };
+}
