@@ -132,8 +132,8 @@ describe('mutated files keep the row accounting exact', () => {
   it('NAV files without quotes: every data line is one row, accepted or rejected', () => {
     fc.assert(
       fc.property(plainNavArb, layoutArb, fc.array(mutationArb, { minLength: 1, maxLength: 4 }), (table, layout, mutations) => {
-        const original = Buffer.from(writeCsv(table, layout).text, 'utf8');
-        const mutated = mutations.reduce((bytes, m) => mutate(bytes, m, delimiterByte(layout)), original);
+        const original: Buffer = Buffer.from(writeCsv(table, layout).text, 'utf8');
+        const mutated = mutations.reduce<Buffer>((bytes, m) => mutate(bytes, m, delimiterByte(layout)), original);
         checkAccounting(original, mutated, 'nav', layout);
       }),
       { numRuns: 4000 },
@@ -143,8 +143,8 @@ describe('mutated files keep the row accounting exact', () => {
   it('master files with quoted, multi-line names', () => {
     fc.assert(
       fc.property(masterTableArb, layoutArb, fc.array(mutationArb, { minLength: 1, maxLength: 4 }), (table, layout, mutations) => {
-        const original = Buffer.from(writeCsv(table, layout).text, 'utf8');
-        const mutated = mutations.reduce((bytes, m) => mutate(bytes, m, delimiterByte(layout)), original);
+        const original: Buffer = Buffer.from(writeCsv(table, layout).text, 'utf8');
+        const mutated = mutations.reduce<Buffer>((bytes, m) => mutate(bytes, m, delimiterByte(layout)), original);
         checkAccounting(original, mutated, 'master', layout);
       }),
       { numRuns: 3000 },
