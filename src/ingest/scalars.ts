@@ -121,8 +121,8 @@ export function parseNumberText(text: string, style: NumberStyle = PLAIN_NUMBERS
 
 /** `YYYY-MM-DD` straight from bytes; null when it is not that shape or not a real date. */
 export function parseIsoDateBytes(bytes: Uint8Array, start: number, end: number): number | null {
-  while (start < end && bytes[start] === SPACE) start++;
-  while (end > start && bytes[end - 1] === SPACE) end--;
+  while (start < end && (bytes[start] === SPACE || bytes[start] === TAB)) start++;
+  while (end > start && (bytes[end - 1] === SPACE || bytes[end - 1] === TAB)) end--;
   if (end - start !== 10 || bytes[start + 4] !== MINUS || bytes[start + 7] !== MINUS) return null;
   const year = fourDigits(bytes, start);
   const month = twoDigits(bytes, start + 5);
