@@ -61,10 +61,15 @@ function eachChunk(vector: Vector, visit: (data: Data, firstRow: number) => void
   }
 }
 
-function isNullAt(data: Data, index: number): boolean {
-  if (data.nullCount === 0 || !data.nullBitmap || data.nullBitmap.length === 0) return false;
-  const bit = data.offset + index;
-  return (data.nullBitmap[bit >> 3] & (1 << (bit & 7))) === 0;
+/** The chunk's validity test, or null when the chunk has no nulls and every value counts. */
+function nullTest(data: Data): ((index: number) => boolean) | null {
+  const bitmap = data.nullBitmap;
+  if (data.nullCount === 0 || !bitmap || bitmap.length === 0) return null;
+  const offset = data.offset;
+  return (index) => {
+    const bit = offset + index;
+    return (bitmap[bit >> 3] & (1 << (bit & 7))) === 0;
+  };
 }
 
 function arrowDays(vector: Vector): Int32Array {
@@ -73,16 +78,16 @@ function arrowDays(vector: Vector): Int32Array {
   const millisPerUnit = DataType.isTimestamp(type) ? timestampMillisPerUnit(type.unit) : 1;
   eachChunk(vector, (data, firstRow) => {
     const values = data.values as Int32Array | BigInt64Array;
-    for (let i = 0; i < data.length; i++) {
-      days[firstRow + i] = isNullAt(data, i) ? NULL_DATE : toEpochDay(values[i], millisPerUnit);
-    }
+    if (values instanceof Int32Array) days.set(values.subarray(0, data.length), firstRow);
+    else for (let i = 0; i < data.length; i++) days[firstRow + i] = toEpochDay(values[i], millisPerUnit);
+    const isNull = nullTest(data);
+    if (isNull) for (let i = 0; i < data.length; i++) if (isNull(i)) days[firstRow + i] = NULL_DATE;
   });
   return days;
 }
 
 /** Date32 holds epoch days already; Date64 and timestamps hold BigInt counts of a time unit. */
-function toEpochDay(value: number | bigint, millisPerUnit: number): number {
-  if (typeof value === 'number') return value;
+function toEpochDay(value: bigint, millisPerUnit: number): number {
   return Math.floor((Number(value) * millisPerUnit) / MILLIS_PER_DAY);
 }
 
@@ -107,11 +112,11 @@ function arrowNumbers(vector: Vector): Float64Array {
   const scale = DataType.isDecimal(type) ? type.scale : 0;
   eachChunk(vector, (data, firstRow) => {
     const values = data.values as ArrayLike<number | bigint>;
-    for (let i = 0; i < data.length; i++) {
-      if (isNullAt(data, i)) numbers[firstRow + i] = NaN;
-      else if (decodesItself) numbers[firstRow + i] = decodedNumber(vector, firstRow + i, scale);
-      else numbers[firstRow + i] = Number(values[i]);
-    }
+    if (decodesItself) for (let i = 0; i < data.length; i++) numbers[firstRow + i] = decodedNumber(vector, firstRow + i, scale);
+    else if (values instanceof Float64Array) numbers.set(values.subarray(0, data.length), firstRow);
+    else for (let i = 0; i < data.length; i++) numbers[firstRow + i] = Number(values[i]);
+    const isNull = nullTest(data);
+    if (isNull) for (let i = 0; i < data.length; i++) if (isNull(i)) numbers[firstRow + i] = NaN;
   });
   return numbers;
 }
@@ -126,9 +131,10 @@ function arrowBooleans(vector: Vector): Uint8Array {
   const flags = new Uint8Array(vector.length);
   eachChunk(vector, (data, firstRow) => {
     const bits = data.values as Uint8Array;
+    const isNull = nullTest(data);
     for (let i = 0; i < data.length; i++) {
       const bit = data.offset + i;
-      flags[firstRow + i] = isNullAt(data, i) ? NULL_BOOLEAN : (bits[bit >> 3] >> (bit & 7)) & 1;
+      flags[firstRow + i] = isNull?.(i) ? NULL_BOOLEAN : (bits[bit >> 3] >> (bit & 7)) & 1;
     }
   });
   return flags;
@@ -141,17 +147,18 @@ function arrowBooleans(vector: Vector): Uint8Array {
 function arrowText(vector: Vector): SourceColumn {
   const builder = new TextDictionaryBuilder(vector.length);
   eachChunk(vector, (data, firstRow) => {
+    const isNull = nullTest(data);
     if (data.dictionary) {
       const codeOfEntry = Int32Array.from(data.dictionary.toArray() as ArrayLike<unknown>, (entry) =>
         builder.codeFor(entry === null || entry === undefined ? null : String(entry)),
       );
       const indices = data.values as ArrayLike<number | bigint>;
       for (let i = 0; i < data.length; i++) {
-        builder.codes[firstRow + i] = isNullAt(data, i) ? -1 : codeOfEntry[Number(indices[i])];
+        builder.codes[firstRow + i] = isNull?.(i) ? -1 : codeOfEntry[Number(indices[i])];
       }
     } else {
       const chunk = makeVector(data);
-      for (let i = 0; i < data.length; i++) builder.set(firstRow + i, isNullAt(data, i) ? null : (chunk.get(i) as string));
+      for (let i = 0; i < data.length; i++) builder.set(firstRow + i, isNull?.(i) ? null : (chunk.get(i) as string));
     }
   });
   const { codes, dictionary } = builder.finish();

@@ -233,6 +233,24 @@ function isMissing(column: Column, row: number): boolean {
   }
 }
 
+/** Calls `visit` for each row whose value is missing, with one tight loop per column type. */
+function forEachMissing(column: Column, visit: (row: number) => void): void {
+  switch (column.type) {
+    case 'date':
+      for (let row = 0; row < column.values.length; row++) if (column.values[row] === NULL_DATE) visit(row);
+      return;
+    case 'number':
+      for (let row = 0; row < column.values.length; row++) if (Number.isNaN(column.values[row])) visit(row);
+      return;
+    case 'text':
+      for (let row = 0; row < column.codes.length; row++) if (column.codes[row] < 0) visit(row);
+      return;
+    case 'boolean':
+      for (let row = 0; row < column.values.length; row++) if (column.values[row] === NULL_BOOLEAN) visit(row);
+      return;
+  }
+}
+
 function isPresent(source: SourceColumn, row: number): boolean {
   return displayValue(source, row) !== null;
 }
@@ -247,14 +265,14 @@ const NO_PROBLEM = -1;
 function findProblems(found: readonly FoundColumn[], rowCount: number) {
   const problemOf = new Int16Array(rowCount).fill(NO_PROBLEM);
   found.forEach(({ spec, source, converted }, index) => {
+    forEachMissing(converted, (row) => {
+      if (problemOf[row] === NO_PROBLEM && (!spec.nullable || isPresent(source, row))) problemOf[row] = index;
+    });
     const complaintOfCode = textComplaints(spec, converted);
+    if (!complaintOfCode || converted.type !== 'text') return;
     for (let row = 0; row < rowCount; row++) {
-      if (problemOf[row] !== NO_PROBLEM) continue;
-      if (isMissing(converted, row)) {
-        if (!spec.nullable || isPresent(source, row)) problemOf[row] = index;
-      } else if (complaintOfCode && complaintOfCode[(converted as TextColumn).codes[row]] !== null) {
-        problemOf[row] = index;
-      }
+      const code = converted.codes[row];
+      if (problemOf[row] === NO_PROBLEM && code >= 0 && complaintOfCode[code] !== null) problemOf[row] = index;
     }
   });
   return problemOf;
@@ -268,27 +286,30 @@ function textComplaints(spec: ColumnSpec, column: Column): (string | null)[] | n
 
 function assembleResult(file: ColumnarFile, kind: FileKind, found: readonly FoundColumn[]): IngestResult {
   const problemOf = findProblems(found, file.rowCount);
-  const acceptedRows: number[] = [];
   const rejected: RejectedRow[] = [];
   for (let row = 0; row < file.rowCount; row++) {
-    if (problemOf[row] === NO_PROBLEM) acceptedRows.push(row);
-    else rejected.push(rejectedRow(file.fileName, found, row, found[problemOf[row]]));
+    if (problemOf[row] !== NO_PROBLEM) rejected.push(rejectedRow(file.fileName, found, row, found[problemOf[row]]));
   }
-  const keep = Int32Array.from(acceptedRows);
+  const keep = acceptedRows(problemOf, file.rowCount - rejected.length);
   const columns: Record<string, Column> = {};
   for (const { spec, source, converted } of found) {
-    columns[spec.name] = gatherColumn(converted, keep);
-    if (spec.keepsText) columns[`${spec.name}_text`] = gatherColumn(toText(source), keep);
+    columns[spec.name] = keep ? gatherColumn(converted, keep) : converted;
+    if (spec.keepsText) columns[`${spec.name}_text`] = keep ? gatherColumn(toText(source), keep) : toText(source);
   }
-  const lines = keep.map((row) => row + 1);
-  const table: CanonicalTable = { kind, length: keep.length, lines, columns };
-  return {
-    file: file.fileName,
-    kind,
-    table,
-    rejected,
-    rows: { read: file.rowCount, accepted: keep.length, rejected: rejected.length },
-  };
+  const length = file.rowCount - rejected.length;
+  const lines = new Int32Array(length);
+  for (let i = 0; i < length; i++) lines[i] = (keep ? keep[i] : i) + 1;
+  const table: CanonicalTable = { kind, length, lines, columns };
+  return { file: file.fileName, kind, table, rejected, rows: { read: file.rowCount, accepted: length, rejected: rejected.length } };
+}
+
+/** The rows to keep, or null when every row is kept and the columns can be used as they are. */
+function acceptedRows(problemOf: Int16Array, acceptedCount: number): Int32Array | null {
+  if (acceptedCount === problemOf.length) return null;
+  const keep = new Int32Array(acceptedCount);
+  let next = 0;
+  for (let row = 0; row < problemOf.length; row++) if (problemOf[row] === NO_PROBLEM) keep[next++] = row;
+  return keep;
 }
 
 function rejectedRow(fileName: string, found: readonly FoundColumn[], row: number, culprit: FoundColumn): RejectedRow {
