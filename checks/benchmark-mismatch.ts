@@ -3,7 +3,7 @@ import type { SeriesFrame, SeriesSlice } from '../src/series/frame.js';
 import { isoWeekStart } from '../src/calendar/days.js';
 import { seriesAt } from '../src/series/frame.js';
 import { GROSS_Z, seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
-import { correlation, isoDate, lastAtOrBefore, makeFinding, round } from '../src/checks/support.js';
+import { correlation, exactPosition, isoDate, makeFinding, round } from '../src/checks/support.js';
 
 interface MismatchParams {
   index_r2: number;
@@ -37,7 +37,7 @@ export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
   id: 'benchmark_mismatch',
   scope: 'series',
   purpose: 'The fund fits its assigned benchmark poorly while another benchmark fits it well.',
-  defaults: { index_r2: 0.99, poor_r2: 0.6, good_r2: 0.8, window_weeks: 156, min_weeks: 26 },
+  defaults: { index_r2: 0.99, poor_r2: 0.6, good_r2: 0.7, window_weeks: 156, min_weeks: 26 },
   run(series, context, params) {
     const { benchmark, benchmarks, master } = context;
     if (!benchmark || !benchmarks) return [];
@@ -105,8 +105,9 @@ function rSquared(weeks: Week[], benchmark: SeriesSlice, minWeeks: number): numb
   const bench = new Float64Array(weeks.length);
   let n = 0;
   for (const week of weeks) {
-    const p = lastAtOrBefore(benchmark.dates, week.start);
-    const q = lastAtOrBefore(benchmark.dates, week.end);
+    // Exact dates only: a level carried over a benchmark gap would misalign the whole week.
+    const p = exactPosition(benchmark.dates, week.start);
+    const q = exactPosition(benchmark.dates, week.end);
     if (p < 0 || q <= p || !(benchmark.values[p] > 0) || !(benchmark.values[q] > 0)) continue;
     fund[n] = week.fund;
     bench[n++] = Math.log(benchmark.values[q] / benchmark.values[p]);

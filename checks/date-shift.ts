@@ -4,7 +4,7 @@ import { monthIndex } from '../src/calendar/days.js';
 import { GROSS_Z, seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
 import { correlation, isoDate, makeFinding, round } from '../src/checks/support.js';
 
-interface ShiftParams {
+export interface ShiftParams {
   max_lag: number;
   min_correlation: number;
   min_gain: number;
@@ -12,7 +12,7 @@ interface ShiftParams {
   [key: string]: number;
 }
 
-interface QuarterVerdict {
+export interface QuarterVerdict {
   quarter: number;
   steps: number[];
   lag: number;
@@ -36,10 +36,68 @@ export const dateShift: SeriesCheck<ShiftParams> = {
     const benchmark = context.benchmark;
     if (!benchmark) return [];
     const returns = seriesReturns(series, context);
-    const verdicts = quarterSteps(series, returns).map((steps) => judgeQuarter(series, returns, benchmark, steps, params));
-    return shiftedSpans(verdicts).map((span) => describe(series, returns, span, context.master?.benchmark_id ?? benchmark.id));
+    return findShifts(series, returns, benchmark, params).map((shift) => describe(series, returns, shift, context.master?.benchmark_id ?? benchmark.id));
   },
 };
+
+export const DATE_SHIFT_DEFAULTS: ShiftParams = { max_lag: 3, min_correlation: 0.5, min_gain: 0.3, min_steps: 40 };
+
+export interface Shift {
+  /** First and last step (indices into the series' returns) that carry the shift. */
+  readonly firstStep: number;
+  readonly lastStep: number;
+  readonly lag: number;
+  readonly quarters: QuarterVerdict[];
+}
+
+/** Shifted spans of the series, their edges placed where the lagged fit starts and stops winning. */
+export function findShifts(series: SeriesSlice, returns: SeriesReturns, benchmark: SeriesSlice, params: ShiftParams): Shift[] {
+  const verdicts = quarterSteps(series, returns).map((steps) => judgeQuarter(series, returns, benchmark, steps, params));
+  return shiftedSpans(verdicts).map((span) => {
+    const lag = span[0].lag;
+    const at = verdicts.indexOf(span[0]);
+    const until = verdicts.indexOf(span[span.length - 1]);
+    const gain = (k: number) => lagGain(returns, benchmark, k, lag);
+    const before = at > 0 && verdicts[at - 1].quarter === span[0].quarter - 1 ? verdicts[at - 1].steps : [];
+    const after = until + 1 < verdicts.length && verdicts[until + 1].quarter === span[span.length - 1].quarter + 1 ? verdicts[until + 1].steps : [];
+    const firstStep = bestStart([...before, ...span[0].steps], gain);
+    const lastStep = bestEnd([...span[span.length - 1].steps, ...after], gain);
+    // A shift that reaches the first or last judged step runs to the series' edge, gross steps included.
+    const firstJudged = verdicts[0].steps[0];
+    const lastJudged = verdicts[verdicts.length - 1].steps[verdicts[verdicts.length - 1].steps.length - 1];
+    return { firstStep: firstStep <= firstJudged ? 0 : firstStep, lastStep: lastStep >= lastJudged ? returns.count - 1 : lastStep, lag, quarters: span };
+  });
+}
+
+/** How much better lag `lag` explains step k than the dates as stamped (positive: lag wins). */
+function lagGain(returns: SeriesReturns, benchmark: SeriesSlice, k: number, lag: number): number {
+  const p = returns.benchFrom[k];
+  const q = returns.benchTo[k];
+  if (p + lag < 0 || q + lag >= benchmark.values.length) return 0;
+  const asStamped = returns.fund[k] - returns.beta * Math.log(benchmark.values[q] / benchmark.values[p]);
+  const lagged = returns.fund[k] - returns.beta * Math.log(benchmark.values[q + lag] / benchmark.values[p + lag]);
+  return asStamped * asStamped - lagged * lagged;
+}
+
+/** The step from which the summed gain to the end of `steps` is largest. */
+function bestStart(steps: number[], gain: (k: number) => number): number {
+  let total = 0, best = -Infinity, at = steps[0];
+  for (let i = steps.length - 1; i >= 0; i--) {
+    total += gain(steps[i]);
+    if (total > best) [best, at] = [total, steps[i]];
+  }
+  return at;
+}
+
+/** The step up to which the summed gain from the start of `steps` is largest. */
+function bestEnd(steps: number[], gain: (k: number) => number): number {
+  let total = 0, best = -Infinity, at = steps[steps.length - 1];
+  for (const k of steps) {
+    total += gain(k);
+    if (total > best) [best, at] = [total, k];
+  }
+  return at;
+}
 
 function quarterSteps(series: SeriesSlice, returns: SeriesReturns): number[][] {
   const quarters: number[][] = [];
@@ -94,11 +152,10 @@ function shiftedSpans(verdicts: QuarterVerdict[]): QuarterVerdict[][] {
   return spans;
 }
 
-function describe(series: SeriesSlice, returns: SeriesReturns, span: QuarterVerdict[], benchmarkId: string) {
-  const first = returns.to[span[0].steps[0]];
-  const lastSteps = span[span.length - 1].steps;
-  const last = returns.to[lastSteps[lastSteps.length - 1]];
-  const lateBy = -span[0].lag;
+function describe(series: SeriesSlice, returns: SeriesReturns, shift: Shift, benchmarkId: string) {
+  const first = returns.to[shift.firstStep];
+  const last = returns.to[shift.lastStep];
+  const lateBy = -shift.lag;
   const days = Math.abs(lateBy);
   const plural = days > 1 ? 's' : '';
   return makeFinding({
@@ -111,7 +168,7 @@ function describe(series: SeriesSlice, returns: SeriesReturns, span: QuarterVerd
     evidence: {
       stamped_late_by_business_days: lateBy,
       benchmark_id: benchmarkId,
-      quarters: span.map((v) => ({
+      quarters: shift.quarters.map((v) => ({
         from: isoDate(series.dates[returns.to[v.steps[0]]]),
         to: isoDate(series.dates[returns.to[v.steps[v.steps.length - 1]]]),
         correlation_as_stamped: round(v.correlations.get(0) ?? NaN, 3),
@@ -123,4 +180,18 @@ function describe(series: SeriesSlice, returns: SeriesReturns, span: QuarterVerd
     },
     identity: [lateBy, isoDate(series.dates[first])],
   });
+}
+
+const shiftCache = new WeakMap<SeriesReturns, Shift[]>();
+
+/**
+ * True when step `k` lies in a span that looks date-shifted (judged with this check's
+ * defaults). Move-based checks leave such steps alone: against a misdated benchmark every
+ * day of the span looks odd, and one date_shift finding says why.
+ */
+export function inShiftedSpan(series: SeriesSlice, returns: SeriesReturns, benchmark: SeriesSlice | undefined, k: number): boolean {
+  if (!benchmark) return false;
+  let shifts = shiftCache.get(returns);
+  if (!shifts) shiftCache.set(returns, (shifts = findShifts(series, returns, benchmark, DATE_SHIFT_DEFAULTS)));
+  return shifts.some((shift) => k >= shift.firstStep && k <= shift.lastStep);
 }

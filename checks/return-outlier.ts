@@ -1,6 +1,7 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
+import { inShiftedSpan } from './date-shift.js';
 import { SPIKE_DEFAULTS, isSpikeReversal } from './spike-reversal.js';
 import { SPLIT_DEFAULTS, splitLikeRatio } from './split-like-jump.js';
 
@@ -16,7 +17,7 @@ interface OutlierParams {
  * deviations (MAD × 1.4826) from normal, and at least `min_move` in size. Daily residuals are
  * fat-tailed, so the bar is 8 rather than the 3–4 that normal data would suggest. Days that
  * are split-like jumps or spike reversals (judged with those checks' defaults) are left to
- * those checks. Without a benchmark the series is judged against its own typical move.
+ * those checks, and so are days inside a date-shifted span. Without a benchmark the series is judged against its own typical move.
  */
 export const returnOutlier: SeriesCheck<OutlierParams> = {
   id: 'return_outlier',
@@ -28,6 +29,7 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
     const findings = [];
     for (let k = 0; k < returns.count; k++) {
       if (!isOutlier(returns, k, params) || explainedElsewhere(returns, k)) continue;
+      if (inShiftedSpan(series, returns, context.benchmark, k)) continue;
       const before = returns.from[k];
       const day = returns.to[k];
       const benchmarkMove = Number.isFinite(returns.bench[k]) ? Math.expm1(returns.bench[k]) : null;

@@ -1,6 +1,7 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
+import { inShiftedSpan } from './date-shift.js';
 
 export interface SpikeParams {
   min_move: number;
@@ -26,7 +27,7 @@ export const spikeReversal: SeriesCheck<SpikeParams> = {
     const returns = seriesReturns(series, context);
     const findings = [];
     for (let k = 0; k + 1 < returns.count; k++) {
-      if (!isSpikeReversal(returns, k, params)) continue;
+      if (!isSpikeReversal(returns, k, params) || inShiftedSpan(series, returns, context.benchmark, k)) continue;
       const before = returns.from[k];
       const spike = returns.to[k];
       const after = returns.to[k + 1];

@@ -104,7 +104,11 @@ function computeReturns(series: SeriesSlice, context: SeriesContext): SeriesRetu
       const q = benchPositions[k + 1];
       benchFrom[k] = p;
       benchTo[k] = q;
-      if (p >= 0 && q >= 0) bench[k] = Math.log(benchmark.values[q] / benchmark.values[p]);
+      if (p >= 0 && q >= 0) {
+        bench[k] = Math.log(benchmark.values[q] / benchmark.values[p]);
+        // Markets move on the fund's holidays too: its next NAV carries those days' noise.
+        span[k] = Math.max(span[k], q - p);
+      }
     }
   }
   const hasBenchmark = benchmark !== undefined;
