@@ -45,30 +45,54 @@ export function findSourceName(
   return undefined;
 }
 
-/** Reads every canonical column of a kind from a columnar file and applies the row rules. */
-export function ingestColumnarFile(file: ColumnarFile, kind: FileKind, profile: FeedProfile): IngestResult {
-  const specs = CANONICAL_COLUMNS[kind];
-  const found: FoundColumn[] = [];
-  for (const spec of specs) {
-    const sourceName = findSourceName(spec.name, file.columnNames, profile);
-    if (sourceName === undefined) {
-      if (spec.required) throw missingKindColumnError(file, kind, spec, profile);
-      continue;
-    }
-    const source = file.readColumn(sourceName);
-    const converted = toCanonicalColumn(spec, source, profile, { fileName: file.fileName, sourceName });
-    found.push({ spec, sourceName, source, converted });
-  }
-  return assembleResult(file, kind, found);
+/** A canonical column and the source column that holds it. */
+export interface ColumnMatch {
+  readonly spec: ColumnSpec;
+  readonly sourceName: string;
 }
 
-function missingKindColumnError(file: ColumnarFile, kind: FileKind, spec: ColumnSpec, profile: FeedProfile): InputError {
+/**
+ * Matches the kind's canonical columns to the file's columns before any data is read; a required
+ * column that is not there stops the file with an InputError (exit 3).
+ */
+export function matchColumns(
+  fileName: string,
+  columnNames: readonly string[],
+  kind: FileKind,
+  profile: FeedProfile,
+): ColumnMatch[] {
+  const matches: ColumnMatch[] = [];
+  for (const spec of CANONICAL_COLUMNS[kind]) {
+    const sourceName = findSourceName(spec.name, columnNames, profile);
+    if (sourceName !== undefined) matches.push({ spec, sourceName });
+    else if (spec.required) throw missingColumnError(fileName, columnNames, kind, spec, profile);
+  }
+  return matches;
+}
+
+function missingColumnError(
+  fileName: string,
+  columnNames: readonly string[],
+  kind: FileKind,
+  spec: ColumnSpec,
+  profile: FeedProfile,
+): InputError {
   const mapped = profile.columns[spec.name];
   const looked = mapped && mapped !== spec.name ? `"${mapped}" (mapped to ${spec.name})` : `"${spec.name}"`;
-  const found = file.columnNames.length > 0 ? file.columnNames.join(', ') : 'none';
+  const found = columnNames.length > 0 ? columnNames.join(', ') : 'none';
   return new InputError(
-    `${file.fileName} has no column ${looked}, which a ${kind} file needs (columns found: ${found}); rename the column or map it in the feed profile's columns.`,
+    `${fileName} has no column ${looked}, which a ${kind} file needs (columns found: ${found}); rename the column or map it in the feed profile's columns.`,
   );
+}
+
+/** Reads every canonical column of a kind from a columnar file and applies the row rules. */
+export function ingestColumnarFile(file: ColumnarFile, kind: FileKind, profile: FeedProfile): IngestResult {
+  const found = matchColumns(file.fileName, file.columnNames, kind, profile).map(({ spec, sourceName }) => {
+    const source = file.readColumn(sourceName);
+    const converted = toCanonicalColumn(spec, source, profile, { fileName: file.fileName, sourceName });
+    return { spec, sourceName, source, converted };
+  });
+  return assembleResult(file, kind, found);
 }
 
 interface FoundColumn {

@@ -7,10 +7,10 @@ import {
   type ParquetParsers,
   type SchemaElement,
 } from 'hyparquet';
-import { findSourceName, ingestColumnarFile, TextDictionaryBuilder, type SourceColumn } from './columnar-ingest.js';
+import { ingestColumnarFile, matchColumns, TextDictionaryBuilder, type SourceColumn } from './columnar-ingest.js';
 import { InputError } from './errors.js';
 import type { FeedProfile } from './profile.js';
-import { CANONICAL_COLUMNS, type FileKind } from './schema.js';
+import type { FileKind } from './schema.js';
 import { NULL_BOOLEAN, NULL_DATE, type IngestResult } from './table.js';
 
 const MILLIS_PER_DAY = 86_400_000n;
@@ -46,9 +46,7 @@ export async function readParquetBuffer(
   const metadata = openParquetMetadata(file, fileName);
   const elements = topLevelColumns(metadata);
   const columnNames = [...elements.keys()];
-  const wanted = CANONICAL_COLUMNS[kind]
-    .map((spec) => findSourceName(spec.name, columnNames, profile))
-    .filter((name): name is string => name !== undefined);
+  const wanted = matchColumns(fileName, columnNames, kind, profile).map((match) => match.sourceName);
   const chunks = await readColumnChunks(file, metadata, [...new Set(wanted)]);
   const rowCount = Number(metadata.num_rows);
   const sources = new Map<string, SourceColumn>();

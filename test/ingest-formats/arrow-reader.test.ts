@@ -205,6 +205,17 @@ describe('readArrowBuffer', () => {
     expect(() => readArrowBuffer(nested, 'nested.arrow', 'nav', DEFAULT_PROFILE)).toThrow(/column nav of Arrow type List/);
   });
 
+  it('matches headers regardless of case and reads numeric ids and compact numeric dates', () => {
+    const bytes = ipc({
+      SERIES_ID: vectorFromArray([1001, 1002], new Int32()),
+      Date: vectorFromArray([20261130, 20261301], new Int32()),
+      NAV: vectorFromArray([10.5, 11]),
+    });
+    const result = readArrowBuffer(bytes, 'numeric.arrow', 'nav', DEFAULT_PROFILE);
+    expect(rowsOf(result.table)).toEqual([{ series_id: '1001', date: '2026-11-30', nav: 10.5 }]);
+    expect(result.rejected.map((row) => row.reason)).toEqual(['Date (date) "20261301" is not a date.']);
+  });
+
   it('reads booleans and nulls in optional master columns', () => {
     const bytes = ipc({
       series_id: text(['S1', 'S2']),
