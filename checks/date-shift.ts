@@ -1,8 +1,8 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import { monthIndex } from '../src/calendar/days.js';
-import { GROSS_Z, seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
-import { correlation, isoDate, makeFinding, round } from '../src/checks/support.js';
+import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { correlation, isoDate, makeFinding, median, robustScale, round } from '../src/checks/support.js';
 
 export interface ShiftParams {
   max_lag: number;
@@ -24,7 +24,8 @@ export interface QuarterVerdict {
  * stamped. For each calendar quarter the fund's daily returns are correlated with the
  * benchmark's at lags −`max_lag`…`max_lag` (in benchmark observations); a quarter is shifted
  * when another lag correlates at least `min_correlation` and beats lag 0 by `min_gain`.
- * Consecutive shifted quarters with the same lag make one finding. Calendar quarters (not
+ * Consecutive shifted quarters with the same lag make one finding. Returns are winsorised at
+ * four robust standard deviations before correlating, so fat tails do not decide the lag. Calendar quarters (not
  * positions in the file) keep the key stable as the feed grows.
  */
 export const dateShift: SeriesCheck<ShiftParams> = {
@@ -39,6 +40,9 @@ export const dateShift: SeriesCheck<ShiftParams> = {
     return findShifts(series, returns, benchmark, params).map((shift) => describe(series, returns, shift, context.master?.benchmark_id ?? benchmark.id));
   },
 };
+
+/** A day's log move beyond this is a jump for other checks to explain, not market timing. */
+const SPLIT_SIZED_MOVE = 0.25;
 
 export const DATE_SHIFT_DEFAULTS: ShiftParams = { max_lag: 3, min_correlation: 0.5, min_gain: 0.3, min_steps: 40 };
 
@@ -103,7 +107,8 @@ function quarterSteps(series: SeriesSlice, returns: SeriesReturns): number[][] {
   const quarters: number[][] = [];
   let current = NaN;
   for (let k = 0; k < returns.count; k++) {
-    if (returns.benchFrom[k] < 0 || returns.benchTo[k] < 0 || Math.abs(returns.z[k]) >= GROSS_Z) continue;
+    // Not the z filter other checks use: against a misdated benchmark every shifted day looks gross.
+    if (returns.benchFrom[k] < 0 || returns.benchTo[k] < 0 || Math.abs(returns.fund[k]) > SPLIT_SIZED_MOVE) continue;
     const quarter = Math.floor(monthIndex(series.dates[returns.to[k]]) / 3);
     if (quarter !== current) quarters.push([]);
     current = quarter;
@@ -127,7 +132,7 @@ function judgeQuarter(series: SeriesSlice, returns: SeriesReturns, benchmark: Se
       fund[n] = returns.fund[k];
       bench[n++] = Math.log(benchmark.values[q] / benchmark.values[p]);
     }
-    if (n >= params.min_steps) correlations.set(lag, correlation(fund, bench, n));
+    if (n >= params.min_steps) correlations.set(lag, correlation(winsorized(fund.subarray(0, n)), winsorized(bench.subarray(0, n)), n));
   }
   const atZero = correlations.get(0) ?? NaN;
   let best = 0;
@@ -135,6 +140,13 @@ function judgeQuarter(series: SeriesSlice, returns: SeriesReturns, benchmark: Se
   const bestValue = correlations.get(best) ?? NaN;
   const shifted = best !== 0 && bestValue >= params.min_correlation && !(bestValue - atZero < params.min_gain);
   return { quarter, steps, lag: shifted ? best : 0, correlations };
+}
+
+/** Clipped at 4 robust standard deviations, so one wild day cannot make or break a correlation. */
+function winsorized(values: Float64Array): Float64Array {
+  const centre = median(values);
+  const limit = 4 * robustScale(values, centre);
+  return values.map((v) => Math.min(centre + limit, Math.max(centre - limit, v)));
 }
 
 function shiftedSpans(verdicts: QuarterVerdict[]): QuarterVerdict[][] {

@@ -1,5 +1,5 @@
 import type { SeriesCheck } from '../src/checks/check.js';
-import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { ordinaryExtreme, seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
 import { inShiftedSpan } from './date-shift.js';
 import { SPIKE_DEFAULTS, isSpikeReversal } from './spike-reversal.js';
@@ -7,6 +7,7 @@ import { SPLIT_DEFAULTS, splitLikeRatio } from './split-like-jump.js';
 
 interface OutlierParams {
   threshold: number;
+  tail_multiple: number;
   min_move: number;
   [key: string]: number;
 }
@@ -15,7 +16,9 @@ interface OutlierParams {
  * A day far outside the series' usual behaviour relative to its benchmark: the residual of
  * the day's return against beta × benchmark return lies `threshold` robust standard
  * deviations (MAD × 1.4826) from normal, and at least `min_move` in size. Daily residuals are
- * fat-tailed, so the bar is 8 rather than the 3–4 that normal data would suggest. Days that
+ * fat-tailed, so the bar is 8 rather than the 3–4 that normal data would suggest, and it rises
+ * to `tail_multiple` × the series' own 99th-percentile |z| when that is higher: a series whose
+ * ordinary days are wild needs a wilder day to stand out. Days that
  * are split-like jumps or spike reversals (judged with those checks' defaults) are left to
  * those checks, and so are days inside a date-shifted span. Without a benchmark the series is judged against its own typical move.
  */
@@ -23,7 +26,7 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
   id: 'return_outlier',
   scope: 'series',
   purpose: 'A one-day move far outside the series’ usual behaviour relative to its benchmark.',
-  defaults: { threshold: 8, min_move: 0.005 },
+  defaults: { threshold: 8, tail_multiple: 3.5, min_move: 0.005 },
   run(series, context, params) {
     const returns = seriesReturns(series, context);
     const findings = [];
@@ -63,7 +66,8 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
 };
 
 function isOutlier(returns: SeriesReturns, k: number, params: OutlierParams): boolean {
-  return Math.abs(returns.z[k]) >= params.threshold && Math.abs(returns.residual[k]) >= params.min_move;
+  if (Math.abs(returns.z[k]) < params.threshold || Math.abs(returns.residual[k]) < params.min_move) return false;
+  return Math.abs(returns.z[k]) >= params.tail_multiple * ordinaryExtreme(returns);
 }
 
 function explainedElsewhere(returns: SeriesReturns, k: number): boolean {

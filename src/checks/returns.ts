@@ -194,3 +194,20 @@ function fitAlone(fund: Float64Array, span: Float64Array): Fit {
 function floorScale(scale: number): number {
   return Number.isFinite(scale) && scale > 1e-7 ? scale : 1e-7;
 }
+
+const extremeCache = new WeakMap<SeriesReturns, number>();
+
+/**
+ * The 99th percentile of |z| over the series' steps: about 2.6 for normal residuals, higher for
+ * fat-tailed ones. Outlier bars scale with it, so a series whose ordinary days are wild needs
+ * a wilder day to stand out.
+ */
+export function ordinaryExtreme(returns: SeriesReturns): number {
+  let cached = extremeCache.get(returns);
+  if (cached === undefined) {
+    const magnitudes = Float64Array.from(returns.z, Math.abs).filter(Number.isFinite).sort();
+    cached = magnitudes.length >= 50 ? magnitudes[Math.floor(0.99 * (magnitudes.length - 1))] : 2.576;
+    extremeCache.set(returns, cached);
+  }
+  return cached;
+}
