@@ -15,26 +15,32 @@ interface Measurement {
   readonly label: string;
   readonly rows: number;
   readonly bytes: number;
+  /** Wall-clock seconds of each run. */
   readonly seconds: number[];
+  /** CPU seconds of each run (user + system): steadier than wall time on a busy machine. */
+  readonly cpuSeconds: number[];
 }
 
 function measure(label: string, rows: number, bytes: number, work: () => void): Measurement {
   work(); // warm-up: lets the JIT compile the hot path before timing
   const seconds: number[] = [];
+  const cpuSeconds: number[] = [];
   for (let run = 0; run < runs; run++) {
     const started = process.hrtime.bigint();
+    const cpuStarted = process.cpuUsage();
     work();
+    const cpu = process.cpuUsage(cpuStarted);
     seconds.push(Number(process.hrtime.bigint() - started) / 1e9);
+    cpuSeconds.push((cpu.user + cpu.system) / 1e6);
   }
-  return { label, rows, bytes, seconds };
+  return { label, rows, bytes, seconds, cpuSeconds };
 }
 
 function report(m: Measurement): string {
-  const sorted = [...m.seconds].sort((a, b) => a - b);
-  const best = sorted[0];
-  const median = sorted[Math.floor(sorted.length / 2)];
+  const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)];
+  const best = Math.min(...m.seconds);
   const rate = (s: number) => `${(m.rows / s / 1e6).toFixed(2)} M rows/s, ${(m.bytes / s / 1e6).toFixed(0)} MB/s`;
-  return `${m.label.padEnd(34)} best ${rate(best)} (${best.toFixed(3)} s); median ${rate(median)}`;
+  return `${m.label.padEnd(34)} wall: best ${rate(best)} (${best.toFixed(3)} s), median ${rate(median(m.seconds))}; CPU median ${rate(median(m.cpuSeconds))}`;
 }
 
 const universe = benchUniverse(seriesCount, businessDays);

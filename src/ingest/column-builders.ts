@@ -11,6 +11,11 @@ export interface ColumnBuilder {
   finish(length: number): Column;
 }
 
+/** The filled part of a column: a view when it is most of the array, else a compact copy. */
+function filled<T extends Int32Array | Float64Array | Uint8Array>(array: T, length: number): T {
+  return (length * 4 >= array.length * 3 ? array.subarray(0, length) : array.slice(0, length)) as T;
+}
+
 function grow<T extends Int32Array | Float64Array | Uint8Array>(array: T, rows: number, make: (n: number) => T): T {
   if (rows <= array.length) return array;
   const bigger = make(Math.max(rows, array.length * 2));
@@ -27,7 +32,7 @@ export class DateBuilder implements ColumnBuilder {
     this.values[row] = NULL_DATE;
   }
   finish(length: number): Column {
-    return { type: 'date', values: this.values.slice(0, length) };
+    return { type: 'date', values: filled(this.values, length) };
   }
 }
 
@@ -40,7 +45,7 @@ export class NumberBuilder implements ColumnBuilder {
     this.values[row] = NaN;
   }
   finish(length: number): Column {
-    return { type: 'number', values: this.values.slice(0, length) };
+    return { type: 'number', values: filled(this.values, length) };
   }
 }
 
@@ -53,7 +58,7 @@ export class BooleanBuilder implements ColumnBuilder {
     this.values[row] = NULL_BOOLEAN;
   }
   finish(length: number): Column {
-    return { type: 'boolean', values: this.values.slice(0, length) };
+    return { type: 'boolean', values: filled(this.values, length) };
   }
 }
 
@@ -79,6 +84,6 @@ export class TextBuilder implements ColumnBuilder {
     return code;
   }
   finish(length: number): Column {
-    return { type: 'text', codes: this.codes.slice(0, length), dictionary: this.dictionary };
+    return { type: 'text', codes: filled(this.codes, length), dictionary: this.dictionary };
   }
 }

@@ -5,10 +5,12 @@ import { resolveDateFormat } from './date-order.js';
 import { ConfigError, InputError } from './errors.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
-import { parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
+import { INVALID_DAY, isoDateAt, parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
 import { CANONICAL_COLUMNS, type ColumnSpec, type FileKind } from './schema.js';
 import type { Column, IngestResult } from './table.js';
 
+const LF = 10;
+const CR = 13;
 const QUOTE_ESCAPE = /""/g;
 /** textCode's answer for an id holding a quote in an unquoted field. */
 const STRAY_QUOTE = -2;
@@ -52,12 +54,34 @@ export function readCsvBuffer(input: Uint8Array, fileName: string, kind: FileKin
   const plans = planColumns(header.names, kind, profile, fileName);
   const dateFormat = resolveDateFormat(bytes, header.bodyStart, header.names.length, delimiter, quote, plans, profile, fileName);
   const reader = new RowReader(bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands), quote);
+  reader.reserve(estimateRows(bytes, header.bodyStart));
   const scanner = new CsvRowScanner(bytes, header.bodyStart, delimiter, quote, header.names.length + 1);
   scanner.next(); // the header row itself
-  while (scanner.next()) {
+  const plainLane = reader.canTakePlainRows() ? { delimiter, fieldCount: header.names.length } : null;
+  let position = scanner.nextPosition;
+  let line = scanner.nextLineNumber;
+  for (;;) {
+    if (plainLane) ({ position, line } = reader.takePlainRows(position, line, plainLane.fieldCount, plainLane.delimiter));
+    scanner.seek(position, line);
+    if (!scanner.next()) break;
     if (!scanner.isBlank()) reader.take(scanner, header.names.length);
+    position = scanner.nextPosition;
+    line = scanner.nextLineNumber;
   }
   return reader.finish(kind);
+}
+
+/**
+ * Rows to reserve room for, from the average line length of the first 64 KiB, so the columns
+ * are allocated once instead of doubling twenty times on a large file.
+ */
+function estimateRows(bytes: Uint8Array, begin: number): number {
+  const sampleEnd = Math.min(bytes.length, begin + 65536);
+  let lineFeeds = 0;
+  for (let i = begin; i < sampleEnd; i++) if (bytes[i] === LF) lineFeeds++;
+  if (lineFeeds === 0) return 1024;
+  const averageLine = (sampleEnd - begin) / lineFeeds;
+  return Math.ceil(((bytes.length - begin) / averageLine) * 1.02) + 16;
 }
 
 function chooseDelimiter(bytes: Buffer, begin: number, profile: FeedProfile, fileName: string): number {
@@ -158,6 +182,102 @@ class RowReader {
     private readonly numbers: NumberStyle,
     private readonly quote: number,
   ) {}
+
+  /** The plain-row lane serves files whose columns are all ids, ISO dates and numbers. */
+  canTakePlainRows(): boolean {
+    if (this.dateFormat !== 'auto' && this.dateFormat !== 'iso') return false;
+    return this.plans.every((plan) => plan.textCopy === null && (plan.spec.type === 'id' || plan.spec.type === 'date' || plan.spec.type === 'number'));
+  }
+
+  /**
+   * The fast lane: reads plain rows (no quote, every field present and valid, LF or CRLF) straight
+   * into the columns and returns where the first other row starts; that row takes the general path,
+   * which explains or accepts it. Same results as the general path, several times faster.
+   */
+  takePlainRows(position: number, line: number, fieldCount: number, delimiter: number): { position: number; line: number } {
+    const bytes = this.bytes;
+    const length = bytes.length;
+    const quote = this.quote;
+    const planByField = this.planByField(fieldCount);
+    const firstRow = this.accepted;
+    let row = firstRow;
+    while (position < length) {
+      if (row >= this.lines.length) this.growTo(row + 1);
+      const rowStart = position;
+      let field = 0;
+      let fieldStart = position;
+      let plain = true;
+      for (;;) {
+        while (position < length) {
+          const c = bytes[position];
+          if (c === delimiter || c === LF || c === CR || c === quote) break;
+          position++;
+        }
+        const stop = position < length ? bytes[position] : LF;
+        const plan = field < fieldCount ? planByField[field] : undefined;
+        if (stop === quote || field >= fieldCount || (plan !== null && !this.storePlain(plan!, fieldStart, position, row))) {
+          plain = false;
+          break;
+        }
+        field++;
+        if (stop !== delimiter) break;
+        fieldStart = ++position;
+      }
+      if (plain && field === fieldCount && position < length && bytes[position] === CR) {
+        plain = bytes[position + 1] === LF;
+        position++;
+      }
+      if (!plain || field !== fieldCount) {
+        position = rowStart;
+        break;
+      }
+      if (position < length) position++;
+      this.lines[row++] = line++;
+    }
+    this.read += row - firstRow;
+    this.accepted = row;
+    return { position, line };
+  }
+
+  private plansByField: Array<ColumnPlan | null> | null = null;
+
+  private planByField(fieldCount: number): Array<ColumnPlan | null> {
+    if (!this.plansByField) {
+      this.plansByField = Array.from({ length: fieldCount }, (_, k) => this.plans.find((plan) => plan.field === k) ?? null);
+    }
+    return this.plansByField;
+  }
+
+  /** Stores one plain field; false sends the row to the general path. */
+  private storePlain(plan: ColumnPlan, start: number, end: number, row: number): boolean {
+    const type = plan.spec.type;
+    if (type === 'number') {
+      const value = parseNumberBytes(this.bytes, start, end, this.numbers);
+      if (value !== value) return false;
+      (plan.builder as NumberBuilder).values[row] = value;
+      return true;
+    }
+    if (type === 'date') {
+      if (end - start !== 10) return false;
+      const day = isoDateAt(this.bytes, start);
+      if (day === INVALID_DAY) return false;
+      (plan.builder as DateBuilder).values[row] = day;
+      return true;
+    }
+    if (end === start) return false;
+    if (end - start === plan.lastEnd - plan.lastStart && this.sameBytes(start, plan.lastStart, end - start)) {
+      (plan.builder as TextBuilder).codes[row] = plan.lastCode;
+      return true;
+    }
+    const text = this.text(start, end).trim();
+    if (text === '') return false;
+    const code = (plan.builder as TextBuilder).codeOf(text);
+    plan.lastStart = start;
+    plan.lastEnd = end;
+    plan.lastCode = code;
+    (plan.builder as TextBuilder).codes[row] = code;
+    return true;
+  }
 
   take(scanner: CsvRowScanner, expectedFields: number): void {
     this.read++;
@@ -298,6 +418,10 @@ class RowReader {
     this.rejected.push({ file: this.fileName, line: scanner.line, raw: this.text(scanner.rowStart, scanner.rowEnd), reason });
   }
 
+  reserve(rows: number): void {
+    if (rows > this.lines.length) this.growTo(rows);
+  }
+
   private growTo(rows: number): void {
     const size = Math.max(rows, this.lines.length * 2);
     const lines = new Int32Array(size);
@@ -316,7 +440,7 @@ class RowReader {
       if (plan.textCopy) columns[`${plan.spec.name}_text`] = plan.textCopy.finish(this.accepted);
     }
     const rows = { read: this.read, accepted: this.accepted, rejected: this.rejected.length };
-    const table = { kind, length: this.accepted, lines: this.lines.slice(0, this.accepted), columns };
+    const table = { kind, length: this.accepted, lines: this.lines.subarray(0, this.accepted), columns };
     return { file: this.fileName, kind, table, rejected: this.rejected, rows };
   }
 }

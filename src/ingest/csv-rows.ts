@@ -40,6 +40,21 @@ export class CsvRowScanner {
     this.quoted = new Uint8Array(maxFields);
   }
 
+  /** Where the next row starts, and its line number. */
+  get nextPosition(): number {
+    return this.position;
+  }
+
+  get nextLineNumber(): number {
+    return this.nextLine;
+  }
+
+  /** Moves to a row start that another reader found. */
+  seek(position: number, line: number): void {
+    this.position = position;
+    this.nextLine = line;
+  }
+
   /** Reads the next row; false at the end of the input. */
   next(): boolean {
     const bytes = this.bytes;

@@ -1,4 +1,4 @@
-import { epochDay, isValidCivilDate } from '../calendar/days.js';
+import { daysInMonth, epochDay, isValidCivilDate } from '../calendar/days.js';
 import type { DateFormat } from './profile.js';
 
 /**
@@ -123,24 +123,44 @@ export function parseNumberText(text: string, style: NumberStyle = PLAIN_NUMBERS
 export function parseIsoDateBytes(bytes: Uint8Array, start: number, end: number): number | null {
   while (start < end && (bytes[start] === SPACE || bytes[start] === TAB)) start++;
   while (end > start && (bytes[end - 1] === SPACE || bytes[end - 1] === TAB)) end--;
-  if (end - start !== 10 || bytes[start + 4] !== MINUS || bytes[start + 7] !== MINUS) return null;
-  const year = fourDigits(bytes, start);
-  const month = twoDigits(bytes, start + 5);
-  const day = twoDigits(bytes, start + 8);
-  if (year < 0 || month < 0 || day < 0 || !isValidCivilDate(year, month, day)) return null;
-  return epochDay(year, month, day);
+  if (end - start !== 10) return null;
+  const day = isoDateAt(bytes, start);
+  return day === INVALID_DAY ? null : day;
 }
 
-function twoDigits(bytes: Uint8Array, at: number): number {
-  const a = bytes[at] - ZERO;
-  const b = bytes[at + 1] - ZERO;
-  return a >= 0 && a <= 9 && b >= 0 && b <= 9 ? a * 10 + b : -1;
+/** Returned by `isoDateAt` for text that is not a real `YYYY-MM-DD` date. */
+export const INVALID_DAY = -2147483648;
+
+const TABLE_FIRST_YEAR = 1900;
+const TABLE_YEARS = 300;
+/** Epoch day of the first of each month from 1900 to 2199, and the length of each month. */
+const MONTH_STARTS = new Int32Array(TABLE_YEARS * 12);
+const MONTH_LENGTHS = new Uint8Array(TABLE_YEARS * 12);
+for (let k = 0; k < TABLE_YEARS * 12; k++) {
+  const year = TABLE_FIRST_YEAR + Math.floor(k / 12);
+  const month = (k % 12) + 1;
+  MONTH_STARTS[k] = epochDay(year, month, 1);
+  MONTH_LENGTHS[k] = daysInMonth(year, month);
 }
 
-function fourDigits(bytes: Uint8Array, at: number): number {
-  const high = twoDigits(bytes, at);
-  const low = twoDigits(bytes, at + 2);
-  return high < 0 || low < 0 ? -1 : high * 100 + low;
+/**
+ * The ten bytes at `at` read as `YYYY-MM-DD`, or INVALID_DAY. Years 1900–2199 take a table
+ * lookup (the hot path of every feed); others take the civil-date arithmetic.
+ */
+export function isoDateAt(bytes: Uint8Array, at: number): number {
+  if (bytes[at + 4] !== MINUS || bytes[at + 7] !== MINUS) return INVALID_DAY;
+  const y1 = bytes[at] - ZERO, y2 = bytes[at + 1] - ZERO, y3 = bytes[at + 2] - ZERO, y4 = bytes[at + 3] - ZERO;
+  const m1 = bytes[at + 5] - ZERO, m2 = bytes[at + 6] - ZERO, d1 = bytes[at + 8] - ZERO, d2 = bytes[at + 9] - ZERO;
+  // Unsigned comparison folds "below 0" and "above 9" into one test per digit.
+  if ((y1 >>> 0) > 9 || (y2 >>> 0) > 9 || (y3 >>> 0) > 9 || (y4 >>> 0) > 9) return INVALID_DAY;
+  if ((m1 >>> 0) > 9 || (m2 >>> 0) > 9 || (d1 >>> 0) > 9 || (d2 >>> 0) > 9) return INVALID_DAY;
+  const year = y1 * 1000 + y2 * 100 + y3 * 10 + y4;
+  const month = m1 * 10 + m2;
+  const day = d1 * 10 + d2;
+  if (month < 1 || month > 12 || day < 1) return INVALID_DAY;
+  const k = (year - TABLE_FIRST_YEAR) * 12 + month - 1;
+  if (k >= 0 && k < MONTH_STARTS.length) return day > MONTH_LENGTHS[k] ? INVALID_DAY : MONTH_STARTS[k] + day - 1;
+  return isValidCivilDate(year, month, day) ? epochDay(year, month, day) : INVALID_DAY;
 }
 
 const MONTH_NAMES = ['jan', 'feb', 'mar', 'apr', 'may', 'jun', 'jul', 'aug', 'sep', 'oct', 'nov', 'dec'];
