@@ -65,13 +65,24 @@ export function computeMetrics(request: ComputeMetricsRequest): MetricsAnswer {
   const rows: MetricRow[] = [];
   for (const seriesId of calculator.seriesIds()) {
     for (const window of request.windows) {
-      for (const metric of metrics) {
-        const figure = calculator.metric({ seriesId, asOf: request.asOf, window, metric, methodology });
-        rows.push({ series_id: seriesId, window, metric, ...figure });
-      }
+      const stats = calculator.statistics({ seriesId, asOf: request.asOf, window, methodology });
+      for (const metric of metrics) rows.push(metricRow(seriesId, window, metric, figureOf(metric, stats, methodology)));
     }
   }
   return { as_of: formatIsoDate(request.asOf), methodology: describeMethodology(methodology), metrics: rows };
+}
+
+function metricRow(series_id: string, window: string, metric: MetricId, figure: MetricValue): MetricRow {
+  const { value, observations, reason } = figure;
+  return reason === undefined ? { series_id, window, metric, value, observations } : { series_id, window, metric, value, observations, reason };
+}
+
+/** A metric from a window's statistics (or the window's own reason), as the answer reports it. */
+function figureOf(metric: MetricId, stats: Outcome<WindowStatistics>, methodology: Methodology): MetricValue {
+  if (!stats.ok) return { value: null, observations: 0, reason: stats.reason };
+  const observations = metric === 'max_drawdown' ? stats.value.navObservations : stats.value.n;
+  const outcome = metricFromStatistics(metric, stats.value, methodology);
+  return outcome.value === null ? { value: null, observations, reason: outcome.reason } : { value: outcome.value, observations };
 }
 
 /**
@@ -100,11 +111,7 @@ export class MetricCalculator {
   }
 
   metric(request: MetricRequest): MetricValue {
-    const stats = this.statistics(request);
-    if (!stats.ok) return { value: null, observations: 0, reason: stats.reason };
-    const observations = request.metric === 'max_drawdown' ? stats.value.navObservations : stats.value.n;
-    const outcome = metricFromStatistics(request.metric, stats.value, this.effectiveMethodology(request.methodology));
-    return outcome.value === null ? { value: null, observations, reason: outcome.reason } : { value: outcome.value, observations };
+    return figureOf(request.metric, this.statistics(request), this.effectiveMethodology(request.methodology));
   }
 
   /** The window's statistics (cached), or why the window cannot be computed at all. */
@@ -160,7 +167,8 @@ export class MetricCalculator {
     if (source.source === 'constant') return { annualRate: source.annual_rate };
     const id = source.rate_id ?? this.masterById.get(seriesId)?.rate_id ?? null;
     if (id === null) return { missing: `no risk-free rate: series ${seriesId} has no rate_id in the series master and no constant rate was given` };
-    const rates = this.inputs.rates ? findSeries(this.inputs.rates, id) : undefined;
+    if (!this.inputs.rates) return { missing: `no risk-free rates were given for rate ${id}: give a rate file or a constant rate` };
+    const rates = findSeries(this.inputs.rates, id);
     return rates && rates.dates.length > 0 ? { id, rates } : { missing: `risk-free rate ${id} has no observations` };
   }
 

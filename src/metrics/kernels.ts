@@ -40,8 +40,14 @@ export function isMetricId(text: string): text is MetricId {
 
 export type MetricOutcome = { readonly value: number; readonly reason?: undefined } | { readonly value: null; readonly reason: string };
 
-/** Thrown inside a formula when a figure cannot be computed; caught at the metric's boundary. */
-class NotComputable extends Error {}
+/**
+ * Thrown inside a formula when a figure cannot be computed; caught at the metric's boundary.
+ * Deliberately not an Error: a methodology search meets many refusals, and capturing a stack
+ * trace for each would cost more than the arithmetic.
+ */
+class NotComputable {
+  constructor(readonly reason: string) {}
+}
 
 function refuse(reason: string): never {
   throw new NotComputable(reason);
@@ -59,7 +65,7 @@ export function guarded(formula: () => number): MetricOutcome {
     const value = formula();
     return Number.isFinite(value) ? { value } : { value: null, reason: `the result is not a finite number (${value})` };
   } catch (error) {
-    if (error instanceof NotComputable) return { value: null, reason: error.message };
+    if (error instanceof NotComputable) return { value: null, reason: error.reason };
     throw error;
   }
 }

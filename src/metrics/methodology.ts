@@ -40,6 +40,20 @@ const DIMENSIONS = {
   risk_free: RiskFreeSchema,
 };
 
+/** The values each two-or-three-valued dimension can take, for a methodology search to try. */
+export const DIMENSION_CHOICES = {
+  frequency: DIMENSIONS.frequency.options,
+  sd_denominator: DIMENSIONS.sd_denominator.options,
+  return_type: DIMENSIONS.return_type.options,
+  regression: DIMENSIONS.regression.options,
+  alpha_form: DIMENSIONS.alpha_form.options,
+  mar: DIMENSIONS.mar.options,
+  dd_denominator: DIMENSIONS.dd_denominator.options,
+} as const;
+
+/** Annualisation factors in common use (interface.md). */
+export const COMMON_ANNUALIZATIONS: readonly number[] = [12, 52, 250, 252, 260, 365];
+
 export const MethodologySchema = z.object({
   frequency: DIMENSIONS.frequency.default('monthly'),
   annualization: DIMENSIONS.annualization.default(null),

@@ -108,7 +108,10 @@ export function monthEndIndex(dates: Int32Array, month: number, cutoff: number):
 /** Month-end indices for every month of the span (start month included), −1 where missing. */
 export function monthEndIndices(dates: Int32Array, span: WindowMonths, cutoff: number): Int32Array {
   const indices = new Int32Array(span.months + 1);
-  for (let k = 0; k <= span.months; k++) indices[k] = monthEndIndex(dates, span.startMonth + k, cutoff);
+  for (let k = 0; k <= span.months; k++) {
+    const last = upperBound(dates, Math.min(span.lastDays[k + 1], cutoff)) - 1;
+    indices[k] = last >= 0 && dates[last] > span.lastDays[k] ? last : -1;
+  }
   return indices;
 }
 
@@ -234,7 +237,7 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
   const perPeriod = new Float64Array(periods);
   const missing: string[] = [];
   for (let k = 0; k < periods; k++) {
-    const [from, to] = periodDays(pointDays[k + 1], request.frequency, request.asOf);
+    const [from, to] = periodDays(request, pointDays[k + 1], k);
     const rate = meanRate(source.rates, from, to) ?? lookBackRate(source.rates, from, request.frequency);
     if (rate === null) missing.push(describePeriod(pointDays[k + 1], request.frequency));
     else perPeriod[k] = rate / request.annualization;
@@ -245,12 +248,10 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
   return { ok: false, reason: `no risk-free rate ${source.id} for ${listed}${more}` };
 }
 
-/** First and last epoch day of the period holding `day`, cut at the as-of day. */
-function periodDays(day: number, frequency: Frequency, asOf: number): [number, number] {
-  if (frequency === 'monthly') {
-    const month = monthIndex(day);
-    return [monthStartDay(month), Math.min(monthEndDay(month), asOf)];
-  }
+/** First and last epoch day of period k (ending with the point on `day`), cut at the as-of day. */
+function periodDays(request: WindowRequest, day: number, k: number): [number, number] {
+  const { frequency, asOf, span } = request;
+  if (frequency === 'monthly') return [span.lastDays[k + 1] + 1, Math.min(span.lastDays[k + 2], asOf)];
   const start = periodKey(day, frequency);
   const end = frequency === 'weekly' ? start + 6 : start;
   return [start, Math.min(end, asOf)];

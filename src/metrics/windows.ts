@@ -29,11 +29,19 @@ export interface WindowMonths {
   readonly endMonth: number;
   /** Monthly periods in the window. */
   readonly months: number;
+  /**
+   * Last calendar day of each month from the one before `startMonth` to `endMonth`:
+   * month `startMonth + k` runs from `lastDays[k] + 1` to `lastDays[k + 1]`.
+   */
+  readonly lastDays: Int32Array;
 }
 
 export function windowMonths(asOf: number, months: number, windowEnd: number): WindowMonths {
   const endMonth = monthIndex(asOf) + windowEnd;
-  return { startMonth: endMonth - months, endMonth, months };
+  const startMonth = endMonth - months;
+  const lastDays = new Int32Array(months + 2);
+  for (let k = 0; k < lastDays.length; k++) lastDays[k] = monthEndDay(startMonth - 1 + k);
+  return { startMonth, endMonth, months, lastDays };
 }
 
 /** `2026-03` for a month index. */

@@ -92,7 +92,9 @@ describe('figures that cannot be computed are null with a reason', () => {
   });
 
   it('no rate file and no constant rate', () => {
-    expect(figure(base, 'sharpe', DEFAULT_METHODOLOGY).reason).toBe('risk-free rate RF has no observations');
+    expect(figure(base, 'sharpe', DEFAULT_METHODOLOGY).reason).toBe('no risk-free rates were given for rate RF: give a rate file or a constant rate');
+    const otherRate = { ...base, rates: frame({ OTHER: { dates: DATES, values: DATES.map(() => 0.01) } }) };
+    expect(figure(otherRate, 'sharpe', DEFAULT_METHODOLOGY).reason).toBe('risk-free rate RF has no observations');
     const noRateId = { ...base, master: [masterRecord('F', 'B')] };
     expect(figure(noRateId, 'treynor', DEFAULT_METHODOLOGY).reason).toMatch(/series F has no rate_id/);
   });
