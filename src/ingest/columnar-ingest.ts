@@ -322,9 +322,18 @@ function assembleResult(file: ColumnarFile, kind: FileKind, found: readonly Foun
   }
   const length = file.rowCount - rejected.length;
   const lines = new Int32Array(length);
-  for (let i = 0; i < length; i++) lines[i] = (keep ? keep[i] : i) + 1;
+  for (let i = 0; i < length; i++) lines[i] = lineOfRecord(keep ? keep[i] : i);
   const table: CanonicalTable = { kind, length, lines, columns };
   return { file: file.fileName, kind, table, rejected, rows: { read: file.rowCount, accepted: length, rejected: rejected.length } };
+}
+
+/**
+ * Records are numbered as the lines of the same table written as a canonical CSV (the header
+ * is line 1, so the first record is line 2): the same data in CSV, Arrow or Parquet then gives
+ * the same findings, evidence lines included.
+ */
+function lineOfRecord(row: number): number {
+  return row + 2;
 }
 
 /** The rows to keep, or null when every row is kept and the columns can be used as they are. */
@@ -339,7 +348,7 @@ function acceptedRows(problemOf: Int16Array, acceptedCount: number): Int32Array 
 function rejectedRow(fileName: string, found: readonly FoundColumn[], row: number, culprit: FoundColumn): RejectedRow {
   const record: Record<string, string | number | boolean | null> = {};
   for (const { sourceName, source } of found) record[sourceName] = rawValue(source, row);
-  return { file: fileName, line: row + 1, raw: JSON.stringify(record), reason: problemReason(culprit, row) };
+  return { file: fileName, line: lineOfRecord(row), raw: JSON.stringify(record), reason: problemReason(culprit, row) };
 }
 
 function rawValue(source: SourceColumn, row: number): string | number | boolean | null {

@@ -17,7 +17,10 @@ export type Column =
 export interface CanonicalTable {
   readonly kind: FileKind;
   readonly length: number;
-  /** Source line (1-based; a CSV header is line 1) or, for Arrow and Parquet, record number (1-based). */
+  /**
+   * Source line (1-based; a CSV header is line 1). Arrow and Parquet records are numbered as the
+   * lines of the same table written as CSV: record k (1-based) is line k + 1.
+   */
   readonly lines: Int32Array;
   /** Canonical column name → column; optional columns absent from the source are absent here. */
   readonly columns: Readonly<Record<string, Column>>;

@@ -29,7 +29,7 @@ const ids = (values: (string | null)[]) => vectorFromArray(values, new Dictionar
 const ipc = (columns: Record<string, Vector>, format: 'file' | 'stream' = 'file') => tableToIPC(new Table(columns), format);
 
 describe('readArrowBuffer', () => {
-  it('reads a canonical NAV table written by canonicalToArrowIpc unchanged, numbering records from 1', () => {
+  it('reads a canonical NAV table written by canonicalToArrowIpc unchanged, numbering records as the lines of the same CSV (the first record is line 2)', () => {
     const rows = [
       { series_id: 'FUND-A', date: '2026-11-27', nav: 101.25 },
       { series_id: 'FUND-B', date: '2026-11-27', nav: 9.87 },
@@ -38,7 +38,7 @@ describe('readArrowBuffer', () => {
     const source = tableFromRows('nav', ['series_id', 'date', 'nav'], rows, [10, 11, 12]);
     const result = readArrowBuffer(canonicalToArrowIpc(source), 'nav.arrow', 'nav', DEFAULT_PROFILE);
     expect(rowsOf(result.table)).toEqual(rows);
-    expect([...result.table.lines]).toEqual([1, 2, 3]);
+    expect([...result.table.lines]).toEqual([2, 3, 4]);
     expect(result.rows).toEqual({ read: 3, accepted: 3, rejected: 0 });
     const series = result.table.columns.series_id;
     expect(series.type === 'text' && series.dictionary).toEqual(['FUND-A', 'FUND-B']);
@@ -117,14 +117,14 @@ describe('readArrowBuffer', () => {
     expect(result.rows).toEqual({ read: 6, accepted: 1, rejected: 5 });
     expect(result.rows.read).toBe(result.rows.accepted + result.rows.rejected);
     expect(result.rejected).toEqual([
-      { file: 'bad.arrow', line: 2, raw: '{"series_id":null,"date":"2026-11-30","nav":2}', reason: 'series_id is missing.' },
-      { file: 'bad.arrow', line: 3, raw: '{"series_id":"S2","date":"not a date","nav":3}', reason: 'date "not a date" is not a date.' },
-      { file: 'bad.arrow', line: 4, raw: '{"series_id":"S3","date":"2026-11-30","nav":null}', reason: 'nav is missing.' },
-      { file: 'bad.arrow', line: 5, raw: '{"series_id":null,"date":"2026-11-30","nav":4}', reason: 'series_id is missing.' },
-      { file: 'bad.arrow', line: 6, raw: '{"series_id":"S4","date":"2026-02-30","nav":5}', reason: 'date "2026-02-30" is not a date.' },
+      { file: 'bad.arrow', line: 3, raw: '{"series_id":null,"date":"2026-11-30","nav":2}', reason: 'series_id is missing.' },
+      { file: 'bad.arrow', line: 4, raw: '{"series_id":"S2","date":"not a date","nav":3}', reason: 'date "not a date" is not a date.' },
+      { file: 'bad.arrow', line: 5, raw: '{"series_id":"S3","date":"2026-11-30","nav":null}', reason: 'nav is missing.' },
+      { file: 'bad.arrow', line: 6, raw: '{"series_id":null,"date":"2026-11-30","nav":4}', reason: 'series_id is missing.' },
+      { file: 'bad.arrow', line: 7, raw: '{"series_id":"S4","date":"2026-02-30","nav":5}', reason: 'date "2026-02-30" is not a date.' },
     ]);
     expect(rowsOf(result.table)).toEqual([{ series_id: 'S1', date: '2026-11-30', nav: 1.5 }]);
-    expect([...result.table.lines]).toEqual([1]);
+    expect([...result.table.lines]).toEqual([2]);
   });
 
   it('rejects text its column does not allow and optional values that are present but unreadable', () => {
@@ -137,8 +137,8 @@ describe('readArrowBuffer', () => {
     const result = readArrowBuffer(bytes, 'master.arrow', 'master', DEFAULT_PROFILE);
     expect(result.rows).toEqual({ read: 3, accepted: 1, rejected: 2 });
     expect(result.rejected.map((row) => [row.line, row.reason])).toEqual([
-      [2, 'stable_value "maybe" is not true or false.'],
-      [3, 'inception "soon" is not a date.'],
+      [3, 'stable_value "maybe" is not true or false.'],
+      [4, 'inception "soon" is not a date.'],
     ]);
     expect(rowsOf(result.table)).toEqual([{ series_id: 'S1', benchmark_id: 'B1', stable_value: true, inception: '2020-01-31' }]);
 

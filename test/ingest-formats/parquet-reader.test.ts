@@ -41,7 +41,7 @@ describe('readParquetBuffer', () => {
       { benchmark_id: 'IDX', date: '1969-12-31', level: 2000 },
     ]);
     expect(result.rejected).toEqual([
-      { file: 'levels.parquet', line: 3, raw: '{"benchmark_id":"IDX","date":null,"level":3000}', reason: 'date is missing.' },
+      { file: 'levels.parquet', line: 4, raw: '{"benchmark_id":"IDX","date":null,"level":3000}', reason: 'date is missing.' },
     ]);
   });
 
@@ -63,7 +63,7 @@ describe('readParquetBuffer', () => {
     expect(result.rows).toEqual({ read: 3, accepted: 2, rejected: 1 });
     expect(result.rejected[0]).toEqual({
       file: 'vendor.parquet',
-      line: 3,
+      line: 4,
       raw: '{"ISIN-like code":"ZZ0000000003","Px Date":"02/30/2026","Px":"n/a"}',
       reason: 'Px Date (date) "02/30/2026" is not a date.',
     });
@@ -78,10 +78,10 @@ describe('readParquetBuffer', () => {
     const result = await readParquetBuffer(bytes, 'rates.parquet', 'rates', DEFAULT_PROFILE);
     expect(result.rows).toEqual({ read: 5, accepted: 1, rejected: 4 });
     expect(result.rejected.map((row) => [row.line, row.reason])).toEqual([
-      [2, 'date "garbage" is not a date.'],
-      [3, 'rate_id is missing.'],
-      [4, 'rate is missing.'],
+      [3, 'date "garbage" is not a date.'],
+      [4, 'rate_id is missing.'],
       [5, 'rate is missing.'],
+      [6, 'rate is missing.'],
     ]);
   });
 

@@ -115,7 +115,7 @@ describe('canonical tables survive Arrow IPC and Parquet unchanged', () => {
         const result = readArrowBuffer(canonicalToArrowIpc(build(generated)), 'any.arrow', generated.kind, DEFAULT_PROFILE);
         expect(result.rows).toEqual({ read: generated.rows.length, accepted: generated.rows.length, rejected: 0 });
         expect(rowsOf(result.table)).toEqual(expectedFromFeedReader(generated));
-        expect([...result.table.lines]).toEqual(generated.rows.map((_, row) => row + 1));
+        expect([...result.table.lines]).toEqual(generated.rows.map((_, row) => row + 2)); // record k is CSV line k + 1
       }),
       { numRuns: 150 },
     );
@@ -141,13 +141,13 @@ describe('canonical tables survive Arrow IPC and Parquet unchanged', () => {
     await fc.assert(
       fc.asyncProperty(navWithHoles, async (rows) => {
         const table = tableFromRows('nav', ['series_id', 'date', 'nav'], rows);
-        const bad = rows.flatMap((row, index) => (Object.values(row).includes(null) ? [index + 1] : []));
+        const bad = rows.flatMap((row, index) => (Object.values(row).includes(null) ? [index + 2] : [])); // as CSV lines
         const arrow = readArrowBuffer(canonicalToArrowIpc(table), 'holes.arrow', 'nav', DEFAULT_PROFILE);
         const parquet = await readParquetBuffer(canonicalToParquetBuffer(table), 'holes.parquet', 'nav', DEFAULT_PROFILE);
         for (const result of [arrow, parquet]) {
           expect(result.rows).toEqual({ read: rows.length, accepted: rows.length - bad.length, rejected: bad.length });
           expect(result.rejected.map((row) => row.line)).toEqual(bad);
-          const good = rows.filter((_, index) => !bad.includes(index + 1));
+          const good = rows.filter((_, index) => !bad.includes(index + 2));
           expect(rowsOf(result.table)).toEqual(rowsOf(tableFromRows('nav', ['series_id', 'date', 'nav'], good)));
         }
       }),

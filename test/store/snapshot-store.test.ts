@@ -122,10 +122,10 @@ describe('writeSnapshot and readSnapshot', () => {
       { series_id: 'FUND-1', date: '2026-11-30', nav: 101.5 },
       { series_id: 'FUND-3', date: '2026-11-30', nav: 99.25 },
     ]);
-    expect([...loaded.tables.nav!.lines]).toEqual([1, 3]);
+    expect([...loaded.tables.nav!.lines]).toEqual([2, 4]); // records 1 and 3, numbered as CSV lines
     expect(rowsOf(loaded.tables.master!)).toEqual(masterRows);
     expect(loaded.rejected).toEqual([
-      { file: nav.path, line: 2, raw: '{"series_id":"FUND-2","date":"2026-11-30","nav":null}', reason: 'nav is missing.' },
+      { file: nav.path, line: 3, raw: '{"series_id":"FUND-2","date":"2026-11-30","nav":null}', reason: 'nav is missing.' },
       quirky,
     ]);
     expect(readFileSync(join(ref.dir, 'rejected.csv'), 'utf8').split('\n')[0]).toBe('file,line,raw,reason');
