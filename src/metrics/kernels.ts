@@ -117,7 +117,8 @@ const FORMULAS: Readonly<Record<MetricId, Formula>> = {
   tracking_error: (stats, m) => trackingError(stats, m),
   information_ratio: (stats, m) => informationRatio(stats, m),
   treynor: (stats, m) => treynor(stats, m),
-  max_drawdown: (stats) => stats.maxDrawdown,
+  max_drawdown: (stats) =>
+    Number.isNaN(stats.maxDrawdown) ? refuse('a NAV in the window is not a positive number') : stats.maxDrawdown,
 };
 
 // ---------------------------------------------------------------------------------------------

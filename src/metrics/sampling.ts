@@ -58,7 +58,9 @@ export function sampleWindow(request: WindowRequest): Outcome<WindowSample> {
   const { fund, span, asOf, frequency } = request;
   const fundMonthEnds = coverWindow(fund, span, asOf, 'NAV');
   if (!fundMonthEnds.ok) return fundMonthEnds;
-  const points = samplePoints(fund.dates, fundMonthEnds.value, frequency);
+  const sampled = positiveAt(fund, samplePoints(fund.dates, fundMonthEnds.value, frequency), 'NAV');
+  if (!sampled.ok) return sampled;
+  const points = sampled.value;
   const pointDays = gatherDays(fund.dates, points);
   const first = points[0];
   const last = points[points.length - 1];
@@ -115,22 +117,28 @@ export function monthEndIndices(dates: Int32Array, span: WindowMonths, cutoff: n
   return indices;
 }
 
-const LISTED_MONTHS = 12;
+/** Reasons name at most this many missing months or periods. */
+const LISTED_AT_MOST = 12;
 
 /** The span's month-end indices, or the reason the series cannot cover it. */
 export function coverWindow(series: Observations, span: WindowMonths, cutoff: number, what: string): Outcome<Int32Array> {
-  if (series.dates.length === 0 || series.dates[0] > cutoff) return { ok: false, reason: `no ${what} observations` };
+  if (series.dates.length === 0 || series.dates[0] > cutoff) return { ok: false, reason: `no ${what} observations on or before the as-of day` };
   const indices = monthEndIndices(series.dates, span, cutoff);
   const missing: number[] = [];
   indices.forEach((index, k) => index < 0 && missing.push(span.startMonth + k));
   if (missing.length > 0) return { ok: false, reason: missingMonthsReason(series, span, missing, what) };
-  for (const index of indices) {
+  return positiveAt(series, indices, what);
+}
+
+/** The sample points, or the reason one of their values cannot start or end a return. */
+function positiveAt(series: Observations, points: Int32Array, what: string): Outcome<Int32Array> {
+  for (const index of points) {
     const value = series.values[index];
-    if (!(value > 0) || !Number.isFinite(value)) {
+    if (!(value > 0 && value < Infinity)) {
       return { ok: false, reason: `${what} ${value} on ${formatIsoDate(series.dates[index])} is not a positive number` };
     }
   }
-  return { ok: true, value: indices };
+  return { ok: true, value: points };
 }
 
 function missingMonthsReason(series: Observations, span: WindowMonths, missing: number[], what: string): string {
@@ -141,8 +149,8 @@ function missingMonthsReason(series: Observations, span: WindowMonths, missing: 
       `the first ${what} observation is on ${formatIsoDate(firstDay)}`
     );
   }
-  const listed = missing.slice(0, LISTED_MONTHS).map(formatMonth).join(', ');
-  const more = missing.length > LISTED_MONTHS ? ` and ${missing.length - LISTED_MONTHS} more` : '';
+  const listed = missing.slice(0, LISTED_AT_MOST).map(formatMonth).join(', ');
+  const more = missing.length > LISTED_AT_MOST ? ` and ${missing.length - LISTED_AT_MOST} more` : '';
   return `missing ${what} month-end values for ${listed}${more}`;
 }
 
@@ -193,11 +201,9 @@ function benchmarkReturns(request: WindowRequest, pointDays: Int32Array): Outcom
   const label = `benchmark ${source.id}`;
   const monthEnds = coverWindow(source.levels, request.span, request.asOf, `${label} level`);
   if (!monthEnds.ok) return monthEnds;
-  const points =
-    request.frequency === 'monthly'
-      ? monthEnds.value
-      : alignedPoints(source.levels.dates, monthEnds.value, pointDays, request.frequency);
-  return { ok: true, value: returnsAt(source.levels.values, points) };
+  if (request.frequency === 'monthly') return { ok: true, value: returnsAt(source.levels.values, monthEnds.value) };
+  const aligned = positiveAt(source.levels, alignedPoints(source.levels.dates, monthEnds.value, pointDays, request.frequency), `${label} level`);
+  return aligned.ok ? { ok: true, value: returnsAt(source.levels.values, aligned.value) } : aligned;
 }
 
 /**
@@ -243,8 +249,8 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
     else perPeriod[k] = rate / request.annualization;
   }
   if (missing.length === 0) return { ok: true, value: perPeriod };
-  const listed = missing.slice(0, LISTED_MONTHS).join(', ');
-  const more = missing.length > LISTED_MONTHS ? ` and ${missing.length - LISTED_MONTHS} more` : '';
+  const listed = missing.slice(0, LISTED_AT_MOST).join(', ');
+  const more = missing.length > LISTED_AT_MOST ? ` and ${missing.length - LISTED_AT_MOST} more` : '';
   return { ok: false, reason: `no risk-free rate ${source.id} for ${listed}${more}` };
 }
 

@@ -27,7 +27,7 @@ export interface WindowStatistics {
   readonly log: BasisStatistics;
   /** Σ ln(1 + r): compounding in log space, for annualised (geometric) returns. */
   readonly growth: { readonly fund: number; readonly benchmark: number; readonly riskFree: number };
-  /** Largest peak-to-trough fall of the NAV path, a positive decimal (0 when it never falls). */
+  /** Largest peak-to-trough fall of the NAV path, a positive decimal (0 when it never falls; NaN when a NAV is not positive). */
   readonly maxDrawdown: number;
   readonly navObservations: number;
   /** Why benchmark figures cannot be computed, or null when they can. */
@@ -78,12 +78,13 @@ export function basisStatistics(fund: Float64Array, benchmark: Float64Array, ris
   return stats;
 }
 
-/** The largest fall from a running peak, as a positive fraction of the peak. */
+/** The largest fall from a running peak, as a positive fraction of the peak; NaN if a value is not positive. */
 export function maxDrawdown(values: ArrayLike<number>): number {
   let peak = -Infinity;
   let deepest = 0;
   for (let i = 0; i < values.length; i++) {
     const value = values[i];
+    if (!(value > 0 && value < Infinity)) return NaN;
     if (value > peak) peak = value;
     else deepest = Math.max(deepest, 1 - value / peak);
   }

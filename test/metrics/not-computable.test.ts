@@ -105,6 +105,30 @@ describe('figures that cannot be computed are null with a reason', () => {
     expect(figure({ ...base, nav: frame({ F: { dates: DATES, values } }) }, 'std_dev').reason).toBe('NAV 0 on 2025-12-31 is not a positive number');
   });
 
+  it('a non-positive NAV inside a month: max_drawdown and daily figures are null, monthly ones are not', () => {
+    const midMonth = epochDay(2025, 12, 15);
+    const dates = [...DATES.slice(0, 7), midMonth, ...DATES.slice(7)].sort((a, b) => a - b);
+    const levels = compound(RETURNS);
+    const values = dates.map((d) => (d === midMonth ? -1 : levels[DATES.indexOf(d)]));
+    const inputs = { ...base, nav: frame({ F: { dates, values } }) };
+    expect(figure(inputs, 'max_drawdown').reason).toBe('a NAV in the window is not a positive number');
+    expect(figure(inputs, 'std_dev').value).toBeGreaterThan(0);
+    expect(figure(inputs, 'std_dev', withChanges(NO_RATE, { frequency: 'daily' })).reason).toBe('NAV -1 on 2025-12-15 is not a positive number');
+  });
+
+  it('weekly rates: a week without a fixing takes the latest within 31 days, else the figure is null', () => {
+    const weekly = withChanges(DEFAULT_METHODOLOGY, { frequency: 'weekly' });
+    const fewFixings = (gapFrom: number, gapTo: number) => ({
+      ...base,
+      rates: frame({ RF: { dates: DATES.filter((d) => d < gapFrom || d > gapTo), values: DATES.filter((d) => d < gapFrom || d > gapTo).map(() => 0.03) } }),
+    });
+    // The NAV and the rates are both month-end only, so each weekly period is one month long.
+    // Without the 2025-09-30 fixing, that week takes the 2025-08-31 one (29 days before it).
+    expect(figure(fewFixings(DATES[3], DATES[3]), 'sharpe', weekly).value).toEqual(expect.any(Number));
+    // Without the 2025-10-31 fixing too, its week (from 2025-10-27) finds none in 31 days.
+    expect(figure(fewFixings(DATES[3], DATES[4]), 'sharpe', weekly).reason).toBe('no risk-free rate RF for the week of 2025-10-27');
+  });
+
   it('an unknown window label is a usage error', () => {
     expect(() => figure(base, 'std_dev', NO_RATE, 'three years')).toThrow(RangeError);
     expect(parseWindow('36m')).toBe(36);
