@@ -121,18 +121,33 @@ function judgeQuarter(series: SeriesSlice, returns: SeriesReturns, benchmark: Se
   const quarter = Math.floor(monthIndex(series.dates[returns.to[steps[0]]]) / 3);
   const correlations = new Map<number, number>();
   if (steps.length < params.min_steps) return { quarter, steps, lag: 0, correlations };
-  const fund = new Float64Array(steps.length);
-  const bench = new Float64Array(steps.length);
-  for (let lag = -params.max_lag; lag <= params.max_lag; lag++) {
-    let n = 0;
-    for (const k of steps) {
-      const p = returns.benchFrom[k] + lag;
-      const q = returns.benchTo[k] + lag;
-      if (p < 0 || q >= benchmark.values.length) continue;
-      fund[n] = returns.fund[k];
-      bench[n++] = Math.log(benchmark.values[q] / benchmark.values[p]);
-    }
-    if (n >= params.min_steps) correlations.set(lag, correlation(winsorized(fund.subarray(0, n)), winsorized(bench.subarray(0, n)), n));
+  // Only steps every lag can price, so that all lags compare the same days.
+  const usable: number[] = [];
+  for (const k of steps) {
+    if (returns.benchFrom[k] - params.max_lag >= 0 && returns.benchTo[k] + params.max_lag < benchmark.values.length) usable.push(k);
+  }
+  if (usable.length < params.min_steps) return { quarter, steps, lag: 0, correlations };
+  const fund = new Float64Array(usable.length);
+  const bench = new Float64Array(usable.length);
+  for (let i = 0; i < usable.length; i++) {
+    fund[i] = returns.fund[usable[i]];
+    bench[i] = returns.bench[usable[i]];
+  }
+  // Fast exit for the common case: when the dates as stamped already correlate this well,
+  // no other lag can beat them by min_gain.
+  const asStamped = correlation(fund, bench);
+  if (asStamped >= 1 - params.min_gain + 0.1) {
+    correlations.set(0, asStamped);
+    return { quarter, steps, lag: 0, correlations };
+  }
+  clipInPlace(fund, clipLimits(fund));
+  const levels = benchmark.values;
+  let limits: [number, number] | undefined;
+  for (const lag of lagsFromZero(params.max_lag)) {
+    for (let i = 0; i < usable.length; i++) bench[i] = Math.log(levels[returns.benchTo[usable[i]] + lag] / levels[returns.benchFrom[usable[i]] + lag]);
+    limits ??= clipLimits(bench);
+    clipInPlace(bench, limits);
+    correlations.set(lag, correlation(fund, bench));
   }
   const atZero = correlations.get(0) ?? NaN;
   let best = 0;
@@ -142,11 +157,22 @@ function judgeQuarter(series: SeriesSlice, returns: SeriesReturns, benchmark: Se
   return { quarter, steps, lag: shifted ? best : 0, correlations };
 }
 
-/** Clipped at 4 robust standard deviations, so one wild day cannot make or break a correlation. */
-function winsorized(values: Float64Array): Float64Array {
+/** 0, then −max…max without 0: lag 0 comes first because its spread sets the clip limits for all. */
+function lagsFromZero(maxLag: number): number[] {
+  const lags = [0];
+  for (let lag = -maxLag; lag <= maxLag; lag++) if (lag !== 0) lags.push(lag);
+  return lags;
+}
+
+/** Limits 4 robust standard deviations from the median, so one wild day cannot make or break a correlation. */
+function clipLimits(values: Float64Array): [number, number] {
   const centre = median(values);
   const limit = 4 * robustScale(values, centre);
-  return values.map((v) => Math.min(centre + limit, Math.max(centre - limit, v)));
+  return [centre - limit, centre + limit];
+}
+
+function clipInPlace(values: Float64Array, [low, high]: [number, number]): void {
+  for (let i = 0; i < values.length; i++) values[i] = values[i] < low ? low : values[i] > high ? high : values[i];
 }
 
 function shiftedSpans(verdicts: QuarterVerdict[]): QuarterVerdict[][] {

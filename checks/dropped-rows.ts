@@ -44,11 +44,13 @@ function vanished(before: SeriesSlice): Finding {
 }
 
 function lostDates(before: SeriesSlice, today: SeriesSlice): Finding[] {
-  const present = new Set(today.dates);
   const lost: Array<{ position: number; day: number; value: number }> = [];
+  let t = 0;
   for (let i = 0; i < before.dates.length; i++) {
     const day = before.dates[i];
-    if (day < today.dates[0] || present.has(day) || (i > 0 && before.dates[i - 1] === day)) continue;
+    while (t < today.dates.length && today.dates[t] < day) t++;
+    const present = t < today.dates.length && today.dates[t] === day;
+    if (day < today.dates[0] || present || (i > 0 && before.dates[i - 1] === day)) continue;
     lost.push({ position: i, day, value: before.values[i] });
   }
   return consecutiveRuns(lost, (a, b) => b.position === a.position + 1).map((run) => {

@@ -51,8 +51,12 @@ export function splitLikeRatio(returns: SeriesReturns, k: number, params: SplitP
   return persists(returns, k, Math.log(ratio), params.persist_days) ? ratio : null;
 }
 
+const LOG_RATIOS = SIMPLE_RATIOS.map(Math.log);
+
 function nearestSimpleRatio(logMove: number, tolerance: number): number | null {
-  for (const ratio of SIMPLE_RATIOS) if (Math.abs(logMove - Math.log(ratio)) < Math.log(1 + tolerance)) return ratio;
+  const band = Math.log(1 + tolerance);
+  if (Math.abs(logMove) < Math.LN2 - band) return null;
+  for (let i = 0; i < LOG_RATIOS.length; i++) if (Math.abs(logMove - LOG_RATIOS[i]) < band) return SIMPLE_RATIOS[i];
   return null;
 }
 

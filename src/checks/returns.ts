@@ -98,7 +98,7 @@ function computeReturns(series: SeriesSlice, context: SeriesContext): SeriesRetu
       adjustedEnd = action.kind === 'split' ? adjustedEnd * action.value : adjustedEnd + action.value;
     }
     fund[k] = Math.log(adjustedEnd / series.values[a]);
-    span[k] = Math.max(1, context.calendars.businessDayDistance(calendar, series.dates[a], series.dates[b]));
+    span[k] = series.dates[b] - series.dates[a] === 1 ? 1 : Math.max(1, context.calendars.businessDayDistance(calendar, series.dates[a], series.dates[b]));
     if (benchmark && benchPositions) {
       const p = benchPositions[k];
       const q = benchPositions[k + 1];
@@ -144,50 +144,50 @@ interface Fit {
 }
 
 /**
- * Least squares of fund on benchmark returns, refitted twice without the gross errors it
+ * Least squares of fund on benchmark returns, refitted without the gross errors the first fit
  * finds (a split of ln 2 among daily moves of 0.01 would otherwise bend the line).
  */
 function fitAgainstBenchmark(fund: Float64Array, bench: Float64Array, span: Float64Array): Fit {
   let fit: Fit = { intercept: 0, beta: 1, scale: Infinity };
-  for (let pass = 0; pass < 3; pass++) {
-    const kept = (k: number) =>
-      Number.isFinite(bench[k]) &&
-      Math.abs(fund[k] - fit.intercept * span[k] - fit.beta * bench[k]) <= GROSS_Z * fit.scale * Math.sqrt(span[k]);
-    fit = leastSquares(fund, bench, span, kept, fit);
-  }
+  for (let pass = 0; pass < 2; pass++) fit = leastSquares(fund, bench, span, fit);
   return fit;
 }
 
-function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Array, kept: (k: number) => boolean, prior: Fit): Fit {
+/** Least squares over the steps the previous fit does not call gross, with the robust scale of the result. */
+function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Array, previous: Fit): Fit {
   let n = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
   for (let k = 0; k < fund.length; k++) {
-    if (!kept(k)) continue;
+    const x = bench[k];
+    const y = fund[k];
+    if (!Number.isFinite(x)) continue;
+    if (Math.abs(y - previous.intercept * span[k] - previous.beta * x) > GROSS_Z * previous.scale * Math.sqrt(span[k])) continue;
     n++;
-    sx += bench[k];
-    sy += fund[k];
-    sxx += bench[k] * bench[k];
-    sxy += bench[k] * fund[k];
+    sx += x;
+    sy += y;
+    sxx += x * x;
+    sxy += x * y;
   }
-  if (n < 3) return { intercept: 0, beta: prior.beta, scale: residualScale(fund, bench, span, 0, prior.beta) };
   const varX = sxx - (sx * sx) / n;
-  const beta = varX > 0 ? (sxy - (sx * sy) / n) / varX : 0;
-  const intercept = (sy - beta * sx) / n;
+  const beta = n >= 3 && varX > 0 ? (sxy - (sx * sy) / n) / varX : previous.beta;
+  const intercept = n >= 3 ? (sy - beta * sx) / n : 0;
   return { intercept, beta, scale: residualScale(fund, bench, span, intercept, beta) };
 }
 
 function residualScale(fund: Float64Array, bench: Float64Array, span: Float64Array, intercept: number, beta: number): number {
-  const perDay: number[] = [];
+  const perDay = new Float64Array(fund.length);
+  let n = 0;
   for (let k = 0; k < fund.length; k++) {
-    if (Number.isFinite(bench[k])) perDay.push((fund[k] - intercept * span[k] - beta * bench[k]) / Math.sqrt(span[k]));
+    if (Number.isFinite(bench[k])) perDay[n++] = (fund[k] - intercept * span[k] - beta * bench[k]) / Math.sqrt(span[k]);
   }
-  return floorScale(robustScale(perDay));
+  return floorScale(robustScale(perDay.subarray(0, n)));
 }
 
 function fitAlone(fund: Float64Array, span: Float64Array): Fit {
-  const perDay = Array.from(fund, (r, k) => r / span[k]);
-  const drift = median(perDay);
-  const deviations = Array.from(fund, (r, k) => (r - drift * span[k]) / Math.sqrt(span[k]));
-  return { intercept: Number.isFinite(drift) ? drift : 0, beta: 0, scale: floorScale(robustScale(deviations, 0)) };
+  const perDay = new Float64Array(fund.length);
+  for (let k = 0; k < fund.length; k++) perDay[k] = fund[k] / span[k];
+  const drift = fund.length > 0 ? median(perDay) : 0;
+  for (let k = 0; k < fund.length; k++) perDay[k] = (fund[k] - drift * span[k]) / Math.sqrt(span[k]);
+  return { intercept: drift, beta: 0, scale: floorScale(robustScale(perDay, 0)) };
 }
 
 /** A flat or perfectly smooth series has zero spread; a tiny floor keeps z finite. */

@@ -64,12 +64,44 @@ export function capped<T>(items: readonly T[], limit = 20): T[] {
   return items.slice(0, limit);
 }
 
+/** Median by quickselect on a copy: linear time, which matters at thousands of series. */
 export function median(values: ArrayLike<number>): number {
-  const sorted = Float64Array.from(values).sort();
-  const n = sorted.length;
+  const n = values.length;
   if (n === 0) return NaN;
-  const middle = n >> 1;
-  return n % 2 === 1 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
+  const work = Float64Array.from(values);
+  const upper = selectKth(work, n >> 1);
+  return n % 2 === 1 ? upper : (maxBelow(work, n >> 1) + upper) / 2;
+}
+
+/** Rearranges `work` so that position k holds the k-th smallest value, and returns it. */
+function selectKth(work: Float64Array, k: number): number {
+  let low = 0;
+  let high = work.length - 1;
+  while (high > low) {
+    const pivot = work[(low + high) >> 1];
+    let i = low;
+    let j = high;
+    while (i <= j) {
+      while (work[i] < pivot) i++;
+      while (work[j] > pivot) j--;
+      if (i <= j) {
+        const t = work[i];
+        work[i++] = work[j];
+        work[j--] = t;
+      }
+    }
+    if (k <= j) high = j;
+    else if (k >= i) low = i;
+    else break;
+  }
+  return work[k];
+}
+
+/** After selectKth(work, k): the largest value left of k, the (k − 1)-th smallest. */
+function maxBelow(work: Float64Array, k: number): number {
+  let max = -Infinity;
+  for (let i = 0; i < k; i++) if (work[i] > max) max = work[i];
+  return max;
 }
 
 /** Median absolute deviation scaled by 1.4826, so it estimates the standard deviation of normal data. */
