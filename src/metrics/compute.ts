@@ -74,7 +74,8 @@ export function computeMetrics(request: ComputeMetricsRequest): MetricsAnswer {
 
 function metricRow(series_id: string, window: string, metric: MetricId, figure: MetricValue): MetricRow {
   const { value, observations, reason } = figure;
-  return reason === undefined ? { series_id, window, metric, value, observations } : { series_id, window, metric, value, observations, reason };
+  const row = { series_id, window, metric, value, observations };
+  return reason === undefined ? row : { ...row, reason };
 }
 
 /** A metric from a window's statistics (or the window's own reason), as the answer reports it. */
@@ -82,7 +83,8 @@ function figureOf(metric: MetricId, stats: Outcome<WindowStatistics>, methodolog
   if (!stats.ok) return { value: null, observations: 0, reason: stats.reason };
   const observations = metric === 'max_drawdown' ? stats.value.navObservations : stats.value.n;
   const outcome = metricFromStatistics(metric, stats.value, methodology);
-  return outcome.value === null ? { value: null, observations, reason: outcome.reason } : { value: outcome.value, observations };
+  if (outcome.value === null) return { value: null, observations, reason: outcome.reason };
+  return { value: outcome.value, observations };
 }
 
 /**
@@ -95,7 +97,9 @@ export class MetricCalculator {
   private readonly cache = new Map<string, Outcome<WindowStatistics>>();
 
   constructor(private readonly inputs: MetricInputs) {
-    for (const record of inputs.master) if (!this.masterById.has(record.series_id)) this.masterById.set(record.series_id, record);
+    for (const record of inputs.master) {
+      if (!this.masterById.has(record.series_id)) this.masterById.set(record.series_id, record);
+    }
   }
 
   /** The methodology as applied: a command-line constant rate replaces its risk-free source. */
@@ -166,16 +170,27 @@ export class MetricCalculator {
     if (source.source === 'none') return { annualRate: 0 };
     if (source.source === 'constant') return { annualRate: source.annual_rate };
     const id = source.rate_id ?? this.masterById.get(seriesId)?.rate_id ?? null;
-    if (id === null) return { missing: `no risk-free rate: series ${seriesId} has no rate_id in the series master and no constant rate was given` };
-    if (!this.inputs.rates) return { missing: `no risk-free rates were given for rate ${id}: give a rate file or a constant rate` };
+    if (id === null) {
+      return { missing: `no risk-free rate: series ${seriesId} has no rate_id in the series master and no constant rate was given` };
+    }
+    if (!this.inputs.rates) {
+      return { missing: `no risk-free rates were given for rate ${id}: give a rate file or a constant rate` };
+    }
     const rates = findSeries(this.inputs.rates, id);
     return rates && rates.dates.length > 0 ? { id, rates } : { missing: `risk-free rate ${id} has no observations` };
   }
 
+  /** Everything that changes a window's sampling; the other dimensions are arithmetic on its statistics. */
   private cacheKey(request: Omit<MetricRequest, 'metric'>, m: Methodology): string {
-    const rate = m.risk_free.source === 'series' ? `series:${m.risk_free.rate_id ?? ''}` : m.risk_free.source === 'constant' ? `constant:${m.risk_free.annual_rate}` : 'none';
-    return [request.seriesId, request.asOf, request.window, m.frequency, m.window_end, m.benchmark ?? '', rate, annualizationOf(m)].join('|');
+    const sampling = [m.frequency, m.window_end, m.benchmark ?? '', riskFreeKey(m), annualizationOf(m)];
+    return [request.seriesId, request.asOf, request.window, ...sampling].join('|');
   }
+}
+
+function riskFreeKey(m: Methodology): string {
+  const source = m.risk_free;
+  if (source.source === 'series') return `series:${source.rate_id ?? ''}`;
+  return source.source === 'constant' ? `constant:${source.annual_rate}` : 'none';
 }
 
 /** One figure, for callers that keep a calculator (reconciliation calls this with many variants). */

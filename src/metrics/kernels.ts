@@ -38,7 +38,9 @@ export function isMetricId(text: string): text is MetricId {
   return (METRIC_IDS as readonly string[]).includes(text);
 }
 
-export type MetricOutcome = { readonly value: number; readonly reason?: undefined } | { readonly value: null; readonly reason: string };
+export type MetricOutcome =
+  | { readonly value: number; readonly reason?: undefined }
+  | { readonly value: null; readonly reason: string };
 
 /**
  * Thrown inside a formula when a figure cannot be computed; caught at the metric's boundary.
@@ -55,7 +57,9 @@ function refuse(reason: string): never {
 
 export function metricFromStatistics(metric: MetricId, stats: WindowStatistics, methodology: Methodology): MetricOutcome {
   if (needsBenchmark(metric) && stats.benchmarkReason !== null) return { value: null, reason: stats.benchmarkReason };
-  if (needsRiskFree(metric, methodology) && stats.riskFreeReason !== null) return { value: null, reason: stats.riskFreeReason };
+  if (needsRiskFree(metric, methodology) && stats.riskFreeReason !== null) {
+    return { value: null, reason: stats.riskFreeReason };
+  }
   return guarded(() => FORMULAS[metric](stats, methodology));
 }
 
@@ -178,11 +182,16 @@ function sortino(stats: WindowStatistics, m: Methodology): number {
   return (annualizationOf(m) * meanOverTarget(basisOf(stats, m), m)) / deviation;
 }
 
-function beta(stats: WindowStatistics, m: Methodology): number {
+/** The regression's pair, once it is known a slope can be fitted to it. */
+function fittableRegression(stats: WindowStatistics, m: Methodology): PairMoments {
   const pair = regressionOf(stats, m);
   if (pair.n < 2) refuse('a regression needs at least 2 periods');
   if (isNegligibleVariance(pair.sumSqX / pair.n, pair.meanX)) refuse('the benchmark returns have zero variance');
-  return slopeYonX(pair);
+  return pair;
+}
+
+function beta(stats: WindowStatistics, m: Methodology): number {
+  return slopeYonX(fittableRegression(stats, m));
 }
 
 function alpha(stats: WindowStatistics, m: Methodology): number {
@@ -190,8 +199,8 @@ function alpha(stats: WindowStatistics, m: Methodology): number {
   if (m.alpha_form === 'excess_return') {
     return annualizedGrowth(stats.growth.fund, stats.n, A) - annualizedGrowth(stats.growth.benchmark, stats.n, A);
   }
+  if (m.alpha_form === 'jensen') return A * interceptYonX(fittableRegression(stats, m));
   const slope = beta(stats, m);
-  if (m.alpha_form === 'jensen') return A * interceptYonX(regressionOf(stats, m));
   const riskFree = annualizedGrowth(stats.growth.riskFree, stats.n, A);
   const fund = annualizedGrowth(stats.growth.fund, stats.n, A);
   const benchmark = annualizedGrowth(stats.growth.benchmark, stats.n, A);
@@ -246,8 +255,7 @@ export function famaBeta(stats: WindowStatistics, m: Methodology): MetricOutcome
 /** Annualised standard deviation of the regression residuals (the risk beta does not explain). */
 export function specificRisk(stats: WindowStatistics, m: Methodology): MetricOutcome {
   return guarded(() => {
-    const pair = regressionOf(stats, m);
-    beta(stats, m);
+    const pair = fittableRegression(stats, m);
     requirePeriods(stats.n, m);
     return annualizedDeviation(residualSumOfSquares(pair) / divisor(pair.n, m.sd_denominator), m);
   });

@@ -122,7 +122,9 @@ const LISTED_AT_MOST = 12;
 
 /** The span's month-end indices, or the reason the series cannot cover it. */
 export function coverWindow(series: Observations, span: WindowMonths, cutoff: number, what: string): Outcome<Int32Array> {
-  if (series.dates.length === 0 || series.dates[0] > cutoff) return { ok: false, reason: `no ${what} observations on or before the as-of day` };
+  if (series.dates.length === 0 || series.dates[0] > cutoff) {
+    return { ok: false, reason: `no ${what} observations on or before the as-of day` };
+  }
   const indices = monthEndIndices(series.dates, span, cutoff);
   const missing: number[] = [];
   indices.forEach((index, k) => index < 0 && missing.push(span.startMonth + k));
@@ -202,7 +204,8 @@ function benchmarkReturns(request: WindowRequest, pointDays: Int32Array): Outcom
   const monthEnds = coverWindow(source.levels, request.span, request.asOf, `${label} level`);
   if (!monthEnds.ok) return monthEnds;
   if (request.frequency === 'monthly') return { ok: true, value: returnsAt(source.levels.values, monthEnds.value) };
-  const aligned = positiveAt(source.levels, alignedPoints(source.levels.dates, monthEnds.value, pointDays, request.frequency), `${label} level`);
+  const points = alignedPoints(source.levels.dates, monthEnds.value, pointDays, request.frequency);
+  const aligned = positiveAt(source.levels, points, `${label} level`);
   return aligned.ok ? { ok: true, value: returnsAt(source.levels.values, aligned.value) } : aligned;
 }
 
@@ -238,7 +241,9 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
   const source = request.riskFree;
   const periods = pointDays.length - 1;
   if ('missing' in source) return { ok: false, reason: source.missing };
-  if ('annualRate' in source) return { ok: true, value: new Float64Array(periods).fill(source.annualRate / request.annualization) };
+  if ('annualRate' in source) {
+    return { ok: true, value: new Float64Array(periods).fill(source.annualRate / request.annualization) };
+  }
 
   const perPeriod = new Float64Array(periods);
   const missing: string[] = [];

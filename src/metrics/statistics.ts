@@ -27,7 +27,10 @@ export interface WindowStatistics {
   readonly log: BasisStatistics;
   /** Σ ln(1 + r): compounding in log space, for annualised (geometric) returns. */
   readonly growth: { readonly fund: number; readonly benchmark: number; readonly riskFree: number };
-  /** Largest peak-to-trough fall of the NAV path, a positive decimal (0 when it never falls; NaN when a NAV is not positive). */
+  /**
+   * Largest peak-to-trough fall of the NAV path, a positive decimal: 0 when it never falls,
+   * NaN when a NAV on the path is not a positive number.
+   */
   readonly maxDrawdown: number;
   readonly navObservations: number;
   /** Why benchmark figures cannot be computed, or null when they can. */

@@ -69,7 +69,11 @@ describe('figures that cannot be computed are null with a reason', () => {
 
   it('zero variance', () => {
     const flat = Array(12).fill(0.004);
-    const inputs = { ...base, nav: frame({ F: { dates: DATES, values: compound(flat) } }), benchmarks: frame({ B: { dates: DATES, values: compound(flat) } }) };
+    const inputs = {
+      ...base,
+      nav: frame({ F: { dates: DATES, values: compound(flat) } }),
+      benchmarks: frame({ B: { dates: DATES, values: compound(flat) } }),
+    };
     expect(figure(inputs, 'sharpe').reason).toBe('the excess returns have zero variance');
     expect(figure(inputs, 'beta').reason).toBe('the benchmark returns have zero variance');
     expect(figure(inputs, 'information_ratio').reason).toBe('the tracking error is zero');
@@ -139,7 +143,14 @@ describe('figures that cannot be computed are null with a reason', () => {
 
 describe('the metrics answer', () => {
   it('has every series, window and metric; values are finite or null with a reason', () => {
-    const answer = computeMetrics({ ...base, master: [...base.master, masterRecord('G', 'B')], asOf: AS_OF, windows: ['1y', '6m', '3y'], methodology: DEFAULT_METHODOLOGY, constantRate: 0.02 });
+    const answer = computeMetrics({
+      ...base,
+      master: [...base.master, masterRecord('G', 'B')],
+      asOf: AS_OF,
+      windows: ['1y', '6m', '3y'],
+      methodology: DEFAULT_METHODOLOGY,
+      constantRate: 0.02,
+    });
     expect(answer.metrics).toHaveLength(2 * 3 * 12);
     expect(answer.methodology.risk_free).toEqual({ source: 'constant', annual_rate: 0.02 });
     for (const row of answer.metrics) {
@@ -159,7 +170,8 @@ describe('the metrics answer', () => {
     const values = compound(RETURNS);
     const dates = [...DATES.slice(0, 12), midMonth, DATES[12]];
     const withMid = { ...base, nav: frame({ F: { dates, values: [...values.slice(0, 12), values[12] * 1.05, values[12]] } }) };
-    const result = new MetricCalculator(withMid).metric({ seriesId: 'F', asOf: midMonth, window: '1y', metric: 'return_annualized', methodology: NO_RATE });
+    const calculator = new MetricCalculator(withMid);
+    const result = calculator.metric({ seriesId: 'F', asOf: midMonth, window: '1y', metric: 'return_annualized', methodology: NO_RATE });
     expect(result.value).toBeCloseTo((values[12] * 1.05) / values[0] - 1, 12);
   });
 });
@@ -167,7 +179,19 @@ describe('the metrics answer', () => {
 describe('methodology configuration', () => {
   it('the default is interface.md’s monthly methodology', () => {
     expect(parseMethodology({})).toEqual(DEFAULT_METHODOLOGY);
-    expect(DEFAULT_METHODOLOGY).toMatchObject({ frequency: 'monthly', sd_denominator: 'sample', return_type: 'simple', regression: 'excess', alpha_form: 'jensen', mar: 'risk_free', dd_denominator: 'full', window_end: 0 });
+    expect(DEFAULT_METHODOLOGY).toEqual({
+      frequency: 'monthly',
+      annualization: null,
+      sd_denominator: 'sample',
+      return_type: 'simple',
+      regression: 'excess',
+      alpha_form: 'jensen',
+      mar: 'risk_free',
+      dd_denominator: 'full',
+      window_end: 0,
+      benchmark: null,
+      risk_free: { source: 'series' },
+    });
   });
 
   it('changes name only the dimensions they change and are checked', () => {
