@@ -48,7 +48,12 @@ export function splitLikeRatio(returns: SeriesReturns, k: number, params: SplitP
   const ratio = nearestSimpleRatio(returns.raw[k] - market, params.ratio_tolerance);
   if (ratio === null) return null;
   if (Number.isFinite(bench) && Math.abs(bench - Math.log(ratio)) < Math.log(1 + params.ratio_tolerance)) return null;
-  return persists(returns, k, Math.log(ratio), params.persist_days) ? ratio : null;
+  return persists(returns, k, Math.log(ratio), params.persist_days) && !undoesPrevious(returns, k) ? ratio : null;
+}
+
+/** The step brings the level back to where it was before the previous step: the end of a spike. */
+function undoesPrevious(returns: SeriesReturns, k: number): boolean {
+  return k > 0 && returns.to[k - 1] === returns.from[k] && Math.abs(returns.raw[k - 1] + returns.raw[k]) < Math.abs(returns.raw[k]) / 2;
 }
 
 const LOG_RATIOS = SIMPLE_RATIOS.map(Math.log);

@@ -1,0 +1,122 @@
+import { describe, expect, it } from 'vitest';
+import { splitLikeJump } from '../../checks/split-like-jump.js';
+import { spikeReversal } from '../../checks/spike-reversal.js';
+import { returnOutlier } from '../../checks/return-outlier.js';
+import { dateShift } from '../../checks/date-shift.js';
+import { action, day, iso, linked, trackingPair } from './helpers.js';
+
+const AT = 150;
+
+function scaledFrom(values: number[], at: number, factor: number): number[] {
+  return values.map((v, i) => (i >= at ? Math.round(v * factor * 1e6) / 1e6 : v));
+}
+
+describe('split_like_jump', () => {
+  const { dates, fund, bench } = trackingPair(11);
+  const halved = scaledFrom(fund, AT, 0.5);
+
+  it('flags an unannounced halving that persists and the benchmark did not make', () => {
+    const { series, context } = linked(dates, halved, bench);
+    const findings = splitLikeJump.run(series, context, splitLikeJump.defaults);
+    expect(findings).toHaveLength(1);
+    expect(findings[0]).toMatchObject({
+      check: 'split_like_jump',
+      severity: 'error',
+      series_id: 'F1',
+      start: iso(dates[AT]),
+      end: iso(dates[AT]),
+      key: `split_like_jump|F1|${iso(dates[AT])}`,
+      evidence: { nearest_simple_ratio: 0.5, previous: { date: iso(dates[AT - 1]), line: AT + 1 }, current: { line: AT + 2 } },
+    });
+  });
+
+  it('keeps an announced split as info, with the action as evidence', () => {
+    const { series, context } = linked(dates, halved, bench, { actions: [action('F1', iso(dates[AT]), 'split', 2)] });
+    const [finding] = splitLikeJump.run(series, context, splitLikeJump.defaults);
+    expect(finding.severity).toBe('info');
+    expect(finding.evidence.corporate_actions).toEqual([{ kind: 'split', ex_date: iso(dates[AT]), value: 2, line: 2 }]);
+    expect(finding.message).toContain('explained by the announced split of 2 new units per old unit');
+  });
+
+  it('leaves a jump that reverses the next day to spike_reversal', () => {
+    const typo = fund.map((v, i) => (i === AT ? v * 10 : v));
+    const { series, context } = linked(dates, typo, bench);
+    expect(splitLikeJump.run(series, context, splitLikeJump.defaults)).toEqual([]);
+    expect(spikeReversal.run(series, context, spikeReversal.defaults).map((f) => f.start)).toEqual([iso(dates[AT])]);
+  });
+
+  it('does not flag a jump the benchmark made too', () => {
+    const { series, context } = linked(dates, halved, scaledFrom(bench, AT, 0.5));
+    expect(splitLikeJump.run(series, context, splitLikeJump.defaults)).toEqual([]);
+  });
+});
+
+describe('spike_reversal', () => {
+  const { dates, fund, bench } = trackingPair(12);
+
+  it('flags a one-day 8 % keying error that is undone the next day', () => {
+    const spiked = fund.map((v, i) => (i === AT ? Math.round(v * 1.08 * 1e4) / 1e4 : v));
+    const { series, context } = linked(dates, spiked, bench);
+    const findings = spikeReversal.run(series, context, spikeReversal.defaults);
+    expect(findings.map((f) => [f.start, f.end, f.severity, f.key])).toEqual([[iso(dates[AT]), iso(dates[AT]), 'error', `spike_reversal|F1|${iso(dates[AT])}`]]);
+    expect(findings[0].evidence).toMatchObject({ spike: { value: spiked[AT], line: AT + 2 }, after: { value: fund[AT + 1] } });
+    expect(returnOutlier.run(series, context, returnOutlier.defaults)).toEqual([]);
+  });
+
+  it('ignores ordinary days and moves smaller than 1 %', () => {
+    const nudged = fund.map((v, i) => (i === AT ? v * 1.004 : v));
+    const { series, context } = linked(dates, nudged, bench);
+    expect(spikeReversal.run(series, context, spikeReversal.defaults)).toEqual([]);
+  });
+});
+
+describe('return_outlier', () => {
+  const { dates, fund, bench } = trackingPair(13);
+
+  it('flags a lasting 9 % move the benchmark did not make', () => {
+    const { series, context } = linked(dates, scaledFrom(fund, AT, 1.09), bench);
+    const findings = returnOutlier.run(series, context, returnOutlier.defaults);
+    expect(findings.map((f) => [f.start, f.severity, f.key])).toEqual([[iso(dates[AT]), 'warning', `return_outlier|F1|${iso(dates[AT])}`]]);
+    expect(findings[0].evidence.robust_z as number).toBeGreaterThan(50);
+    expect(findings[0].evidence.beta as number).toBeCloseTo(1, 1);
+  });
+
+  it('does not flag a clean tracking fund, nor a big market day it follows', () => {
+    const { series, context } = linked(dates, fund, bench);
+    expect(returnOutlier.run(series, context, returnOutlier.defaults)).toEqual([]);
+    const crash = (values: number[]) => scaledFrom(values, AT, 0.92);
+    const shocked = linked(dates, crash(fund), crash(bench));
+    expect(returnOutlier.run(shocked.series, shocked.context, returnOutlier.defaults)).toEqual([]);
+  });
+});
+
+describe('date_shift', () => {
+  const { dates, fund, bench } = trackingPair(14, 320);
+  const SHIFT_FROM = 190;
+  const late = fund.map((v, i) => (i >= SHIFT_FROM ? fund[i - 1] : v));
+
+  it('finds values stamped one business day late, with the lag and where it starts', () => {
+    const { series, context } = linked(dates, late, bench);
+    const findings = dateShift.run(series, context, dateShift.defaults);
+    expect(findings).toHaveLength(1);
+    expect(findings[0]).toMatchObject({
+      severity: 'error',
+      end: iso(dates[dates.length - 1]),
+      evidence: { stamped_late_by_business_days: 1, benchmark_id: 'BM1' },
+    });
+    // The switch is placed where the lagged fit starts winning; on days the benchmark barely
+    // moves both fits are equal, so the estimate may trail the true switch by a few days.
+    const start = dates.indexOf(day(findings[0].start!));
+    expect(start - SHIFT_FROM).toBeGreaterThanOrEqual(0);
+    expect(start - SHIFT_FROM).toBeLessThanOrEqual(3);
+    expect(findings[0].key).toBe(`date_shift|F1|1|${findings[0].start}`);
+  });
+
+  it('finds nothing on a well-dated fund, and the shifted days raise no outliers or spikes', () => {
+    const clean = linked(dates, fund, bench);
+    expect(dateShift.run(clean.series, clean.context, dateShift.defaults)).toEqual([]);
+    const shifted = linked(dates, late, bench);
+    expect(returnOutlier.run(shifted.series, shifted.context, returnOutlier.defaults)).toEqual([]);
+    expect(spikeReversal.run(shifted.series, shifted.context, spikeReversal.defaults)).toEqual([]);
+  });
+});
