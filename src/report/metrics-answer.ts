@@ -19,13 +19,19 @@ export function metricsView(answer: MetricsAnswer): ReportView {
   return {
     title: `navassay risk figures, as of ${answer.as_of}`,
     preface: [
-      `Methodology: ${m.frequency} returns, annualised by ${annualizationOf(m)}, ${m.sd_denominator} deviation, ${m.return_type} returns, regression on ${m.regression} returns, alpha ${m.alpha_form}.`,
+      `Methodology: ${m.frequency} returns, annualised by ${annualizationOf(m)}, ${m.sd_denominator} deviation, ${m.return_type} returns, regression on ${m.regression} returns, alpha ${m.alpha_form}, risk-free ${describeRiskFree(m.risk_free)}.`,
       `Figures: ${answer.metrics.length - missing} computed, ${missing} not computable (the json output gives each reason). Decimals: 0.1234 is 12.34 %.`,
     ],
     columns: ['series', 'window', ...metricIds],
     rows: [...rows.values()],
     emptyText: 'No series to compute.',
   };
+}
+
+function describeRiskFree(riskFree: MetricsAnswer['methodology']['risk_free']): string {
+  if (riskFree.source === 'none') return 'none (zero)';
+  if (riskFree.source === 'constant') return `a constant ${riskFree.annual_rate} a year`;
+  return riskFree.rate_id ? `rate series ${riskFree.rate_id}` : "each series' rate_id in the master";
 }
 
 function round(value: number): number {

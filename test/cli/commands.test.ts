@@ -129,6 +129,9 @@ describe('demo and run', () => {
     }
     expect(existsSync(join(dir, 'store', 'bramblecourt-daily', '2026-11-30', 'manifest.json'))).toBe(true);
     const metrics = JSON.parse(readFileSync(join(dir, 'report', 'metrics.json'), 'utf8'));
+    // NVA0008's announced 10-for-1 split must not read as a 90 % loss: NAVs are adjusted first.
+    const splitFund = metrics.metrics.find((f: { series_id: string; window: string; metric: string }) => f.series_id === 'NVA0008' && f.window === '1y' && f.metric === 'max_drawdown');
+    expect(splitFund.value).toBeLessThan(0.5);
     for (const figure of metrics.metrics) {
       if (figure.value === null) expect(figure.reason, JSON.stringify(figure)).toBeTruthy();
       else expect(Number.isFinite(figure.value)).toBe(true);

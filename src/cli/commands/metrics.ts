@@ -5,6 +5,7 @@ import { loadFeed } from '../../ingest/feed.js';
 import { computeMetrics } from '../../metrics/compute.js';
 import { DEFAULT_METHODOLOGY } from '../../metrics/methodology.js';
 import { parseWindow } from '../../metrics/windows.js';
+import { adjustForCorporateActions } from '../../series/adjust.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { render } from '../../report/render.js';
 import { asOfOption, chosenFormat, formatOption, outOption, parseAsOf } from '../options.js';
@@ -16,6 +17,7 @@ interface MetricsOptions {
   master: string;
   rates?: string;
   rf?: string;
+  actions?: string;
   asOf?: string;
   windows: string;
   format?: string;
@@ -29,7 +31,8 @@ export function metricsCommand(): Command {
     .requiredOption('--benchmarks <file>', 'benchmark levels (benchmark_id, date, level)')
     .requiredOption('--master <file>', 'series master (series_id, benchmark_id, [rate_id] …)')
     .addOption(new Option('--rates <file>', 'risk-free rates (rate_id, date, rate), matched by the master\'s rate_id').conflicts('rf'))
-    .addOption(new Option('--rf <rate>', 'a constant annual risk-free rate as a decimal, such as 0.02'))
+    .addOption(new Option('--rf <rate>', 'a constant annual risk-free rate as a decimal, such as 0.02 (with neither --rates nor --rf the rate is zero, and the answer\'s methodology says risk_free: none)'))
+    .option('--actions <file>', 'corporate actions: NAVs are adjusted for the splits and distributions it lists, so returns are total returns')
     .addOption(asOfOption('the last month-end on or before today'))
     .option('--windows <list>', 'comma-separated windows such as 1y,3y,5y or 6m', '1y,3y,5y')
     .addOption(formatOption())
@@ -43,10 +46,10 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   const asOf = parseAsOf(options.asOf, lastMonthEnd);
   const windows = parseWindowList(options.windows);
   const constantRate = options.rf === undefined ? undefined : parseRate(options.rf);
-  const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates });
+  const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions });
   const methodology = constantRate === undefined && options.rates === undefined ? { ...DEFAULT_METHODOLOGY, risk_free: { source: 'none' as const } } : DEFAULT_METHODOLOGY;
   const answer = computeMetrics({
-    nav: feed.nav,
+    nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
     benchmarks: feed.benchmarks!,
     master: feed.master!,
     rates: feed.rates,

@@ -9,6 +9,7 @@ import { computeMetrics, type MetricsAnswer } from '../../metrics/compute.js';
 import { checkAnswer, checkView, failsOn, type CheckAnswer } from '../../report/check-answer.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { render, type OutputFormat } from '../../report/render.js';
+import { adjustForCorporateActions } from '../../series/adjust.js';
 import type { SeriesFrame } from '../../series/frame.js';
 import { asOfOption, chosenFormat, failOnOption, formatOption, outOption, parseAsOf, parseFailOn } from '../options.js';
 import { emit, writeFileAtomically, writeQuarantine } from '../output.js';
@@ -73,12 +74,12 @@ async function previousNav(config: RunConfig, asOf: number): Promise<SeriesFrame
   return previousNavFromStore(config, asOf);
 }
 
-/** Risk figures at the last month-end on or before the as-of date. */
+/** Risk figures at the last month-end on or before the as-of date, on NAVs adjusted for announced splits and distributions. */
 function runMetrics(config: RunConfig, feed: LoadedFeed, asOf: number): MetricsAnswer {
   const month = monthIndex(asOf);
   const metricsAsOf = monthEndDay(month) === asOf ? asOf : monthEndDay(month - 1);
   return computeMetrics({
-    nav: feed.nav,
+    nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
     benchmarks: feed.benchmarks!,
     master: feed.master!,
     rates: feed.rates,
