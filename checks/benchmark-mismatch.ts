@@ -9,6 +9,7 @@ interface MismatchParams {
   index_r2: number;
   poor_r2: number;
   good_r2: number;
+  min_gain: number;
   window_weeks: number;
   min_weeks: number;
   [key: string]: number;
@@ -30,14 +31,15 @@ interface Week {
  * close) over the last `window_weeks` weeks. An index fund (category containing "index",
  * "indexed", "tracker", "passive" or "ETF") is expected to reach R² ≥ `index_r2` (0.99); it is
  * flagged when it falls short and another benchmark reaches it. Any other fund is flagged when
- * its R² is below `poor_r2` (0.6, under the 0.80–0.95 usual for an active fund against a
- * fitting benchmark) and another benchmark reaches `good_r2` (0.8).
+ * its R² is below `poor_r2` (0.6, well under the 0.80–0.95 usual for an active fund against a
+ * fitting benchmark) and another benchmark reaches `good_r2` (0.7) and beats the assigned one
+ * by `min_gain` (0.2), so two loosely related indices do not trade places on noise.
  */
 export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
   id: 'benchmark_mismatch',
   scope: 'series',
   purpose: 'The fund fits its assigned benchmark poorly while another benchmark fits it well.',
-  defaults: { index_r2: 0.99, poor_r2: 0.6, good_r2: 0.7, window_weeks: 156, min_weeks: 26 },
+  defaults: { index_r2: 0.99, poor_r2: 0.6, good_r2: 0.7, min_gain: 0.2, window_weeks: 156, min_weeks: 26 },
   run(series, context, params) {
     const { benchmark, benchmarks, master } = context;
     if (!benchmark || !benchmarks) return [];
@@ -47,7 +49,7 @@ export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
     const expected = isIndexFund ? params.index_r2 : params.poor_r2;
     if (!(assigned < expected)) return [];
     const better = bestAlternative(weeks, benchmarks, benchmark.id, params.min_weeks);
-    const bar = isIndexFund ? params.index_r2 : params.good_r2;
+    const bar = isIndexFund ? params.index_r2 : Math.max(params.good_r2, assigned + params.min_gain);
     if (!better || better.r2 < bar) return [];
     const start = weeks[0].start;
     const end = weeks[weeks.length - 1].end;

@@ -6,7 +6,7 @@ import { makeFinding } from '../src/checks/support.js';
 
 /**
  * Identifiers that cannot be right: series ids shaped like an ISIN whose ISO 6166 check digit
- * is wrong, and master currencies that are not active ISO 4217 codes (such as `GBX` for pence
+ * is wrong (unless their prefix family is evidently a house scheme, see below), and master currencies that are not active ISO 4217 codes (such as `GBX` for pence
  * or `RMB`, common in vendor files but not ISO codes).
  */
 export const invalidIdentifier: FeedCheck<Record<string, never>> = {
@@ -21,8 +21,9 @@ export const invalidIdentifier: FeedCheck<Record<string, never>> = {
 
 function badIsins({ nav, master }: FeedContext): Finding[] {
   const ids = [...new Set([...nav.ids, ...(master ?? []).map((record) => record.series_id)])].sort();
+  const houseSchemes = lookalikeFamilies(ids.filter(looksLikeIsin));
   return ids
-    .filter((id) => looksLikeIsin(id) && !isValidIsin(id))
+    .filter((id) => looksLikeIsin(id) && !isValidIsin(id) && !houseSchemes.has(id.slice(0, 2)))
     .map((id) =>
       makeFinding({
         check: 'invalid_identifier',
@@ -35,6 +36,22 @@ function badIsins({ nav, master }: FeedContext): Finding[] {
         identity: ['isin'],
       }),
     );
+}
+
+/**
+ * Two-letter prefixes shared by three or more ISIN-shaped ids of which fewer than half pass
+ * the check: a house scheme such as SERIES000001 that only looks like ISINs (random digits
+ * pass one time in ten), not ISINs gone wrong.
+ */
+function lookalikeFamilies(isinShaped: string[]): Set<string> {
+  const byPrefix = new Map<string, { total: number; valid: number }>();
+  for (const id of isinShaped) {
+    const family = byPrefix.get(id.slice(0, 2)) ?? { total: 0, valid: 0 };
+    family.total++;
+    if (isValidIsin(id)) family.valid++;
+    byPrefix.set(id.slice(0, 2), family);
+  }
+  return new Set([...byPrefix].filter(([, f]) => f.total >= 3 && f.valid < f.total / 2).map(([prefix]) => prefix));
 }
 
 function badCurrencies({ master }: FeedContext): Finding[] {

@@ -1,40 +1,55 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import { calendarOf, isoDate, makeFinding } from '../src/checks/support.js';
 
+interface LateParams {
+  max_lag_business_days: number;
+  max_as_of_lag_business_days: number;
+  [key: string]: number;
+}
+
 /**
- * The latest value is older than the as-of allows. A daily NAV is normally published the
- * evening of its valuation day or the next morning, so by default the latest value may be at
- * most one business day behind the as-of.
+ * The latest value is older than the feed allows. "Up to date" means having a value for the
+ * feed's own latest valuation date (the newest date any series has, up to the as-of), so a
+ * series missing just the latest day is late, whether the feed is checked the evening of the
+ * valuation day or the next morning. When the whole feed trails the as-of by more than
+ * `max_as_of_lag_business_days`, every series is late. Lags count business days of the
+ * series' own calendar, so its holidays never make it late.
  */
-export const lateSeries: SeriesCheck<{ max_lag_business_days: number }> = {
+export const lateSeries: SeriesCheck<LateParams> = {
   id: 'late_series',
   scope: 'series',
-  purpose: 'The latest value is more business days behind the as-of than allowed.',
-  defaults: { max_lag_business_days: 1 },
+  purpose: 'The latest value is more business days behind the feed’s latest date (or the as-of) than allowed.',
+  defaults: { max_lag_business_days: 0, max_as_of_lag_business_days: 1 },
   run(series, context, params) {
     let lastRow = -1;
     for (let i = 0; i < series.dates.length && series.dates[i] <= context.asOf; i++) lastRow = i;
     if (lastRow < 0) return [];
     const calendar = calendarOf(context);
     const last = series.dates[lastRow];
-    const lag = context.calendars.businessDayDistance(calendar, last, context.asOf);
-    if (lag <= params.max_lag_business_days) return [];
-    const firstMissing = context.calendars.businessDaysBetween(calendar, last, context.asOf + 1)[0];
+    const lagFromFeed = context.feedLatest === undefined ? 0 : context.calendars.businessDayDistance(calendar, last, context.feedLatest);
+    const lagFromAsOf = context.calendars.businessDayDistance(calendar, last, context.asOf);
+    const lateForFeed = lagFromFeed > params.max_lag_business_days;
+    if (!lateForFeed && lagFromAsOf <= params.max_as_of_lag_business_days) return [];
+    const expected = lateForFeed ? context.feedLatest! : context.asOf;
+    const firstMissing = context.calendars.businessDaysBetween(calendar, last, expected + 1)[0];
+    const lag = lateForFeed ? lagFromFeed : lagFromAsOf;
+    const against = lateForFeed ? `the feed's latest date ${isoDate(expected)}` : `the as-of ${isoDate(expected)}`;
     return [
       makeFinding({
         check: 'late_series',
         severity: 'error',
         seriesId: series.id,
         start: firstMissing,
-        end: context.asOf,
-        message: `${series.id}'s latest value is dated ${isoDate(last)}, ${lag} business days before the as-of ${isoDate(context.asOf)} (at most ${params.max_lag_business_days} allowed).`,
+        end: expected,
+        message: `${series.id}'s latest value is dated ${isoDate(last)}, ${lag} business day${lag > 1 ? 's' : ''} behind ${against}.`,
         evidence: {
           latest_date: isoDate(last),
           latest_value: series.values[lastRow],
           latest_line: series.lines[lastRow],
+          feed_latest_date: context.feedLatest === undefined ? null : isoDate(context.feedLatest),
           as_of: isoDate(context.asOf),
           lag_business_days: lag,
-          max_lag_business_days: params.max_lag_business_days,
+          lag_from_as_of_business_days: lagFromAsOf,
         },
         identity: [isoDate(last)],
       }),

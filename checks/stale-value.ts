@@ -10,9 +10,9 @@ interface StaleParams {
 }
 
 /**
- * The same NAV on `min_days` or more consecutive business days. Five days (a whole business
- * week unchanged) is the default: a priced fund almost never repeats its NAV for a week,
- * while two or three repeats happen to coarsely rounded low-volatility funds.
+ * The same NAV on `min_days` or more consecutive business days. Four days is the default: a
+ * fund priced to four or more significant decimals practically never shows the same NAV four
+ * days running, while two or three repeats do happen to coarsely rounded low-volatility funds.
  *
  * The bar rises for series that often repeat by rounding alone: a run must also be unlikely
  * by chance given how often the series repeats outside long runs (chance of such a run
@@ -24,7 +24,7 @@ export const staleValue: SeriesCheck<StaleParams> = {
   id: 'stale_value',
   scope: 'series',
   purpose: 'The same NAV repeated on several consecutive business days.',
-  defaults: { min_days: 5, max_chance: 0.01, accrual_max_daily: 0.0005 },
+  defaults: { min_days: 4, max_chance: 0.01, accrual_max_daily: 0.0005 },
   run(series, context, params) {
     if (context.master?.stable_value) return [];
     const rows = firstRowOfEachDate(series, context.asOf).filter((i) => series.values[i] > 0);

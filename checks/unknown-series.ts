@@ -6,8 +6,8 @@ import { capped, consecutiveRuns, isoDate, makeFinding } from '../src/checks/sup
 
 /**
  * Loose ends between the files: NAV series the master does not know, master rows whose
- * benchmark has no levels, and benchmarks with missing business days (default calendar) over
- * the window their funds cover, one finding per run of missing days.
+ * benchmark has no levels, and benchmarks missing levels on business days when funds mapped
+ * to them have NAVs (one finding per run of missing days).
  */
 export const unknownSeries: FeedCheck<{ min_gap_days: number }> = {
   id: 'unknown_series',
@@ -57,32 +57,33 @@ function benchmarksWithoutLevels({ master, benchmarks }: FeedContext): Finding[]
     );
 }
 
-/** Each benchmark's window: from the earliest to the latest NAV date (up to the as-of) of the funds using it. */
-function benchmarkWindows(context: FeedContext): Map<string, { from: number; to: number }> {
-  const windows = new Map<string, { from: number; to: number }>();
+/**
+ * For each benchmark, the business days (default calendar) on which at least one fund mapped
+ * to it has a NAV: the days a comparison needs a level. A benchmark's own holidays, on which
+ * its funds are closed too, are therefore never gaps.
+ */
+function daysFundsNeed(context: FeedContext): Map<string, Set<number>> {
+  const needed = new Map<string, Set<number>>();
   const benchmarkOf = new Map((context.master ?? []).map((record) => [record.series_id, record.benchmark_id]));
   for (let i = 0; i < context.nav.ids.length; i++) {
     const benchmarkId = benchmarkOf.get(context.nav.ids[i]);
     if (!benchmarkId || !context.benchmarks?.indexById.has(benchmarkId)) continue;
-    const dates = seriesAt(context.nav, i).dates;
-    let last = dates.length - 1;
-    while (last >= 0 && dates[last] > context.asOf) last--;
-    if (last < 0) continue;
-    const window = windows.get(benchmarkId);
-    windows.set(benchmarkId, { from: Math.min(window?.from ?? Infinity, dates[0]), to: Math.max(window?.to ?? -Infinity, dates[last]) });
+    let days = needed.get(benchmarkId);
+    if (!days) needed.set(benchmarkId, (days = new Set()));
+    for (const day of seriesAt(context.nav, i).dates) {
+      if (day <= context.asOf && context.calendars.isBusinessDay(BusinessCalendars.DEFAULT, day)) days.add(day);
+    }
   }
-  return windows;
+  return needed;
 }
 
 function benchmarkGaps(context: FeedContext, minGapDays: number): Finding[] {
   if (!context.benchmarks) return [];
   const findings: Finding[] = [];
-  for (const [benchmarkId, window] of benchmarkWindows(context)) {
+  for (const [benchmarkId, needed] of daysFundsNeed(context)) {
     const levels = findSeries(context.benchmarks, benchmarkId)!;
     const present = new Set(levels.dates);
-    const missing = context.calendars
-      .businessDaysBetween(BusinessCalendars.DEFAULT, window.from - 1, window.to + 1)
-      .filter((day) => !present.has(day));
+    const missing = [...needed].filter((day) => !present.has(day)).sort((a, b) => a - b);
     const runs = consecutiveRuns(missing, (a, b) => context.calendars.businessDaysBetween(BusinessCalendars.DEFAULT, a, b).length === 0);
     for (const run of runs.filter((r) => r.length >= minGapDays)) {
       const first = run[0];
@@ -94,8 +95,8 @@ function benchmarkGaps(context: FeedContext, minGapDays: number): Finding[] {
           seriesId: benchmarkId,
           start: first,
           end: last,
-          message: `Benchmark ${benchmarkId} has no level for ${run.length === 1 ? `business day ${isoDate(first)}` : `${run.length} business days from ${isoDate(first)} to ${isoDate(last)}`}, inside the period its funds cover.`,
-          evidence: { kind: 'benchmark_gap', missing_days: run.length, missing_dates: capped(run.map(isoDate), 31), window: { from: isoDate(window.from), to: isoDate(window.to) } },
+          message: `Benchmark ${benchmarkId} has no level for ${run.length === 1 ? `business day ${isoDate(first)}` : `${run.length} business days from ${isoDate(first)} to ${isoDate(last)}`}, when funds mapped to it have NAVs.`,
+          evidence: { kind: 'benchmark_gap', missing_days: run.length, missing_dates: capped(run.map(isoDate), 31) },
           identity: ['benchmark_gap', isoDate(first)],
         }),
       );

@@ -23,6 +23,12 @@ export interface SeriesContext {
   readonly actions: readonly CorporateActionRecord[];
   /** This series in the previous snapshot, when one was given. */
   readonly previous: SeriesSlice | undefined;
+  /**
+   * The latest NAV date anywhere in the feed on or before the as-of (epoch day), when known:
+   * what "up to date" means for this feed, whether it is checked the evening of the valuation
+   * day or the next morning.
+   */
+  readonly feedLatest?: number;
 }
 
 export interface SeriesCheck<P extends CheckParams = CheckParams> {

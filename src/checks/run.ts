@@ -30,6 +30,7 @@ export function runChecks(input: CheckInput, settings: CheckSettings = {}): Find
   const feedChecks = CHECKS.filter((check): check is FeedCheck => check.scope === 'feed');
   const masterById = new Map((input.master ?? []).map((record) => [record.series_id, record]));
   const actionsById = groupActions(input.actions ?? []);
+  const feedLatest = latestDateUpTo(input.nav, input.asOf);
 
   for (let i = 0; i < input.nav.ids.length; i++) {
     const series = seriesAt(input.nav, i);
@@ -42,6 +43,7 @@ export function runChecks(input: CheckInput, settings: CheckSettings = {}): Find
       benchmarks: input.benchmarks,
       actions: actionsById.get(series.id) ?? [],
       previous: input.previous ? findSeries(input.previous, series.id) : undefined,
+      feedLatest,
     };
     for (const check of seriesChecks) {
       const { enabled, params } = resolver.resolve(check, master?.category, series.id);
@@ -63,6 +65,15 @@ export function runChecks(input: CheckInput, settings: CheckSettings = {}): Find
     if (enabled) findings.push(...check.run(feed, params));
   }
   return findings.sort(compareFindings);
+}
+
+function latestDateUpTo(frame: SeriesFrame, asOf: number): number | undefined {
+  let latest: number | undefined;
+  for (let i = 0; i < frame.dates.length; i++) {
+    const day = frame.dates[i];
+    if (day <= asOf && (latest === undefined || day > latest)) latest = day;
+  }
+  return latest;
 }
 
 function groupActions(actions: readonly CorporateActionRecord[]): Map<string, CorporateActionRecord[]> {

@@ -52,18 +52,18 @@ describe('stale_value', () => {
     return values.map((v, i) => [dates[i], v]);
   };
 
-  it('flags the same NAV on five business days in a row, from its first appearance', () => {
-    const values = [...moving(100, 10), 101.5, 101.5, 101.5, 101.5, 101.5, ...moving(102, 10)];
+  it('flags the same NAV on four business days in a row, from its first appearance', () => {
+    const values = [...moving(100, 10), 101.5, 101.5, 101.5, 101.5, ...moving(102, 10)];
     const series = seriesOf('S1', rows(values));
     const findings = staleValue.run(series, contextFor(), staleValue.defaults);
     expect(findings.map((f) => [f.start, f.end, f.severity, f.key, f.evidence.business_days])).toEqual([
-      ['2026-03-16', '2026-03-20', 'warning', 'stale_value|S1|2026-03-16', 5],
+      ['2026-03-16', '2026-03-19', 'warning', 'stale_value|S1|2026-03-16', 4],
     ]);
   });
 
-  it('lets four repeats pass, and skips stable-value and smoothly accruing funds', () => {
-    const four = [...moving(100, 10), 101.5, 101.5, 101.5, 101.5, ...moving(102, 10)];
-    expect(staleValue.run(seriesOf('S1', rows(four)), contextFor(), staleValue.defaults)).toEqual([]);
+  it('lets three repeats pass, and skips stable-value and smoothly accruing funds', () => {
+    const three = [...moving(100, 10), 101.5, 101.5, 101.5, ...moving(102, 10)];
+    expect(staleValue.run(seriesOf('S1', rows(three)), contextFor(), staleValue.defaults)).toEqual([]);
     const frozen = rows([...moving(100, 10), ...Array(8).fill(1), ...moving(102, 10)]);
     expect(staleValue.run(seriesOf('S1', frozen), contextFor({ master: master('S1', { stable_value: true }) }), staleValue.defaults)).toEqual([]);
     // 10.0000, 10.0001 … rounded accrual repeats a value for days at a time but only ever rises
@@ -81,9 +81,9 @@ describe('stale_value', () => {
       const dates = weekdays('2025-06-02', values.length);
       return seriesOf('B1', values.map((v, i) => [iso(dates[i]), v]));
     };
-    expect(staleValue.run(withRun(8), contextFor(), staleValue.defaults)).toEqual([]);
+    expect(staleValue.run(withRun(9), contextFor(), staleValue.defaults)).toEqual([]);
     const [finding] = staleValue.run(withRun(12), contextFor(), staleValue.defaults);
-    expect(finding).toMatchObject({ start: '2025-11-17', end: '2025-12-02', evidence: { business_days: 12, required_days: 11 } });
+    expect(finding).toMatchObject({ start: '2025-11-17', end: '2025-12-02', evidence: { business_days: 12, required_days: 10 } });
   });
 });
 

@@ -69,7 +69,7 @@ describe('runChecks', () => {
   });
 
   it('honours per-series settings and validates them before running', () => {
-    const quiet = runChecks(input, { series: { S2: { late_series: { max_lag_business_days: 3 }, missing_dates: { enabled: false } } } });
+    const quiet = runChecks(input, { series: { S2: { late_series: { max_lag_business_days: 3, max_as_of_lag_business_days: 3 }, missing_dates: { enabled: false } } } });
     expect(quiet.filter((f) => f.series_id === 'S2').map((f) => f.check)).toEqual(['duplicate_conflict']);
     expect(() => runChecks(input, { run: { no_such_check: {} } } as never)).toThrow(/unknown key run\.no_such_check/);
   });
