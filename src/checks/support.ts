@@ -132,19 +132,6 @@ export function round(value: number, digits = 6): number {
   return Math.round(value * factor) / factor;
 }
 
-/** Position of the last entry of ascending `dates` that is ≤ `day`, or -1. */
-export function lastAtOrBefore(dates: Int32Array, day: number): number {
-  let low = 0, high = dates.length - 1, found = -1;
-  while (low <= high) {
-    const mid = (low + high) >> 1;
-    if (dates[mid] <= day) {
-      found = mid;
-      low = mid + 1;
-    } else high = mid - 1;
-  }
-  return found;
-}
-
 /** Position of the first entry of ascending `dates` equal to `day`, or -1. */
 export function exactPosition(dates: Int32Array, day: number): number {
   let low = 0, high = dates.length - 1;
