@@ -10,13 +10,15 @@ export interface SpikeParams {
   [key: string]: number;
 }
 
-export const SPIKE_DEFAULTS: SpikeParams = { min_move: 0.01, min_z: 6, reversal_tolerance: 0.25 };
+export const SPIKE_DEFAULTS: SpikeParams = { min_move: 0.01, min_z: 5, reversal_tolerance: 0.25 };
 
 /**
  * A large one-day move, relative to the benchmark, that the next observation undoes: the
  * signature of a keying error. "Large" means both at least `min_move` (1 %) and at least
  * `min_z` robust standard deviations of the series' own residual moves; "undoes" means the
- * two days together leave less than `reversal_tolerance` of the first move.
+ * way back is nearly as large and the two days together leave less than
+ * `reversal_tolerance` of the first move. Two such days in a row are rare enough by chance
+ * that the bar can sit lower than `return_outlier`'s.
  */
 export const spikeReversal: SeriesCheck<SpikeParams> = {
   id: 'spike_reversal',
@@ -65,6 +67,7 @@ export function isSpikeReversal(returns: SeriesReturns, k: number, params: Spike
   return (
     Math.abs(out) >= params.min_move &&
     Math.abs(returns.z[k]) >= params.min_z &&
+    Math.abs(returns.z[k + 1]) >= params.min_z * (1 - params.reversal_tolerance) &&
     Math.sign(back) === -Math.sign(out) &&
     Math.abs(out + back) <= params.reversal_tolerance * Math.abs(out)
   );
