@@ -12,6 +12,7 @@
  * and its residual against the benchmark in robust standard units.
  */
 import type { SeriesContext } from './check.js';
+import type { CorporateActionRecord } from '../ingest/records.js';
 import type { SeriesSlice } from '../series/frame.js';
 import { calendarOf, median, robustScale } from './support.js';
 
@@ -91,13 +92,8 @@ function computeReturns(series: SeriesSlice, context: SeriesContext): SeriesRetu
     from[k] = a;
     to[k] = b;
     raw[k] = Math.log(series.values[b] / series.values[a]);
-    let adjustedEnd = series.values[b];
     while (actionCursor < context.actions.length && context.actions[actionCursor].ex_date <= series.dates[a]) actionCursor++;
-    for (let j = actionCursor; j < context.actions.length && context.actions[j].ex_date <= series.dates[b]; j++) {
-      const action = context.actions[j];
-      adjustedEnd = action.kind === 'split' ? adjustedEnd * action.value : adjustedEnd + action.value;
-    }
-    fund[k] = Math.log(adjustedEnd / series.values[a]);
+    fund[k] = Math.log(valueBeforeActions(series, b, context.actions, actionCursor) / series.values[a]);
     span[k] = series.dates[b] - series.dates[a] === 1 ? 1 : Math.max(1, context.calendars.businessDayDistance(calendar, series.dates[a], series.dates[b]));
     if (benchmark && benchPositions) {
       const p = benchPositions[k];
@@ -123,6 +119,18 @@ function computeReturns(series: SeriesSlice, context: SeriesContext): SeriesRetu
     z[k] = residual[k] / ((own ? alone.scale : fit.scale) * Math.sqrt(span[k]));
   }
   return { count, from, to, raw, fund, bench, benchFrom, benchTo, span, residual, z, hasBenchmark, ...fit };
+}
+
+/**
+ * The value at row `b` as it would have been without the actions whose ex-date falls on or
+ * before its date (from `first` on): a split multiplies back, a distribution adds back.
+ */
+function valueBeforeActions(series: SeriesSlice, b: number, actions: readonly CorporateActionRecord[], first: number): number {
+  let value = series.values[b];
+  for (let j = first; j < actions.length && actions[j].ex_date <= series.dates[b]; j++) {
+    value = actions[j].kind === 'split' ? value * actions[j].value : value + actions[j].value;
+  }
+  return value;
 }
 
 /** For each anchor, the position of a benchmark level stamped on exactly that date (or -1). */
