@@ -1,6 +1,10 @@
 import { cpus } from 'node:os';
 import { readCsvBuffer } from '../src/ingest/csv-reader.js';
+import { readArrowBuffer } from '../src/ingest/arrow-reader.js';
+import { canonicalToArrowIpc } from '../src/ingest/arrow-table.js';
 import { toSeriesFrame } from '../src/ingest/convert.js';
+import { readParquetBuffer } from '../src/ingest/parquet-reader.js';
+import { canonicalToParquetBuffer } from '../src/ingest/parquet-writer.js';
 import { DEFAULT_PROFILE } from '../src/ingest/profile.js';
 import { benchUniverse, navCsv } from './universe.js';
 
@@ -21,14 +25,14 @@ interface Measurement {
   readonly cpuSeconds: number[];
 }
 
-function measure(label: string, rows: number, bytes: number, work: () => void): Measurement {
-  work(); // warm-up: lets the JIT compile the hot path before timing
+async function measure(label: string, rows: number, bytes: number, work: () => unknown): Promise<Measurement> {
+  await work(); // warm-up: lets the JIT compile the hot path before timing
   const seconds: number[] = [];
   const cpuSeconds: number[] = [];
   for (let run = 0; run < runs; run++) {
     const started = process.hrtime.bigint();
     const cpuStarted = process.cpuUsage();
-    work();
+    await work();
     const cpu = process.cpuUsage(cpuStarted);
     seconds.push(Number(process.hrtime.bigint() - started) / 1e9);
     cpuSeconds.push((cpu.user + cpu.system) / 1e6);
@@ -51,13 +55,18 @@ console.log(`machine: ${cpus()[0]?.model ?? 'unknown cpu'}, ${cpus().length} cor
 
 let parsed = readCsvBuffer(csv, 'bench.csv', 'nav', DEFAULT_PROFILE);
 if (parsed.rows.accepted !== rows) throw new Error(`bench data lost rows: ${JSON.stringify(parsed.rows)}`);
+const arrow = canonicalToArrowIpc(parsed.table);
+const parquet = canonicalToParquetBuffer(parsed.table);
+console.log(`same rows as Arrow IPC ${(arrow.length / 1e6).toFixed(1)} MB, as Parquet ${(parquet.length / 1e6).toFixed(1)} MB; MB/s below are of each input's own size`);
 const results = [
-  measure('CSV → typed columns', rows, csv.length, () => {
+  await measure('CSV → typed columns', rows, csv.length, () => {
     parsed = readCsvBuffer(csv, 'bench.csv', 'nav', DEFAULT_PROFILE);
   }),
-  measure('typed columns → series frame', rows, csv.length, () => void toSeriesFrame(parsed.table, 'nav')),
-  measure('CSV → series frame (whole path)', rows, csv.length, () => {
+  await measure('typed columns → series frame', rows, csv.length, () => void toSeriesFrame(parsed.table, 'nav')),
+  await measure('CSV → series frame (whole path)', rows, csv.length, () => {
     void toSeriesFrame(readCsvBuffer(csv, 'bench.csv', 'nav', DEFAULT_PROFILE).table, 'nav');
   }),
+  await measure('Arrow IPC → typed columns', rows, arrow.length, () => readArrowBuffer(arrow, 'bench.arrow', 'nav', DEFAULT_PROFILE)),
+  await measure('Parquet → typed columns', rows, parquet.length, () => readParquetBuffer(parquet, 'bench.parquet', 'nav', DEFAULT_PROFILE)),
 ];
 for (const result of results) console.log(report(result));

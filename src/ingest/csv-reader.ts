@@ -5,7 +5,7 @@ import { resolveDateFormat } from './date-order.js';
 import { ConfigError, InputError } from './errors.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
-import { INVALID_DAY, isoDateAt, parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
+import { INVALID_DAY, isoDateAt, parseNumberInto, parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
 import { CANONICAL_COLUMNS, type ColumnSpec, type FileKind } from './schema.js';
 import type { Column, IngestResult } from './table.js';
 
@@ -251,12 +251,7 @@ class RowReader {
   /** Stores one plain field; false sends the row to the general path. */
   private storePlain(plan: ColumnPlan, start: number, end: number, row: number): boolean {
     const type = plan.spec.type;
-    if (type === 'number') {
-      const value = parseNumberBytes(this.bytes, start, end, this.numbers);
-      if (value !== value) return false;
-      (plan.builder as NumberBuilder).values[row] = value;
-      return true;
-    }
+    if (type === 'number') return parseNumberInto(this.bytes, start, end, this.numbers, (plan.builder as NumberBuilder).values, row);
     if (type === 'date') {
       if (end - start !== 10) return false;
       const day = isoDateAt(this.bytes, start);

@@ -37,6 +37,17 @@ export function numberStyle(decimal: string, thousands: string): NumberStyle {
  * (the first group one to three, not starting with 0) and may only appear before the decimal mark.
  */
 export function parseNumberBytes(bytes: Uint8Array, start: number, end: number, style: NumberStyle): number {
+  return parseNumberInto(bytes, start, end, style, scratch, 0) ? scratch[0] : NaN;
+}
+
+const scratch = new Float64Array(1);
+
+/**
+ * `parseNumberBytes` writing its result into `out[index]` and returning whether the text was a
+ * number. The hot path uses this form: returning a double from a call that is not inlined boxes
+ * it on the heap, one garbage object per row; a store into a Float64Array does not.
+ */
+export function parseNumberInto(bytes: Uint8Array, start: number, end: number, style: NumberStyle, out: Float64Array, index: number): boolean {
   while (start < end && (bytes[start] === SPACE || bytes[start] === TAB)) start++;
   while (end > start && (bytes[end - 1] === SPACE || bytes[end - 1] === TAB)) end--;
   let percent = false;
@@ -45,7 +56,7 @@ export function parseNumberBytes(bytes: Uint8Array, start: number, end: number, 
     end--;
     while (end > start && (bytes[end - 1] === SPACE || bytes[end - 1] === TAB)) end--;
   }
-  if (start === end) return NaN;
+  if (start === end) return false;
   let i = start;
   const negative = bytes[i] === MINUS;
   if (negative || bytes[i] === PLUS) i++;
@@ -62,28 +73,35 @@ export function parseNumberBytes(bytes: Uint8Array, start: number, end: number, 
       if (seenDecimal) fractionDigits++;
       else if (groupDigits >= 0) groupDigits++;
     } else if (c === style.decimal && !seenDecimal) {
-      if (groupDigits >= 0 && groupDigits !== 3) return NaN;
+      if (groupDigits >= 0 && groupDigits !== 3) return false;
       seenDecimal = true;
     } else if (c === style.thousands && !seenDecimal && digits > 0) {
       if (groupDigits >= 0) {
-        if (groupDigits !== 3) return NaN;
+        if (groupDigits !== 3) return false;
       } else if (digits > 3 || mantissa === 0) {
-        return NaN; // the first group is 1 to 3 digits and does not start with 0
+        return false; // the first group is 1 to 3 digits and does not start with 0
       }
       groupDigits = 0;
     } else if ((c === 101 || c === 69) && digits > 0) {
-      if (!seenDecimal && groupDigits >= 0 && groupDigits !== 3) return NaN;
-      return slowNumber(bytes, start, end, style, percent);
+      if (!seenDecimal && groupDigits >= 0 && groupDigits !== 3) return false;
+      return storeSlowNumber(bytes, start, end, style, percent, out, index);
     } else {
-      return NaN;
+      return false;
     }
   }
-  if (digits === 0 || (!seenDecimal && groupDigits >= 0 && groupDigits !== 3)) return NaN;
-  if (digits > 15) return slowNumber(bytes, start, end, style, percent);
+  if (digits === 0 || (!seenDecimal && groupDigits >= 0 && groupDigits !== 3)) return false;
+  if (digits > 15) return storeSlowNumber(bytes, start, end, style, percent, out, index);
   // A percent sign moves the decimal point two places: one exact division, never two roundings.
   const exponent = percent ? fractionDigits + 2 : fractionDigits;
   const magnitude = exponent === 0 ? mantissa : mantissa / POWERS_OF_TEN[exponent];
-  return negative ? -magnitude : magnitude;
+  out[index] = negative ? -magnitude : magnitude;
+  return true;
+}
+
+function storeSlowNumber(bytes: Uint8Array, start: number, end: number, style: NumberStyle, percent: boolean, out: Float64Array, index: number): boolean {
+  const value = slowNumber(bytes, start, end, style, percent);
+  out[index] = value;
+  return value === value;
 }
 
 const PLAIN_NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
