@@ -2,6 +2,7 @@ import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
 import { dirname, extname, join, basename } from 'node:path';
 import type { RejectedRow } from '../ingest/records.js';
 import { renderCsv } from '../report/render.js';
+import { tableView } from '../report/view.js';
 
 /** Writes a report to --out (atomically: temporary file, then rename) or to standard output. */
 export function emit(text: string, out: string | undefined): void {
@@ -27,12 +28,6 @@ export function quarantinePathFor(reportPath: string): string {
 }
 
 export function writeQuarantine(path: string, rejected: readonly RejectedRow[]): void {
-  const view = {
-    title: 'Rejected rows',
-    preface: [],
-    columns: ['file', 'line', 'reason', 'raw'],
-    rows: rejected.map((row) => [row.file, row.line, row.reason, row.raw]),
-    emptyText: '',
-  };
-  writeFileAtomically(path, renderCsv(view));
+  const rows = rejected.map((row) => [row.file, row.line, row.reason, row.raw]);
+  writeFileAtomically(path, renderCsv(tableView('Rejected rows', [], ['file', 'line', 'reason', 'raw'], rows, '')));
 }

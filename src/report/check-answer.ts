@@ -1,7 +1,7 @@
 import { formatIsoDate } from '../calendar/days.js';
 import { severityRank, summarizeFindings, type Finding, type FindingSummary } from '../findings.js';
 import type { RowAccounting } from '../ingest/records.js';
-import type { ReportView } from './view.js';
+import { tableView, type ReportView } from './view.js';
 
 /** The `check --format json` answer of interface.md. */
 export interface CheckAnswer {
@@ -27,16 +27,16 @@ export function checkView(answer: CheckAnswer): ReportView {
     .filter(([, count]) => count > 0)
     .map(([severity, count]) => `${count} ${severity}`)
     .join(', ');
-  return {
-    title: `navassay feed check, as of ${answer.as_of}`,
-    preface: [
+  return tableView(
+    `navassay feed check, as of ${answer.as_of}`,
+    [
       `Rows read ${answer.rows.read}: ${answer.rows.accepted} accepted, ${answer.rows.rejected} rejected.`,
       `Findings: ${answer.findings.length}${severities ? ` (${severities})` : ''}.`,
     ],
-    columns: ['severity', 'check', 'series', 'from', 'to', 'message'],
-    rows: ordered.map((f) => [f.severity, f.check, f.series_id, f.start, f.end, f.message]),
-    emptyText: 'No findings: every check passed.',
-  };
+    ['severity', 'check', 'series', 'from', 'to', 'message'],
+    ordered.map((f) => [f.severity, f.check, f.series_id, f.start, f.end, f.message]),
+    'No findings: every check passed.',
+  );
 }
 
 /** Exit status 1 when a finding is at or above the fail-on severity. */

@@ -1,5 +1,5 @@
 import Table from 'cli-table3';
-import { CAUTION, cellText, type ReportView } from './view.js';
+import { CAUTION, cellText, isEmpty, type ReportSection, type ReportView } from './view.js';
 
 export const OUTPUT_FORMATS = ['table', 'json', 'csv', 'markdown', 'html'] as const;
 export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
@@ -20,17 +20,22 @@ export function render(format: OutputFormat, answer: unknown, view: ReportView):
   }
 }
 
+/** No rule between body rows: a long report stays readable on one screen. */
+const COMPACT_RULES = { mid: '', 'left-mid': '', 'mid-mid': '', 'right-mid': '' };
+
 export function renderTable(view: ReportView, width = process.stdout.columns || 140): string {
   const lines = [view.title, ...view.preface, ''];
-  if (view.rows.length === 0) lines.push(view.emptyText);
-  else {
-    const cells = view.rows.map((row) => row.map(cellText));
-    const colWidths = fitColumns(view.columns, cells, width);
-    const table = new Table({ head: [...view.columns], colWidths, wordWrap: true, style: { head: [], border: [] } });
+  if (isEmpty(view)) lines.push(view.emptyText);
+  for (const section of view.sections) {
+    if (section.rows.length === 0) continue;
+    if (section.heading) lines.push(section.heading);
+    const cells = section.rows.map((row) => row.map(cellText));
+    const colWidths = fitColumns(section.columns, cells, width);
+    const table = new Table({ head: [...section.columns], colWidths, wordWrap: true, chars: COMPACT_RULES, style: { head: [], border: [] } });
     for (const row of cells) table.push(row);
-    lines.push(table.toString());
+    lines.push(table.toString(), '');
   }
-  return [...lines, '', CAUTION, ''].join('\n');
+  return [...lines, CAUTION, ''].join('\n');
 }
 
 /** Natural column widths, with the widest column narrowed (and wrapped) so the table fits the terminal. */
@@ -43,9 +48,11 @@ function fitColumns(columns: readonly string[], cells: readonly string[][], widt
   return natural;
 }
 
+/** One flat table, for spreadsheets and scripts: the view's csv section, else its first. */
 export function renderCsv(view: ReportView): string {
-  const lines = [view.columns.map(csvCell).join(',')];
-  for (const row of view.rows) lines.push(row.map((value) => csvCell(cellText(value))).join(','));
+  const section = view.csv ?? view.sections[0];
+  const lines = [section.columns.map(csvCell).join(',')];
+  for (const row of section.rows) lines.push(row.map((value) => csvCell(cellText(value))).join(','));
   return lines.join('\n') + '\n';
 }
 
@@ -54,40 +61,51 @@ function csvCell(text: string): string {
 }
 
 export function renderMarkdown(view: ReportView): string {
-  const escape = (text: string) => text.replace(/\|/g, '\\|').replace(/\r?\n/g, ' ');
   const lines = [`# ${view.title}`, '', ...view.preface.map((line) => `- ${line}`), ''];
-  if (view.rows.length === 0) lines.push(view.emptyText);
-  else {
-    lines.push(`| ${view.columns.map(escape).join(' | ')} |`, `|${view.columns.map(() => ' --- ').join('|')}|`);
-    for (const row of view.rows) lines.push(`| ${row.map((value) => escape(cellText(value))).join(' | ')} |`);
-  }
-  return [...lines, '', `> ${CAUTION}`, ''].join('\n');
+  if (isEmpty(view)) lines.push(view.emptyText, '');
+  for (const section of view.sections) if (section.rows.length > 0) lines.push(...markdownSection(section), '');
+  return [...lines, `> ${CAUTION}`, ''].join('\n');
+}
+
+function markdownSection(section: ReportSection): string[] {
+  const escape = (text: string) => text.replace(/\|/g, '\\|').replace(/\r?\n/g, ' ');
+  const lines = section.heading ? [`## ${section.heading}`, ''] : [];
+  lines.push(`| ${section.columns.map(escape).join(' | ')} |`, `|${section.columns.map(() => ' --- ').join('|')}|`);
+  for (const row of section.rows) lines.push(`| ${row.map((value) => escape(cellText(value))).join(' | ')} |`);
+  return lines;
 }
 
 export function renderHtml(view: ReportView): string {
-  const head = view.columns.map((c) => `<th scope="col">${escapeHtml(c)}</th>`).join('');
-  const body = view.rows
-    .map((row) => `<tr>${row.map((value) => `<td>${escapeHtml(cellText(value))}</td>`).join('')}</tr>`)
-    .join('\n');
-  const table = view.rows.length === 0 ? `<p>${escapeHtml(view.emptyText)}</p>` : `<table>\n<thead><tr>${head}</tr></thead>\n<tbody>\n${body}\n</tbody>\n</table>`;
+  const sections = view.sections.filter((section) => section.rows.length > 0).map(htmlSection).join('\n');
+  const body = isEmpty(view) ? `<p>${escapeHtml(view.emptyText)}</p>` : sections;
   return `<!doctype html>
 <html lang="en">
 <head><meta charset="utf-8"><title>${escapeHtml(view.title)}</title>
 <style>
 body { font-family: system-ui, sans-serif; margin: 2rem; color: #222; }
-table { border-collapse: collapse; font-size: 0.9rem; }
+table { border-collapse: collapse; font-size: 0.9rem; margin-bottom: 1.5rem; }
 th, td { border: 1px solid #bbb; padding: 0.3rem 0.5rem; text-align: left; vertical-align: top; }
+td.number { text-align: right; font-variant-numeric: tabular-nums; }
 thead th { background: #eee; }
 .caution { margin-top: 1.5rem; font-size: 0.85rem; color: #555; max-width: 60rem; }
 </style></head>
 <body>
 <h1>${escapeHtml(view.title)}</h1>
 <ul>${view.preface.map((line) => `<li>${escapeHtml(line)}</li>`).join('')}</ul>
-${table}
+${body}
 <p class="caution">${escapeHtml(CAUTION)}</p>
 </body>
 </html>
 `;
+}
+
+function htmlSection(section: ReportSection): string {
+  const heading = section.heading ? `<h2>${escapeHtml(section.heading)}</h2>\n` : '';
+  const head = section.columns.map((c) => `<th scope="col">${escapeHtml(c)}</th>`).join('');
+  const cell = (value: string | number | null) =>
+    typeof value === 'number' ? `<td class="number">${escapeHtml(cellText(value))}</td>` : `<td>${escapeHtml(cellText(value))}</td>`;
+  const body = section.rows.map((row) => `<tr>${row.map(cell).join('')}</tr>`).join('\n');
+  return `${heading}<table>\n<thead><tr>${head}</tr></thead>\n<tbody>\n${body}\n</tbody>\n</table>`;
 }
 
 export function escapeHtml(text: string): string {

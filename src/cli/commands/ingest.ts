@@ -4,6 +4,7 @@ import { loadRunConfig } from '../../config/run-config.js';
 import { ConfigError } from '../../ingest/errors.js';
 import { loadFeed, type FeedPaths, type LoadOptions } from '../../ingest/feed.js';
 import { render } from '../../report/render.js';
+import { tableView } from '../../report/view.js';
 import { storeSnapshot } from '../snapshots.js';
 import { asOfOption, chosenFormat, formatOption, outOption, parseAsOf } from '../options.js';
 import { emit } from '../output.js';
@@ -62,13 +63,13 @@ async function runIngest(options: IngestOptions): Promise<number> {
     rows: feed.rows,
     files: feed.results.map((r) => ({ kind: r.kind, path: r.file, rows: r.rows })),
   };
-  const view = {
-    title: `navassay ingest: ${feedName} as of ${answer.as_of}`,
-    preface: [`Snapshot: ${snapshot.dir}`, `Rows read ${feed.rows.read}: ${feed.rows.accepted} accepted, ${feed.rows.rejected} rejected (kept in the snapshot's rejected.csv).`],
-    columns: ['kind', 'file', 'read', 'accepted', 'rejected'],
-    rows: answer.files.map((f) => [f.kind, f.path, f.rows.read, f.rows.accepted, f.rows.rejected]),
-    emptyText: 'No files.',
-  };
+  const view = tableView(
+    `navassay ingest: ${feedName} as of ${answer.as_of}`,
+    [`Snapshot: ${snapshot.dir}`, `Rows read ${feed.rows.read}: ${feed.rows.accepted} accepted, ${feed.rows.rejected} rejected (kept in the snapshot's rejected.csv).`],
+    ['kind', 'file', 'read', 'accepted', 'rejected'],
+    answer.files.map((f) => [f.kind, f.path, f.rows.read, f.rows.accepted, f.rows.rejected]),
+    'No files.',
+  );
   emit(render(chosenFormat(options.format), answer, view), options.out);
   return 0;
 }
