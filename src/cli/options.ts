@@ -3,6 +3,8 @@ import { formatIsoDate, parseIsoDate, todayEpochDay } from '../calendar/days.js'
 import { isSeverity, type Severity } from '../findings.js';
 import { ConfigError } from '../ingest/errors.js';
 import { OUTPUT_FORMATS, type OutputFormat } from '../report/render.js';
+import { loadRunConfig } from '../config/run-config.js';
+import type { LoadOptions } from '../ingest/feed.js';
 
 /** Options several commands share, with one parser each so every command reads them alike. */
 export const formatOption = () =>
@@ -13,6 +15,16 @@ export const failOnOption = () =>
     .choices(['info', 'warning', 'error', 'critical', 'none'])
     .default('error');
 export const asOfOption = (what: string) => new Option('--as-of <date>', `as-of date, YYYY-MM-DD (default: ${what})`);
+
+export const profilesOption = () =>
+  new Option('--config <file>', "read each file with the feed profile its kind has in this run configuration (and the configuration's weekend)");
+
+/** Feed profiles and weekend from a run configuration, for commands given files one by one. */
+export function loadOptionsFrom(configPath: string | undefined): LoadOptions {
+  if (configPath === undefined) return {};
+  const config = loadRunConfig(configPath);
+  return { profiles: config.profiles, weekendDays: config.weekend };
+}
 
 export function chosenFormat(format: string | undefined): OutputFormat {
   if (format) return format as OutputFormat;

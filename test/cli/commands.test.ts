@@ -156,3 +156,23 @@ describe('demo and run', () => {
     expect(profile.stderr).toContain('profile.yaml, line 2: files.nav.profile names "vendor-x", which is not under profiles');
   });
 });
+
+describe('metrics', () => {
+  it('reads vendor layouts through --config, takes methodology changes from --set, and explains a bad one', async () => {
+    const dir = scratchDir();
+    await runCli('demo', '--dir', dir, '--format', 'json');
+    const args = ['metrics', '--config', join(dir, 'navassay.yaml'), '--nav', join(dir, 'nav.csv'), '--benchmarks', join(dir, 'benchmarks.csv'), '--master', join(dir, 'master.csv'), '--rates', join(dir, 'rates.csv'), '--as-of', '2026-11-30', '--windows', '3y', '--format', 'json'];
+    const figure = (answer: { metrics: Array<{ series_id: string; metric: string; value: number }> }, metric: string) =>
+      answer.metrics.find((f) => f.series_id === 'NVA0001' && f.metric === metric)!.value;
+    const sample = JSON.parse((await runCli(...args)).stdout);
+    const population = JSON.parse((await runCli(...args, '--set', 'sd_denominator=population')).stdout);
+    expect(population.methodology.sd_denominator).toBe('population');
+    // Definition: population SD = sample SD × √((n − 1) / n), n = 36 monthly returns.
+    expect(figure(population, 'std_dev')).toBeCloseTo(figure(sample, 'std_dev') * Math.sqrt(35 / 36), 12);
+    // Beta is a ratio of covariance to variance: the denominator cancels.
+    expect(figure(population, 'beta')).toBeCloseTo(figure(sample, 'beta'), 12);
+    const bad = await runCli(...args, '--set', 'mar=half');
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toContain('--set mar: must be one of risk_free, zero.');
+  });
+});

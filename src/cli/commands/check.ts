@@ -3,7 +3,7 @@ import { runChecks } from '../../checks/run.js';
 import { loadFeed, loadPreviousNav, type FeedPaths } from '../../ingest/feed.js';
 import { checkAnswer, checkView, failsOn } from '../../report/check-answer.js';
 import { render } from '../../report/render.js';
-import { asOfOption, chosenFormat, failOnOption, formatOption, outOption, parseAsOf, parseFailOn } from '../options.js';
+import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsFrom, outOption, parseAsOf, parseFailOn, profilesOption } from '../options.js';
 import { emit, quarantinePathFor, writeQuarantine } from '../output.js';
 
 interface CheckOptions {
@@ -17,6 +17,7 @@ interface CheckOptions {
   format?: string;
   out?: string;
   failOn: string;
+  config?: string;
 }
 
 export function checkCommand(): Command {
@@ -28,6 +29,7 @@ export function checkCommand(): Command {
     .option('--holidays <file>', 'holidays (calendar, date)')
     .option('--actions <file>', 'corporate actions (series_id, ex_date, kind, value)')
     .option('--previous <file>', "the previous snapshot's NAV file, to find restated and dropped rows")
+    .addOption(profilesOption())
     .addOption(asOfOption('today'))
     .addOption(formatOption())
     .addOption(outOption())
@@ -47,8 +49,9 @@ async function runCheckCommand(options: CheckOptions): Promise<number> {
     holidays: options.holidays,
     actions: options.actions,
   };
-  const feed = await loadFeed(paths);
-  const previous = options.previous === undefined ? undefined : await loadPreviousNav(options.previous);
+  const loadOptions = loadOptionsFrom(options.config);
+  const feed = await loadFeed(paths, loadOptions);
+  const previous = options.previous === undefined ? undefined : await loadPreviousNav(options.previous, loadOptions.profiles?.nav);
   const findings = runChecks({ ...feed, previous, asOf });
   const answer = checkAnswer(asOf, feed.rows, findings);
   emit(render(chosenFormat(options.format), answer, checkView(answer)), options.out);

@@ -3,12 +3,13 @@ import { monthEndDay, monthIndex, todayEpochDay } from '../../calendar/days.js';
 import { ConfigError } from '../../ingest/errors.js';
 import { loadFeed } from '../../ingest/feed.js';
 import { computeMetrics } from '../../metrics/compute.js';
-import { DEFAULT_METHODOLOGY } from '../../metrics/methodology.js';
+import { DEFAULT_METHODOLOGY, MethodologyChangesSchema, withChanges, type Methodology, type MethodologyChanges } from '../../metrics/methodology.js';
+import { loadRunConfig } from '../../config/run-config.js';
 import { parseWindow } from '../../metrics/windows.js';
 import { adjustForCorporateActions } from '../../series/adjust.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { render } from '../../report/render.js';
-import { asOfOption, chosenFormat, formatOption, outOption, parseAsOf } from '../options.js';
+import { asOfOption, chosenFormat, formatOption, outOption, parseAsOf, profilesOption } from '../options.js';
 import { emit } from '../output.js';
 
 interface MetricsOptions {
@@ -18,6 +19,8 @@ interface MetricsOptions {
   rates?: string;
   rf?: string;
   actions?: string;
+  config?: string;
+  set: string[];
   asOf?: string;
   windows: string;
   format?: string;
@@ -33,6 +36,8 @@ export function metricsCommand(): Command {
     .addOption(new Option('--rates <file>', 'risk-free rates (rate_id, date, rate), matched by the master\'s rate_id').conflicts('rf'))
     .addOption(new Option('--rf <rate>', 'a constant annual risk-free rate as a decimal, such as 0.02 (with neither --rates nor --rf the rate is zero, and the answer\'s methodology says risk_free: none)'))
     .option('--actions <file>', 'corporate actions: NAVs are adjusted for the splits and distributions it lists, so returns are total returns')
+    .addOption(profilesOption())
+    .option('--set <dimension=value>', 'change one methodology setting, such as sd_denominator=population or frequency=weekly (repeatable; see docs/methodology.md)', collect, [])
     .addOption(asOfOption('the last month-end on or before today'))
     .option('--windows <list>', 'comma-separated windows such as 1y,3y,5y or 6m', '1y,3y,5y')
     .addOption(formatOption())
@@ -46,8 +51,10 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   const asOf = parseAsOf(options.asOf, lastMonthEnd);
   const windows = parseWindowList(options.windows);
   const constantRate = options.rf === undefined ? undefined : parseRate(options.rf);
-  const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions });
-  const methodology = constantRate === undefined && options.rates === undefined ? { ...DEFAULT_METHODOLOGY, risk_free: { source: 'none' as const } } : DEFAULT_METHODOLOGY;
+  const config = options.config === undefined ? undefined : loadRunConfig(options.config);
+  const methodology = chosenMethodology(config?.methodology ?? DEFAULT_METHODOLOGY, options.set, options.rates !== undefined || constantRate !== undefined);
+  const loadOptions = config ? { profiles: config.profiles, weekendDays: config.weekend } : {};
+  const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions }, loadOptions);
   const answer = computeMetrics({
     nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
     benchmarks: feed.benchmarks!,
@@ -60,6 +67,43 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   });
   emit(render(chosenFormat(options.format), answer, metricsView(answer)), options.out);
   return 0;
+}
+
+function collect(value: string, previous: string[]): string[] {
+  return [...previous, value];
+}
+
+/**
+ * The configured (or default) methodology with the --set changes applied. With neither a rate
+ * file nor a constant rate, a methodology that wants the master's rate series uses none.
+ */
+function chosenMethodology(base: Methodology, settings: readonly string[], rateGiven: boolean): Methodology {
+  const changes = parseSettings(settings);
+  const methodology = withChanges(base, changes);
+  return !rateGiven && methodology.risk_free.source === 'series' ? { ...methodology, risk_free: { source: 'none' } } : methodology;
+}
+
+const NUMERIC_DIMENSIONS = new Set(['annualization', 'window_end']);
+
+function parseSettings(settings: readonly string[]): MethodologyChanges {
+  const raw: Record<string, unknown> = {};
+  for (const setting of settings) {
+    const match = /^([a-z_]+)=(.+)$/.exec(setting.trim());
+    if (!match) throw new ConfigError(`--set "${setting}" is not dimension=value; write for example --set sd_denominator=population.`);
+    const [, dimension, value] = match;
+    raw[dimension] = NUMERIC_DIMENSIONS.has(dimension) ? Number(value) : value === 'null' ? null : value;
+  }
+  const result = MethodologyChangesSchema.safeParse(raw);
+  if (result.success) return result.data as MethodologyChanges;
+  const issue = result.error.issues[0];
+  const where = issue.code === 'unrecognized_keys' ? issue.keys.join(', ') : issue.path.join('.');
+  const problem =
+    issue.code === 'unrecognized_keys'
+      ? `is not a methodology dimension; the dimensions are ${Object.keys(MethodologyChangesSchema.shape).join(', ')}`
+      : issue.code === 'invalid_value'
+        ? `must be one of ${issue.values.join(', ')}`
+        : issue.message.replace(/^Invalid input: /, '');
+  throw new ConfigError(`--set ${where}: ${problem}.`);
 }
 
 export function lastMonthEnd(): number {
