@@ -2,8 +2,9 @@ import type { FeedCheck } from '../src/checks/check.js';
 import { makeFinding } from '../src/checks/support.js';
 
 /**
- * One finding per input row that could not be read. The key hashes the file name and the raw
- * text, not the line number, so the same bad row tomorrow (even moved) keeps its ticket.
+ * One finding per input row that could not be read. The key hashes the raw text only, not the
+ * line number nor the file's path (which moves with the working directory and often carries the
+ * day's date), so the same bad row tomorrow keeps its ticket.
  */
 export const unparseableRow: FeedCheck<Record<string, never>> = {
   id: 'unparseable_row',
@@ -20,7 +21,7 @@ export const unparseableRow: FeedCheck<Record<string, never>> = {
         end: null,
         message: `Line ${row.line} of ${row.file} could not be read (${row.reason}) and was left out.`,
         evidence: { file: row.file, line: row.line, raw: row.raw, reason: row.reason },
-        identity: [row.file, fnv1a(row.raw.trim())],
+        identity: [fnv1a(row.raw.trim())],
       }),
     );
   },

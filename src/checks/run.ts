@@ -88,12 +88,19 @@ function groupActions(actions: readonly CorporateActionRecord[]): Map<string, Co
 }
 
 /** Series first (file-level findings last), then date, check, severity (worst first) and key. */
+/** The source line a finding points at, so dateless findings of one file read in file order. */
+function evidenceLine(finding: Finding): number {
+  const line = finding.evidence.line;
+  return typeof line === 'number' ? line : 0;
+}
+
 export function compareFindings(a: Finding, b: Finding): number {
   return (
     compareText(a.series_id, b.series_id) ||
     compareText(a.start, b.start) ||
     compareText(a.check, b.check) ||
     severityRank(b.severity) - severityRank(a.severity) ||
+    evidenceLine(a) - evidenceLine(b) ||
     compareText(a.key, b.key) ||
     compareText(a.message, b.message)
   );

@@ -1,5 +1,5 @@
 import { readFileSync } from 'node:fs';
-import { dirname, resolve } from 'node:path';
+import { dirname, relative, resolve } from 'node:path';
 import { z } from 'zod';
 import { parseIsoDate } from '../calendar/days.js';
 import { ConfigError, InputError } from '../ingest/errors.js';
@@ -81,7 +81,8 @@ export function loadRunConfig(path: string): RunConfig {
   const yaml = parseYaml(text, path);
   const file = validateYaml(yaml, RunConfigSchema);
   const base = dirname(resolve(path));
-  const at = (relative: string) => resolve(base, relative);
+  // Paths are kept relative to the working directory when they can be, so reports name files as a person would.
+  const at = (written: string) => relative(process.cwd(), resolve(base, written)) || '.';
   const paths: Partial<Record<FileKind, string>> = {};
   const profiles: Partial<Record<FileKind, FeedProfile>> = {};
   for (const kind of FILE_KINDS) {

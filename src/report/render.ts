@@ -23,7 +23,7 @@ export function render(format: OutputFormat, answer: unknown, view: ReportView):
 /** No rule between body rows: a long report stays readable on one screen. */
 const COMPACT_RULES = { mid: '', 'left-mid': '', 'mid-mid': '', 'right-mid': '' };
 
-export function renderTable(view: ReportView, width = process.stdout.columns || 140): string {
+export function renderTable(view: ReportView, width = process.stdout.columns || Number(process.env.COLUMNS) || 140): string {
   const lines = [view.title, ...view.preface, ''];
   if (isEmpty(view)) lines.push(view.emptyText);
   for (const section of view.sections) {
