@@ -1,6 +1,6 @@
 import { BusinessCalendars } from '../calendar/business-calendar.js';
 import { epochDay, formatIsoDate, civilFromEpochDay } from '../calendar/days.js';
-import { SeededRandom } from './random.js';
+import { SeededRandom } from '../random.js';
 
 /**
  * The built-in demo: an invented fund house, Bramblecourt Funds, with thirteen share classes,

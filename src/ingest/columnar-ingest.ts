@@ -1,8 +1,9 @@
 import { formatIsoDate } from '../calendar/days.js';
-import { ConfigError, InputError } from './errors.js';
+import { InputError } from './errors.js';
+import { DateOrderEvidence } from './date-order.js';
 import type { DateFormat, FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
-import { numberStyle, numericDateReadings, parseDateText, parseNumberText, type NumberStyle } from './scalars.js';
+import { numberStyle, parseBooleanWord, parseDateText, parseNumberText, type NumberStyle } from './scalars.js';
 import { CANONICAL_COLUMNS, type ColumnSpec, type FileKind } from './schema.js';
 import { NULL_BOOLEAN, NULL_DATE, type CanonicalTable, type Column, type IngestResult } from './table.js';
 
@@ -171,20 +172,12 @@ function toBooleans(source: SourceColumn): Column {
   if (source.form === 'number') {
     source.values.forEach((value, row) => (values[row] = value === 1 ? 1 : value === 0 ? 0 : NULL_BOOLEAN));
   } else if (source.form === 'text') {
-    const valueOfCode = Uint8Array.from(source.dictionary, parseBooleanText);
+    const valueOfCode = Uint8Array.from(source.dictionary, (word) => parseBooleanWord(word) ?? NULL_BOOLEAN);
     return { type: 'boolean', values: mapCodes(source.codes, valueOfCode, NULL_BOOLEAN, Uint8Array) };
   }
   return { type: 'boolean', values };
 }
 
-const TRUE_WORDS = new Set(['true', 't', 'yes', 'y', '1']);
-const FALSE_WORDS = new Set(['false', 'f', 'no', 'n', '0']);
-
-/** `true`/`yes`/`y`/`1` → 1, `false`/`no`/`n`/`0` → 0 (any case), anything else → NULL_BOOLEAN. */
-export function parseBooleanText(text: string): number {
-  const word = text.trim().toLowerCase();
-  return TRUE_WORDS.has(word) ? 1 : FALSE_WORDS.has(word) ? 0 : NULL_BOOLEAN;
-}
 
 function mapCodes<T extends Int32Array | Float64Array | Uint8Array>(
   codes: Int32Array,
@@ -200,6 +193,7 @@ function mapCodes<T extends Int32Array | Float64Array | Uint8Array>(
 /**
  * Under `auto`, numeric dates such as 03/04/2026 need the file to prove their order: a value
  * like 31/01/2026 proves day-first. Proof both ways, or none with ambiguous values, stops the run.
+ * Each distinct value is looked at once.
  */
 export function resolveDateFormat(
   dictionary: readonly string[],
@@ -208,36 +202,11 @@ export function resolveDateFormat(
   context: ConversionContext,
 ): DateFormat {
   if (format !== 'auto') return format;
-  let dayFirstProof: string | undefined;
-  let monthFirstProof: string | undefined;
-  let ambiguous: string | undefined;
-  for (const entry of dictionary) {
-    if (parseDateText(entry, 'auto') !== null) continue;
-    const readings = numericDateReadings(entry);
-    if (!readings) continue;
-    if (readings.dayFirst && readings.monthFirst) ambiguous ??= entry;
-    else if (readings.dayFirst) dayFirstProof ??= entry;
-    else if (readings.monthFirst) monthFirstProof ??= entry;
-  }
-  const where = (text: string) => `${context.fileName} record ${firstRecordWith(dictionary, codes, text)}`;
-  if (dayFirstProof !== undefined && monthFirstProof !== undefined) {
-    throw new ConfigError(
-      `${where(monthFirstProof)} has the date "${monthFirstProof}" in column ${context.sourceName}, which only reads month-first while "${dayFirstProof}" only reads day-first; set date_format in the feed profile to the order the vendor uses.`,
-    );
-  }
-  if (dayFirstProof !== undefined) return 'day-first';
-  if (monthFirstProof !== undefined) return 'month-first';
-  if (ambiguous !== undefined) {
-    throw new ConfigError(
-      `${where(ambiguous)} has the date "${ambiguous}" in column ${context.sourceName}, which reads both day-first and month-first; set date_format to day-first or month-first in the feed profile.`,
-    );
-  }
-  return 'auto';
-}
-
-function firstRecordWith(dictionary: readonly string[], codes: Int32Array, text: string): number {
-  const code = dictionary.indexOf(text);
-  return codes.indexOf(code) + 1;
+  const evidence = new DateOrderEvidence();
+  dictionary.forEach((entry, code) => {
+    if (parseDateText(entry, 'auto') === null) evidence.record(entry, () => lineOfRecord(codes.indexOf(code)));
+  });
+  return evidence.decide(context.fileName);
 }
 
 function rowCountOf(source: SourceColumn): number {

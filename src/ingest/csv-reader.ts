@@ -5,7 +5,7 @@ import { resolveDateFormat } from './date-order.js';
 import { ConfigError, InputError } from './errors.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
-import { INVALID_DAY, isoDateAt, parseNumberInto, parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
+import { INVALID_DAY, isoDateAt, parseBooleanWord, parseNumberInto, parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
 import { CANONICAL_COLUMNS, type ColumnSpec, type FileKind } from './schema.js';
 import type { Column, IngestResult } from './table.js';
 
@@ -356,7 +356,7 @@ class RowReader {
         return null;
       }
       case 'boolean': {
-        const flag = parseBoolean(this.text(start, end));
+        const flag = parseBooleanWord(this.text(start, end));
         if (flag === null) return `${plan.spec.name} "${this.text(start, end)}" is not true/false, yes/no or 1/0`;
         (builder as BooleanBuilder).values[row] = flag;
         return null;
@@ -445,14 +445,5 @@ function isBlankField(bytes: Uint8Array, start: number, end: number): boolean {
   return true;
 }
 
-const TRUE_WORDS = new Set(['true', 'yes', 'y', '1', 't']);
-const FALSE_WORDS = new Set(['false', 'no', 'n', '0', 'f']);
-
-export function parseBoolean(text: string): 0 | 1 | null {
-  const word = text.trim().toLowerCase();
-  if (TRUE_WORDS.has(word)) return 1;
-  if (FALSE_WORDS.has(word)) return 0;
-  return null;
-}
 
 export { ConfigError };

@@ -14,13 +14,44 @@ export interface DateFieldPlan {
   readonly field: number;
 }
 
-interface Evidence {
-  dayFirstLine: number;
-  dayFirstText: string;
-  monthFirstLine: number;
-  monthFirstText: string;
-  ambiguousLine: number;
-  ambiguousText: string;
+/**
+ * What the dates of one file prove about their order: the first text (and its line) that only
+ * reads day-first, the first that only reads month-first, and the first that reads both ways.
+ * The CSV reader and the Arrow/Parquet reader gather it their own way and decide alike.
+ */
+export class DateOrderEvidence {
+  private dayFirst: { line: number; text: string } | null = null;
+  private monthFirst: { line: number; text: string } | null = null;
+  private ambiguous: { line: number; text: string } | null = null;
+  /** True once a numeric day–month date has been seen. */
+  sawNumeric = false;
+
+  /** Records one date as written; false when it is not a numeric day–month date at all. */
+  record(text: string, lineOf: () => number): boolean {
+    const readings = numericDateReadings(text);
+    if (!readings) return false;
+    this.sawNumeric = true;
+    if (readings.dayFirst && readings.monthFirst) this.ambiguous ??= { line: lineOf(), text };
+    else if (readings.dayFirst) this.dayFirst ??= { line: lineOf(), text };
+    else if (readings.monthFirst) this.monthFirst ??= { line: lineOf(), text };
+    return true;
+  }
+
+  /** The order the file proves, `auto` when nothing needs one, or a ConfigError when it cannot be told. */
+  decide(fileName: string): DateFormat {
+    const { dayFirst, monthFirst, ambiguous } = this;
+    if (dayFirst && monthFirst) {
+      throw new ConfigError(
+        `${fileName}, line ${dayFirst.line}: "${dayFirst.text}" can only be day-first but line ${monthFirst.line} has "${monthFirst.text}", which can only be month-first; fix the file or set date_format in the feed profile.`,
+      );
+    }
+    if (dayFirst) return 'day-first';
+    if (monthFirst) return 'month-first';
+    if (!ambiguous) return 'auto'; // only impossible dates such as 13/13/2026: each row is rejected
+    throw new ConfigError(
+      `${fileName}, line ${ambiguous.line}: dates such as "${ambiguous.text}" read both day-first and month-first and no row settles which; set date_format: day-first or month-first in the feed profile.`,
+    );
+  }
 }
 
 export function resolveDateFormat(
@@ -40,7 +71,7 @@ export function resolveDateFormat(
   scanner.next();
   const evidence = gatherEvidence(scanner, bytes, dateFields, fieldCount);
   if (!evidence) return 'auto';
-  return decide(evidence, fileName);
+  return evidence.decide(fileName);
 }
 
 /**
@@ -48,53 +79,15 @@ export function resolveDateFormat(
  * (keep `auto`) when the first such row with a readable date writes it in a form that needs no
  * order (ISO, `YYYYMMDD`, a month name); rows whose dates are unreadable either way do not count.
  */
-function gatherEvidence(scanner: CsvRowScanner, bytes: Buffer, dateFields: readonly number[], fieldCount: number): Evidence | null {
-  const evidence: Evidence = {
-    dayFirstLine: 0,
-    dayFirstText: '',
-    monthFirstLine: 0,
-    monthFirstText: '',
-    ambiguousLine: 0,
-    ambiguousText: '',
-  };
-  let sawNumeric = false;
+function gatherEvidence(scanner: CsvRowScanner, bytes: Buffer, dateFields: readonly number[], fieldCount: number): DateOrderEvidence | null {
+  const evidence = new DateOrderEvidence();
   while (scanner.next()) {
     if (scanner.isBlank() || scanner.error !== null || scanner.fieldCount !== fieldCount) continue;
     for (const field of dateFields) {
       const text = bytes.toString('utf8', scanner.starts[field], scanner.ends[field]).trim();
-      if (text === '') continue;
-      const readings = numericDateReadings(text);
-      if (readings) {
-        sawNumeric = true;
-        record(evidence, readings, scanner.line, text);
-      } else if (!sawNumeric && parseDateText(text, 'auto') !== null) {
-        return null;
-      }
+      if (text === '' || evidence.record(text, () => scanner.line)) continue;
+      if (!evidence.sawNumeric && parseDateText(text, 'auto') !== null) return null;
     }
   }
-  return sawNumeric ? evidence : null;
-}
-
-function record(evidence: Evidence, readings: { dayFirst: boolean; monthFirst: boolean }, line: number, text: string) {
-  if (readings.dayFirst && readings.monthFirst) {
-    if (!evidence.ambiguousLine) Object.assign(evidence, { ambiguousLine: line, ambiguousText: text });
-  } else if (readings.dayFirst) {
-    if (!evidence.dayFirstLine) Object.assign(evidence, { dayFirstLine: line, dayFirstText: text });
-  } else if (readings.monthFirst) {
-    if (!evidence.monthFirstLine) Object.assign(evidence, { monthFirstLine: line, monthFirstText: text });
-  }
-}
-
-function decide(evidence: Evidence, fileName: string): DateFormat {
-  if (evidence.dayFirstLine && evidence.monthFirstLine) {
-    throw new ConfigError(
-      `${fileName}, line ${evidence.dayFirstLine}: "${evidence.dayFirstText}" can only be day-first but line ${evidence.monthFirstLine} has "${evidence.monthFirstText}", which can only be month-first; fix the file or set date_format in the feed profile.`,
-    );
-  }
-  if (evidence.dayFirstLine) return 'day-first';
-  if (evidence.monthFirstLine) return 'month-first';
-  if (!evidence.ambiguousLine) return 'auto'; // only impossible dates such as 13/13/2026: each row is rejected
-  throw new ConfigError(
-    `${fileName}, line ${evidence.ambiguousLine}: dates such as "${evidence.ambiguousText}" read both day-first and month-first and no row settles which; set date_format: day-first or month-first in the feed profile.`,
-  );
+  return evidence.sawNumeric ? evidence : null;
 }

@@ -268,3 +268,12 @@ export function parseDateText(text: string, format: DateFormat): number | null {
   if (format === 'month-first') return validDay(third, first, second);
   return null;
 }
+
+const TRUE_WORDS = new Set(['true', 't', 'yes', 'y', '1']);
+const FALSE_WORDS = new Set(['false', 'f', 'no', 'n', '0']);
+
+/** `true`/`t`/`yes`/`y`/`1` → 1 and `false`/`f`/`no`/`n`/`0` → 0, in any case; anything else → null. */
+export function parseBooleanWord(text: string): 0 | 1 | null {
+  const word = text.trim().toLowerCase();
+  return TRUE_WORDS.has(word) ? 1 : FALSE_WORDS.has(word) ? 0 : null;
+}

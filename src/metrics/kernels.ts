@@ -12,27 +12,15 @@ import {
   type TargetSums,
 } from './moments.js';
 import type { BasisStatistics, WindowStatistics } from './statistics.js';
+import { METRIC_IDS, type MetricId } from '../ingest/schema.js';
 
 /**
  * The metrics as arithmetic on a window's statistics under a methodology. docs/methodology.md
  * states each formula; the functions here follow it line by line.
  */
 
-export const METRIC_IDS = [
-  'return_annualized',
-  'std_dev',
-  'downside_deviation',
-  'beta',
-  'alpha',
-  'r_squared',
-  'sharpe',
-  'sortino',
-  'tracking_error',
-  'information_ratio',
-  'treynor',
-  'max_drawdown',
-] as const;
-export type MetricId = (typeof METRIC_IDS)[number];
+/** The metric identifiers are interface.md's; they live with the other canonical names. */
+export { METRIC_IDS, type MetricId };
 
 export function isMetricId(text: string): text is MetricId {
   return (METRIC_IDS as readonly string[]).includes(text);

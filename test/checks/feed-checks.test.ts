@@ -6,7 +6,7 @@ import { unknownSeries } from '../../checks/unknown-series.js';
 import { invalidIdentifier } from '../../checks/invalid-identifier.js';
 import { benchmarkMismatch } from '../../checks/benchmark-mismatch.js';
 import { seriesAt } from '../../src/series/frame.js';
-import { Random } from '../../fixtures/universe/random.js';
+import { SeededRandom as Random } from '../../src/random.js';
 import { contextFor, day, frameOf, frameOfArrays, master, weekdays } from './helpers.js';
 
 function feed(overrides: Partial<FeedContext>): FeedContext {

@@ -3,7 +3,7 @@ import { formatIsoDate, isoWeekday, parseIsoDate } from '../../src/calendar/days
 import type { SeriesContext } from '../../src/checks/check.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../../src/ingest/records.js';
 import { frameFromSeries, seriesAt, type SeriesFrame, type SeriesSlice } from '../../src/series/frame.js';
-import { Random } from '../../fixtures/universe/random.js';
+import { SeededRandom as Random } from '../../src/random.js';
 
 export const day = (iso: string): number => {
   const parsed = parseIsoDate(iso);

@@ -9,7 +9,7 @@ import { restatedValue } from '../../checks/restated-value.js';
 import { droppedRows } from '../../checks/dropped-rows.js';
 import { unparseableRow } from '../../checks/unparseable-row.js';
 import { seriesAt } from '../../src/series/frame.js';
-import { Random } from '../../fixtures/universe/random.js';
+import { SeededRandom as Random } from '../../src/random.js';
 import { contextFor, day, frameOf, iso, master, seriesOf, weekdays } from './helpers.js';
 
 describe('duplicate_row and duplicate_conflict', () => {
