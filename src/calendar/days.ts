@@ -68,6 +68,12 @@ export function monthEndDay(monthIdx: number): number {
   return epochDay(year, month, daysInMonth(year, month));
 }
 
+/** The last calendar month-end on or before the day: the day itself when it is one. */
+export function lastMonthEndOnOrBefore(day: number): number {
+  const month = monthIndex(day);
+  return monthEndDay(month) === day ? day : monthEndDay(month - 1);
+}
+
 /** Monday of the ISO week holding the day; weekly sampling groups rows by this. */
 export function isoWeekStart(days: number): number {
   return days - (isoWeekday(days) - 1);

@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { BooleanBuilder, DateBuilder, NumberBuilder, TextBuilder, type ColumnBuilder } from './column-builders.js';
 import { CsvRowScanner } from './csv-rows.js';
 import { resolveDateFormat } from './date-order.js';
-import { ConfigError, InputError } from './errors.js';
+import { InputError } from './errors.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
 import { INVALID_DAY, isoDateAt, parseBooleanWord, parseNumberInto, parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
@@ -52,10 +52,10 @@ export function readCsvBuffer(input: Uint8Array, fileName: string, kind: FileKin
   const delimiter = chooseDelimiter(bytes, begin, profile, fileName);
   const header = readHeader(bytes, begin, delimiter, quote, fileName, kind);
   const plans = planColumns(header.names, kind, profile, fileName);
-  const dateFormat = resolveDateFormat(bytes, header.bodyStart, header.names.length, delimiter, quote, plans, profile, fileName);
+  const dateFormat = resolveDateFormat(bytes, header.headerStart, header.names.length, delimiter, quote, plans, profile, fileName);
   const reader = new RowReader(bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands), quote);
-  reader.reserve(estimateRows(bytes, header.bodyStart));
-  const scanner = new CsvRowScanner(bytes, header.bodyStart, delimiter, quote, header.names.length + 1);
+  reader.reserve(estimateRows(bytes, header.headerStart));
+  const scanner = new CsvRowScanner(bytes, header.headerStart, delimiter, quote, header.names.length + 1);
   scanner.next(); // the header row itself
   const plainLane = reader.canTakePlainRows() ? { delimiter, fieldCount: header.names.length } : null;
   let position = scanner.nextPosition;
@@ -112,7 +112,7 @@ function readHeader(bytes: Buffer, begin: number, delimiter: number, quote: numb
   for (let k = 0; k < Math.min(scanner.fieldCount, scanner.starts.length); k++) {
     names.push(decodeQuoted(bytes, scanner.starts[k], scanner.ends[k], scanner.quoted[k], quote).trim());
   }
-  return { names, bodyStart: begin };
+  return { names, headerStart: begin };
 }
 
 function planColumns(names: readonly string[], kind: FileKind, profile: FeedProfile, fileName: string): ColumnPlan[] {
@@ -154,10 +154,6 @@ function builderFor(spec: ColumnSpec): ColumnBuilder {
   }
 }
 
-export function decodeField(bytes: Buffer, start: number, end: number, quoted: number): string {
-  return decodeQuoted(bytes, start, end, quoted, 34);
-}
-
 /** A field's text with a doubled quote character (the profile's, not only `"`) made single. */
 function decodeQuoted(bytes: Buffer, start: number, end: number, quoted: number, quote: number): string {
   const text = bytes.toString('utf8', start, end);
@@ -196,7 +192,7 @@ class RowReader {
    */
   takePlainRows(position: number, line: number, fieldCount: number, delimiter: number): { position: number; line: number } {
     const length = this.bytes.length;
-    this.planByField(fieldCount);
+    this.plansByField ??= Array.from({ length: fieldCount }, (_, k) => this.plans.find((plan) => plan.field === k) ?? null);
     const firstRow = this.accepted;
     let row = firstRow;
     while (position < length) {
@@ -244,14 +240,8 @@ class RowReader {
     return Math.min(position, length);
   }
 
+  /** The plan filled from each field of the file, or null for a field no canonical column uses. */
   private plansByField: Array<ColumnPlan | null> | null = null;
-
-  private planByField(fieldCount: number): Array<ColumnPlan | null> {
-    if (!this.plansByField) {
-      this.plansByField = Array.from({ length: fieldCount }, (_, k) => this.plans.find((plan) => plan.field === k) ?? null);
-    }
-    return this.plansByField;
-  }
 
   /** Stores one plain field; false sends the row to the general path. */
   private storePlain(plan: ColumnPlan, start: number, end: number, row: number): boolean {
@@ -451,4 +441,3 @@ function isBlankField(bytes: Uint8Array, start: number, end: number): boolean {
 }
 
 
-export { ConfigError };

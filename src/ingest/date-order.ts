@@ -56,7 +56,7 @@ export class DateOrderEvidence {
 
 export function resolveDateFormat(
   bytes: Buffer,
-  bodyStart: number,
+  headerStart: number,
   fieldCount: number,
   delimiter: number,
   quote: number,
@@ -67,7 +67,7 @@ export function resolveDateFormat(
   if (profile.date_format !== 'auto') return profile.date_format;
   const dateFields = plans.filter((plan) => plan.spec.type === 'date').map((plan) => plan.field);
   if (dateFields.length === 0) return 'auto';
-  const scanner = new CsvRowScanner(bytes, bodyStart, delimiter, quote, fieldCount + 1);
+  const scanner = new CsvRowScanner(bytes, headerStart, delimiter, quote, fieldCount + 1);
   scanner.next();
   const evidence = gatherEvidence(scanner, bytes, dateFields, fieldCount);
   if (!evidence) return 'auto';

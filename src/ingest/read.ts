@@ -1,7 +1,6 @@
 import { extname } from 'node:path';
 import { readArrowBuffer } from './arrow-reader.js';
 import { readCsvBuffer, readInput } from './csv-reader.js';
-import { ConfigError } from './errors.js';
 import { readParquetBuffer } from './parquet-reader.js';
 import type { FeedProfile } from './profile.js';
 import type { FileKind } from './schema.js';
@@ -30,4 +29,3 @@ export async function readFeedFile(path: string, kind: FileKind, profile: FeedPr
   }
 }
 
-export { ConfigError };

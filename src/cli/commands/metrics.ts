@@ -1,5 +1,5 @@
 import { Command, Option } from 'commander';
-import { monthEndDay, monthIndex, todayEpochDay } from '../../calendar/days.js';
+import { lastMonthEndOnOrBefore, todayEpochDay } from '../../calendar/days.js';
 import { ConfigError } from '../../ingest/errors.js';
 import { loadFeed } from '../../ingest/feed.js';
 import { computeMetrics } from '../../metrics/compute.js';
@@ -48,7 +48,7 @@ export function metricsCommand(): Command {
 }
 
 async function runMetricsCommand(options: MetricsOptions): Promise<number> {
-  const asOf = parseAsOf(options.asOf, lastMonthEnd);
+  const asOf = parseAsOf(options.asOf, () => lastMonthEndOnOrBefore(todayEpochDay()));
   const windows = parseWindowList(options.windows);
   const constantRate = options.rf === undefined ? undefined : parseRate(options.rf);
   const config = options.config === undefined ? undefined : loadRunConfig(options.config);
@@ -106,11 +106,6 @@ function parseSettings(settings: readonly string[]): MethodologyChanges {
   throw new ConfigError(`--set ${where}: ${problem}.`);
 }
 
-export function lastMonthEnd(): number {
-  const today = todayEpochDay();
-  const thisMonthEnd = monthEndDay(monthIndex(today));
-  return thisMonthEnd === today ? today : monthEndDay(monthIndex(today) - 1);
-}
 
 export function parseWindowList(text: string): string[] {
   const windows = text.split(',').map((label) => label.trim()).filter(Boolean);

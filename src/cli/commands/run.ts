@@ -1,6 +1,6 @@
 import { Command } from 'commander';
 import { join } from 'node:path';
-import { monthEndDay, monthIndex } from '../../calendar/days.js';
+import { lastMonthEndOnOrBefore } from '../../calendar/days.js';
 import { runChecks } from '../../checks/run.js';
 import { loadRunConfig, type RunConfig } from '../../config/run-config.js';
 import type { Finding } from '../../findings.js';
@@ -76,14 +76,12 @@ async function previousNav(config: RunConfig, asOf: number): Promise<SeriesFrame
 
 /** Risk figures at the last month-end on or before the as-of date, on NAVs adjusted for announced splits and distributions. */
 function runMetrics(config: RunConfig, feed: LoadedFeed, asOf: number): MetricsAnswer {
-  const month = monthIndex(asOf);
-  const metricsAsOf = monthEndDay(month) === asOf ? asOf : monthEndDay(month - 1);
   return computeMetrics({
     nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
     benchmarks: feed.benchmarks!,
     master: feed.master!,
     rates: feed.rates,
-    asOf: metricsAsOf,
+    asOf: lastMonthEndOnOrBefore(asOf),
     windows: config.windows,
     methodology: config.methodology,
   });
