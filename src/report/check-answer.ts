@@ -27,7 +27,7 @@ export function checkView(answer: CheckAnswer): ReportView {
     .filter(([, count]) => count > 0)
     .map(([severity, count]) => `${count} ${severity}`)
     .join(', ');
-  return tableView(
+  const view = tableView(
     `navassay feed check, as of ${answer.as_of}`,
     [
       `Rows read ${answer.rows.read}: ${answer.rows.accepted} accepted, ${answer.rows.rejected} rejected.`,
@@ -37,6 +37,13 @@ export function checkView(answer: CheckAnswer): ReportView {
     ordered.map((f) => [f.severity, f.check, f.series_id, f.start, f.end, f.message]),
     'No findings: every check passed.',
   );
+  // The csv output feeds ticket imports and spreadsheets: every field of a finding, evidence as JSON.
+  const csv = {
+    heading: null,
+    columns: ['check', 'severity', 'series_id', 'start', 'end', 'message', 'key', 'evidence'],
+    rows: ordered.map((f) => [f.check, f.severity, f.series_id, f.start, f.end, f.message, f.key, JSON.stringify(f.evidence)]),
+  };
+  return { ...view, csv };
 }
 
 /** Exit status 1 when a finding is at or above the fail-on severity. */

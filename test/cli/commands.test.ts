@@ -89,6 +89,9 @@ describe('check', () => {
       expect(stdout, format).toContain('non_positive_value');
       expect(stdout, format).toContain('NVA0001');
     }
+    const csv = (await runCli('check', '--nav', join(dir, 'nav.csv'), '--as-of', '2026-11-26', '--format', 'csv')).stdout.trim().split('\n');
+    expect(csv[0]).toBe('check,severity,series_id,start,end,message,key,evidence');
+    expect(csv[1]).toMatch(/^non_positive_value,critical,NVA0001,2026-11-26,2026-11-26,.*,non_positive_value\|NVA0001\|2026-11-26,"\{/);
     const html = (await runCli('check', '--nav', join(dir, 'nav.csv'), '--as-of', '2026-11-26', '--format', 'html')).stdout;
     expect(html).toMatch(/^<!doctype html>/);
     expect(html).toContain('compliance function');
