@@ -17,8 +17,8 @@ const SECTIONS: ReadonlyArray<{ heading: string; metrics: readonly MetricId[] }>
 
 /**
  * One row per (series, window) and one column per metric, in two sections; figures that cannot be
- * computed show "n/a" (the json and csv outputs give each reason). The csv output is one flat row
- * per figure.
+ * computed show "n/a" (the json and csv outputs give each reason). Four decimals for reading; the
+ * json and csv outputs keep full precision, the csv as one flat row per figure.
  */
 export function metricsView(answer: MetricsAnswer): ReportView {
   const missing = answer.metrics.filter((figure) => figure.value === null).length;
@@ -48,7 +48,7 @@ function pivot(figures: readonly MetricRow[], heading: string, wanted: readonly 
     const key = `${figure.series_id}\u0000${figure.window}`;
     let row = rows.get(key);
     if (!row) rows.set(key, (row = [figure.series_id, figure.window, ...metrics.map(() => null)]));
-    row[2 + column] = figure.value === null ? 'n/a' : round(figure.value);
+    row[2 + column] = figure.value === null ? 'n/a' : figure.value.toFixed(4);
   }
   return { heading, columns: ['series', 'window', ...metrics], rows: [...rows.values()] };
 }
@@ -59,7 +59,3 @@ function describeRiskFree(riskFree: MetricsAnswer['methodology']['risk_free']): 
   return riskFree.rate_id ? `rate series ${riskFree.rate_id}` : "each series' rate_id in the master";
 }
 
-/** Four decimals for reading; the json output keeps full precision. */
-function round(value: number): number {
-  return Math.round(value * 1e4) / 1e4;
-}

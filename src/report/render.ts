@@ -1,5 +1,8 @@
 import Table from 'cli-table3';
-import { CAUTION, cellText, isEmpty, type ReportSection, type ReportView } from './view.js';
+import { CAUTION, cellText, isEmpty, type Cell, type ReportSection, type ReportView } from './view.js';
+
+/** Text that reads as a number (right-aligned in html). */
+const NUMBER_TEXT = /^-?\d+(\.\d+)?(e-?\d+)?$/;
 
 export const OUTPUT_FORMATS = ['table', 'json', 'csv', 'markdown', 'html'] as const;
 export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
@@ -32,7 +35,7 @@ export function renderTable(view: ReportView, width = process.stdout.columns || 
     const cells = section.rows.map((row) => row.map(cellText));
     const colWidths = fitColumns(section.columns, cells, width);
     const table = new Table({ head: [...section.columns], colWidths, wordWrap: true, chars: COMPACT_RULES, style: { head: [], border: [] } });
-    for (const row of cells) table.push(row);
+    for (const row of cells) table.push(row.map((text) => (NUMBER_TEXT.test(text) ? { content: text, hAlign: 'right' as const } : text)));
     lines.push(table.toString(), '');
   }
   return [...lines, CAUTION, ''].join('\n');
@@ -84,7 +87,8 @@ export function renderHtml(view: ReportView): string {
 <style>
 body { font-family: system-ui, sans-serif; margin: 2rem; color: #222; }
 table { border-collapse: collapse; font-size: 0.9rem; margin-bottom: 1.5rem; }
-th, td { border: 1px solid #bbb; padding: 0.3rem 0.5rem; text-align: left; vertical-align: top; }
+th, td { border: 1px solid #bbb; padding: 0.3rem 0.5rem; text-align: left; vertical-align: top; white-space: nowrap; }
+td.prose { white-space: normal; min-width: 24rem; }
 td.number { text-align: right; font-variant-numeric: tabular-nums; }
 thead th { background: #eee; }
 .caution { margin-top: 1.5rem; font-size: 0.85rem; color: #555; max-width: 60rem; }
@@ -102,8 +106,11 @@ ${body}
 function htmlSection(section: ReportSection): string {
   const heading = section.heading ? `<h2>${escapeHtml(section.heading)}</h2>\n` : '';
   const head = section.columns.map((c) => `<th scope="col">${escapeHtml(c)}</th>`).join('');
-  const cell = (value: string | number | null) =>
-    typeof value === 'number' ? `<td class="number">${escapeHtml(cellText(value))}</td>` : `<td>${escapeHtml(cellText(value))}</td>`;
+  const cell = (value: Cell, column: number) => {
+    const text = cellText(value);
+    const kind = section.columns[column] === 'message' ? ' class="prose"' : NUMBER_TEXT.test(text) ? ' class="number"' : '';
+    return `<td${kind}>${escapeHtml(text)}</td>`;
+  };
   const body = section.rows.map((row) => `<tr>${row.map(cell).join('')}</tr>`).join('\n');
   return `${heading}<table>\n<thead><tr>${head}</tr></thead>\n<tbody>\n${body}\n</tbody>\n</table>`;
 }
