@@ -51,7 +51,7 @@ export interface WindowSample {
   readonly pointDays: Int32Array;
 }
 
-/** A rate missing for a weekly or daily period may be taken from this many days before it. */
+/** A weekly or daily period without a rate may take the latest one observed this many days before its end. */
 export const RATE_LOOKBACK_DAYS = 31;
 
 export function sampleWindow(request: WindowRequest): Outcome<WindowSample> {
@@ -234,8 +234,12 @@ function alignedPoints(dates: Int32Array, monthEnds: Int32Array, fundDays: Int32
 
 /**
  * The risk-free return of each period: the mean of the annual rates observed in the period,
- * divided by the annualisation. A month without a rate makes the window's rate unknown; a
- * week or a day without one takes the latest rate of the preceding `RATE_LOOKBACK_DAYS` days.
+ * divided by the annualisation. Monthly, a period is the calendar month (interface.md: "the mean
+ * of that month's annual rates"), and a month without a rate makes the window's rate unknown.
+ * Weekly and daily, a period is the days its return covers: after its start point, up to and
+ * including its end point; a period without a rate takes the latest earlier rate when that was
+ * observed within `RATE_LOOKBACK_DAYS` days before the period's end (docs/methodology.md,
+ * "Readings of the interface where its text leaves a choice").
  */
 function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome<Float64Array> {
   const source = request.riskFree;
@@ -248,8 +252,8 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
   const perPeriod = new Float64Array(periods);
   const missing: string[] = [];
   for (let k = 0; k < periods; k++) {
-    const [from, to] = periodDays(request, pointDays[k + 1], k);
-    const rate = meanRate(source.rates, from, to) ?? lookBackRate(source.rates, from, request.frequency);
+    const [from, to] = periodDays(request, pointDays, k);
+    const rate = meanRate(source.rates, from, to) ?? lookBackRate(source.rates, from, to, request.frequency);
     if (rate === null) missing.push(describePeriod(pointDays[k + 1], request.frequency));
     else perPeriod[k] = rate / request.annualization;
   }
@@ -259,13 +263,14 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
   return { ok: false, reason: `no risk-free rate ${source.id} for ${listed}${more}` };
 }
 
-/** First and last epoch day of period k (ending with the point on `day`), cut at the as-of day. */
-function periodDays(request: WindowRequest, day: number, k: number): [number, number] {
+/**
+ * First and last epoch day whose rates period k averages, cut at the as-of day: the calendar
+ * month monthly; weekly and daily the days after the period's start point up to its end point.
+ */
+function periodDays(request: WindowRequest, pointDays: Int32Array, k: number): [number, number] {
   const { frequency, asOf, span } = request;
   if (frequency === 'monthly') return [span.lastDays[k + 1] + 1, Math.min(span.lastDays[k + 2], asOf)];
-  const start = periodKey(day, frequency);
-  const end = frequency === 'weekly' ? start + 6 : start;
-  return [start, Math.min(end, asOf)];
+  return [pointDays[k] + 1, Math.min(pointDays[k + 1], asOf)];
 }
 
 function meanRate(rates: Observations, from: number, to: number): number | null {
@@ -277,10 +282,11 @@ function meanRate(rates: Observations, from: number, to: number): number | null 
   return sum / (end - begin);
 }
 
-function lookBackRate(rates: Observations, periodStart: number, frequency: Frequency): number | null {
+/** Weekly and daily: the latest rate before the period, if observed within the lookback before its end. */
+function lookBackRate(rates: Observations, periodStart: number, periodEnd: number, frequency: Frequency): number | null {
   if (frequency === 'monthly') return null;
   const before = upperBound(rates.dates, periodStart - 1) - 1;
-  return before >= 0 && rates.dates[before] >= periodStart - RATE_LOOKBACK_DAYS ? rates.values[before] : null;
+  return before >= 0 && rates.dates[before] >= periodEnd - RATE_LOOKBACK_DAYS ? rates.values[before] : null;
 }
 
 function describePeriod(day: number, frequency: Frequency): string {

@@ -245,12 +245,13 @@ const benchOnOrBefore = (limit: number) => BENCH_DAILY[BENCH_DAYS.indexOf(lastOn
 const simpleReturns = (levels: number[]) => levels.slice(1).map((v, i) => v / levels[i] - 1);
 
 describe('weekly and daily frequencies keep the window calendar span', () => {
-  it('weekly: the last value of each ISO week, annualised by 52, rates averaged over the week', () => {
+  it('weekly: the last value of each ISO week, annualised by 52, rates averaged over the days each return covers', () => {
     const inside = WEEKDAYS.filter((d) => d > SPAN_START && d <= SPAN_END);
     const points = [SPAN_START, ...inside.filter((d, i) => i === inside.length - 1 || mondayOf(inside[i + 1]) !== mondayOf(d))];
     const p = simpleReturns(points.map(fundAt));
     const b = simpleReturns(points.map((d, i) => (i === 0 ? benchOnOrBefore(d) : benchOnOrBefore(mondayOf(d) + 6))));
-    const f = points.slice(1).map((d) => mean(WEEKDAYS.filter((r) => mondayOf(r) === mondayOf(d) && r <= END).map(DAILY_RATE)) / 52);
+    // The rates of the days each return covers: after its start point, up to its end point.
+    const f = points.slice(1).map((d, k) => mean(WEEKDAYS.filter((r) => r > points[k] && r <= d).map(DAILY_RATE)) / 52);
     const ep = minus(p, f);
     const eb = minus(b, f);
     expect(p.length).toBeGreaterThan(50);
