@@ -328,3 +328,29 @@ describe('navassay metrics --format json against the oracle', () => {
     expect(disagreements(varied.metrics, (w) => expected(scenario, w, changes))).toEqual([]);
   });
 });
+
+describe('consequences of the documented readings', () => {
+  it('month-end NAVs on the last calendar day: weekly is monthly annualised by 52, rates included', () => {
+    const monthEndOnly = monthlyScenario.filter((s) => s.fund.every((o) => o.date === lastDayOf(o.date.slice(0, 7))));
+    fc.assert(
+      fc.property(monthEndOnly, (scenario) => {
+        const weekly = library(scenario, ['1y', '3y'], { frequency: 'weekly' }).metrics;
+        const monthly52 = library(scenario, ['1y', '3y'], { annualization: 52 }).metrics;
+        weekly.forEach((row, i) => expect(agree(row.value, monthly52[i].value)).toBe(true));
+      }),
+      { numRuns: 30 },
+    );
+  });
+
+  it('an as-of day inside a month: its month-end value is the last on or before it', () => {
+    fc.assert(
+      fc.property(dailyScenario, fc.integer({ min: 3, max: 20 }), fc.constantFrom<MethodologyChanges>({}, { frequency: 'weekly' }, { frequency: 'daily', window_end: -1 }), (full, back, changes) => {
+        const scenario = { ...full, asOf: isoDate(dayNumber(full.asOf) - back) };
+        const answer = library(scenario, ['1y', '18m'], changes);
+        expect(answer.as_of).toBe(scenario.asOf);
+        expect(disagreements(answer.metrics, (w) => expected(scenario, w, changes))).toEqual([]);
+      }),
+      { numRuns: 20 },
+    );
+  });
+});
