@@ -1,5 +1,5 @@
 import type { SeriesCheck } from '../src/checks/check.js';
-import { ordinaryExtreme, seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { endsOnConflict, ordinaryExtreme, tailBar, seriesReturns, sharedWithMarket, type SeriesReturns } from '../src/checks/returns.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
 import { inShiftedSpan } from './date-shift.js';
 import { SPIKE_DEFAULTS, isSpikeReversal } from './spike-reversal.js';
@@ -9,6 +9,7 @@ interface OutlierParams {
   threshold: number;
   tail_multiple: number;
   min_move: number;
+  tail_chance: number;
   [key: string]: number;
 }
 
@@ -26,13 +27,14 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
   id: 'return_outlier',
   scope: 'series',
   purpose: 'A one-day move far outside the series’ usual behaviour relative to its benchmark.',
-  defaults: { threshold: 8, tail_multiple: 3.5, min_move: 0.005 },
+  defaults: { threshold: 8, tail_multiple: 3.5, min_move: 0.005, tail_chance: 0.02 },
   run(series, context, params) {
     const returns = seriesReturns(series, context);
     const findings = [];
     for (let k = 0; k < returns.count; k++) {
       if (!isOutlier(returns, k, params) || explainedElsewhere(returns, k)) continue;
       if (inShiftedSpan(series, returns, context.benchmark, k)) continue;
+      if (endsOnConflict(series, returns, k) || sharedWithMarket(series, returns, context.benchmarks, [k])) continue;
       const before = returns.from[k];
       const day = returns.to[k];
       const benchmarkMove = Number.isFinite(returns.bench[k]) ? Math.expm1(returns.bench[k]) : null;
@@ -67,7 +69,7 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
 
 function isOutlier(returns: SeriesReturns, k: number, params: OutlierParams): boolean {
   if (Math.abs(returns.z[k]) < params.threshold || Math.abs(returns.residual[k]) < params.min_move) return false;
-  return Math.abs(returns.z[k]) >= params.tail_multiple * ordinaryExtreme(returns);
+  return Math.abs(returns.z[k]) >= params.tail_multiple * ordinaryExtreme(returns) && Math.abs(returns.z[k]) >= tailBar(returns, params.tail_chance);
 }
 
 function explainedElsewhere(returns: SeriesReturns, k: number): boolean {

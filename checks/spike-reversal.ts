@@ -1,5 +1,5 @@
 import type { SeriesCheck } from '../src/checks/check.js';
-import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { endsOnConflict, ordinaryExtreme, seriesReturns, sharedWithMarket, type SeriesReturns } from '../src/checks/returns.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
 import { inShiftedSpan } from './date-shift.js';
 
@@ -7,10 +7,11 @@ export interface SpikeParams {
   min_move: number;
   min_z: number;
   reversal_tolerance: number;
+  tail_multiple: number;
   [key: string]: number;
 }
 
-export const SPIKE_DEFAULTS: SpikeParams = { min_move: 0.01, min_z: 5, reversal_tolerance: 0.25 };
+export const SPIKE_DEFAULTS: SpikeParams = { min_move: 0.01, min_z: 5, reversal_tolerance: 0.25, tail_multiple: 1.9 };
 
 /**
  * A large one-day move, relative to the benchmark, that the next observation undoes: the
@@ -30,6 +31,10 @@ export const spikeReversal: SeriesCheck<SpikeParams> = {
     const findings = [];
     for (let k = 0; k + 1 < returns.count; k++) {
       if (!isSpikeReversal(returns, k, params) || inShiftedSpan(series, returns, context.benchmark, k)) continue;
+      // Two rows disagree on the spike's date: one finding (duplicate_conflict) for one cause.
+      if (endsOnConflict(series, returns, k)) continue;
+      // A crash and rebound that some benchmark in the feed made too, on both days.
+      if (sharedWithMarket(series, returns, context.benchmarks, [k, k + 1])) continue;
       const before = returns.from[k];
       const spike = returns.to[k];
       const after = returns.to[k + 1];
@@ -64,10 +69,13 @@ export function isSpikeReversal(returns: SeriesReturns, k: number, params: Spike
   if (k + 1 >= returns.count || returns.to[k] !== returns.from[k + 1]) return false;
   const out = returns.residual[k];
   const back = returns.residual[k + 1];
+  // A series whose ordinary days are wild needs a wilder spike: 1.9 × its 99th-percentile |z|
+  // is about 5 for normal residuals (the floor) and 7–9 for Student-t(4–5) ones.
+  const bar = Math.max(params.min_z, params.tail_multiple * ordinaryExtreme(returns));
   return (
     Math.abs(out) >= params.min_move &&
-    Math.abs(returns.z[k]) >= params.min_z &&
-    Math.abs(returns.z[k + 1]) >= params.min_z * (1 - params.reversal_tolerance) &&
+    Math.abs(returns.z[k]) >= bar &&
+    Math.abs(returns.z[k + 1]) >= bar * (1 - params.reversal_tolerance) &&
     Math.sign(back) === -Math.sign(out) &&
     Math.abs(out + back) <= params.reversal_tolerance * Math.abs(out)
   );

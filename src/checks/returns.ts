@@ -13,8 +13,8 @@
  */
 import type { SeriesContext } from './check.js';
 import type { CorporateActionRecord } from '../ingest/records.js';
-import type { SeriesSlice } from '../series/frame.js';
-import { calendarOf, median, robustScale } from './support.js';
+import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
+import { calendarOf, exactPosition, median, robustScale } from './support.js';
 
 export interface SeriesReturns {
   readonly count: number;
@@ -218,4 +218,74 @@ export function ordinaryExtreme(returns: SeriesReturns): number {
     extremeCache.set(returns, cached);
   }
   return cached;
+}
+
+/**
+ * True when some benchmark in the feed made the same move as the series over exactly the same
+ * dates, step after step: a big market day (a crash, a rebound) that hit every fund, not a
+ * price error. "The same move" means the same direction and at least `share` of the fund's
+ * move, and at least `min_market_move`: ordinary market days never excuse a fund's jump. Used
+ * by the move checks for steps their own benchmark could not explain (it lacks the dates, it
+ * has no levels, or it is not the fund's market at all).
+ */
+export function sharedWithMarket(series: SeriesSlice, returns: SeriesReturns, benchmarks: SeriesFrame | undefined, steps: readonly number[], share = 0.6, minMarketMove = 0.02): boolean {
+  if (!benchmarks) return false;
+  for (let b = 0; b < benchmarks.ids.length; b++) {
+    const start = benchmarks.offsets[b];
+    const dates = benchmarks.dates.subarray(start, benchmarks.offsets[b + 1]);
+    let all = true;
+    for (const k of steps) {
+      const p = exactPosition(dates, series.dates[returns.from[k]]);
+      const q = exactPosition(dates, series.dates[returns.to[k]]);
+      const move = p >= 0 && q > p ? Math.log(benchmarks.values[start + q] / benchmarks.values[start + p]) : NaN;
+      const fund = returns.raw[k];
+      if (!(Math.sign(move) === Math.sign(fund) && Math.abs(move) >= Math.max(minMarketMove, share * Math.abs(fund)))) {
+        all = false;
+        break;
+      }
+    }
+    if (all) return true;
+  }
+  return false;
+}
+
+/** True when the series has two or more rows with different values on the date step `k` ends on: `duplicate_conflict` says which. */
+export function endsOnConflict(series: SeriesSlice, returns: SeriesReturns, k: number): boolean {
+  const row = returns.to[k];
+  const day = series.dates[row];
+  for (let i = row + 1; i < series.dates.length && series.dates[i] === day; i++) if (series.values[i] !== series.values[row]) return true;
+  return false;
+}
+
+const tailCache = new WeakMap<SeriesReturns, { p99: number; alpha: number; n: number }>();
+
+/**
+ * The |z| that the series' own ordinary days would exceed with a total chance of `chance`
+ * over its whole history, extrapolated from its tail. The largest 5 % of |z| give a Hill
+ * estimate of the tail index α (P(|z| > x) ≈ 0.01 · (x / p99)^−α beyond the 99th percentile),
+ * so the bar is p99 · (n / (100 · chance))^(1/α). Normal residuals give a large α and a bar
+ * below the fixed floors; Student-t(4–5) residuals give α near 4 and a bar of 15–20 robust
+ * standard deviations, where their genuine extreme days end. Steps beyond 3 × the gross-error
+ * bar are candidate faults, not the tail being measured, and are left out of the estimate.
+ */
+export function tailBar(returns: SeriesReturns, chance: number): number {
+  let tail = tailCache.get(returns);
+  if (tail === undefined) {
+    const magnitudes = Float64Array.from(returns.z, Math.abs).filter(Number.isFinite).sort();
+    const n = magnitudes.length;
+    tail = { p99: 0, alpha: Infinity, n };
+    if (n >= 100) {
+      const k = Math.floor(0.05 * n);
+      const threshold = magnitudes[n - k - 1];
+      let sum = 0, used = 0;
+      for (let i = n - k; i < n; i++) {
+        if (magnitudes[i] >= 3 * GROSS_Z) continue;
+        sum += Math.log(magnitudes[i] / threshold);
+        used++;
+      }
+      tail = { p99: magnitudes[Math.floor(0.99 * (n - 1))], alpha: used >= 10 && sum > 0 ? used / sum : Infinity, n };
+    }
+    tailCache.set(returns, tail);
+  }
+  return Number.isFinite(tail.alpha) ? tail.p99 * Math.pow(tail.n / (100 * chance), 1 / tail.alpha) : 0;
 }
