@@ -56,7 +56,7 @@ function lookalikeFamilies(isinShaped: string[]): Set<string> {
 
 function badCurrencies({ master }: FeedContext): Finding[] {
   return (master ?? [])
-    .filter((record) => record.currency !== null && !ISO_4217_CODES.has(record.currency.trim().toUpperCase()))
+    .filter((record) => record.currency !== null && !isIsoCurrency(record.currency))
     .map((record) =>
       makeFinding({
         check: 'invalid_identifier',
@@ -69,4 +69,15 @@ function badCurrencies({ master }: FeedContext): Finding[] {
         identity: ['currency', record.currency],
       }),
     );
+}
+
+/**
+ * An ISO 4217 code, in either case ("eur" is a sloppy EUR). Mixed case is not forgiven: "GBp",
+ * "ZAc" and "ILa" are the trade's notation for a currency's minor unit (pence, cents, agorot),
+ * a factor of 100 away from the code that uppercasing them would give.
+ */
+function isIsoCurrency(currency: string): boolean {
+  const code = currency.trim();
+  if (code !== code.toUpperCase() && code !== code.toLowerCase()) return false;
+  return ISO_4217_CODES.has(code.toUpperCase());
 }

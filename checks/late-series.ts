@@ -4,6 +4,7 @@ import { calendarOf, isoDate, makeFinding } from '../src/checks/support.js';
 interface LateParams {
   max_lag_business_days: number;
   max_as_of_lag_business_days: number;
+  closed_after_business_days: number;
   [key: string]: number;
 }
 
@@ -19,7 +20,7 @@ export const lateSeries: SeriesCheck<LateParams> = {
   id: 'late_series',
   scope: 'series',
   purpose: 'The latest value is more business days behind the feed’s latest date (or the as-of) than allowed.',
-  defaults: { max_lag_business_days: 0, max_as_of_lag_business_days: 1 },
+  defaults: { max_lag_business_days: 0, max_as_of_lag_business_days: 1, closed_after_business_days: 65 },
   run(series, context, params) {
     let lastRow = -1;
     for (let i = 0; i < series.dates.length && series.dates[i] <= context.asOf; i++) lastRow = i;
@@ -34,14 +35,19 @@ export const lateSeries: SeriesCheck<LateParams> = {
     const firstMissing = context.calendars.businessDaysBetween(calendar, last, expected + 1)[0];
     const lag = lateForFeed ? lagFromFeed : lagFromAsOf;
     const against = lateForFeed ? `the feed's latest date ${isoDate(expected)}` : `the as-of ${isoDate(expected)}`;
+    // A quarter and more without a value while the rest of the feed is current: the fund has
+    // most likely closed or merged (its ticket, under the same key, was raised months ago).
+    const closed = lateForFeed && lag > params.closed_after_business_days;
     return [
       makeFinding({
         check: 'late_series',
-        severity: 'error',
+        severity: closed ? 'info' : 'error',
         seriesId: series.id,
         start: firstMissing,
         end: expected,
-        message: `${series.id}'s latest value is dated ${isoDate(last)}, ${lag} business day${lag > 1 ? 's' : ''} behind ${against}.`,
+        message: closed
+          ? `${series.id} has had no value since ${isoDate(last)}, ${lag} business days behind ${against}; it looks closed or merged. Close it in the master, or chase it if it should still be priced.`
+          : `${series.id}'s latest value is dated ${isoDate(last)}, ${lag} business day${lag > 1 ? 's' : ''} behind ${against}.`,
         evidence: {
           latest_date: isoDate(last),
           latest_value: series.values[lastRow],
@@ -50,6 +56,7 @@ export const lateSeries: SeriesCheck<LateParams> = {
           as_of: isoDate(context.asOf),
           lag_business_days: lag,
           lag_from_as_of_business_days: lagFromAsOf,
+          looks_closed: closed,
         },
         identity: [isoDate(last)],
       }),

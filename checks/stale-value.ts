@@ -24,7 +24,7 @@ export const staleValue: SeriesCheck<StaleParams> = {
   id: 'stale_value',
   scope: 'series',
   purpose: 'The same NAV repeated on several consecutive business days.',
-  defaults: { min_days: 4, max_chance: 0.01, accrual_max_daily: 0.0005 },
+  defaults: { min_days: 3, max_chance: 0.01, accrual_max_daily: 0.0005 },
   run(series, context, params) {
     if (context.master?.stable_value) return [];
     const rows = firstRowOfEachDate(series, context.asOf).filter((i) => series.values[i] > 0);
@@ -70,12 +70,16 @@ function equalValueRuns(series: SeriesSlice, rows: number[]): number[][] {
   return runs;
 }
 
+/** Runs of this many equal values or more are left out when measuring how often a series repeats by rounding. */
+const SUSPECT_RUN = 4;
+
 /** The shortest run that is both long enough by rule and unlikely for this series by chance. */
 function requiredRunLength(runs: number[][], observations: number, params: StaleParams): number {
   let repeats = 0;
   let pairs = 0;
   for (const run of runs) {
-    if (run.length >= params.min_days) continue;
+    // Runs long enough to be suspect do not teach how often the series repeats by rounding.
+    if (run.length >= Math.max(params.min_days, SUSPECT_RUN)) continue;
     repeats += run.length - 1;
     pairs += run.length;
   }

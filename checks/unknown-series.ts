@@ -80,10 +80,15 @@ function daysFundsNeed(context: FeedContext): Map<string, Set<number>> {
 function benchmarkGaps(context: FeedContext, minGapDays: number): Finding[] {
   if (!context.benchmarks) return [];
   const findings: Finding[] = [];
+  // An index is not computed on its own market's holidays. The feed does not say which market
+  // an index belongs to, so a missing level on a holiday of any calendar the master uses is
+  // taken for an index holiday, not a gap.
+  const calendars = [...new Set((context.master ?? []).map((record) => record.calendar).filter((c): c is string => c !== null))];
+  const marketHoliday = (day: number) => calendars.some((calendar) => context.calendars.isHoliday(calendar, day));
   for (const [benchmarkId, needed] of daysFundsNeed(context)) {
     const levels = findSeries(context.benchmarks, benchmarkId)!;
     const present = new Set(levels.dates);
-    const missing = [...needed].filter((day) => !present.has(day)).sort((a, b) => a - b);
+    const missing = [...needed].filter((day) => !present.has(day) && !marketHoliday(day)).sort((a, b) => a - b);
     const runs = consecutiveRuns(missing, (a, b) => context.calendars.businessDaysBetween(BusinessCalendars.DEFAULT, a, b).length === 0);
     for (const run of runs.filter((r) => r.length >= minGapDays)) {
       const first = run[0];
