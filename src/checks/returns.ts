@@ -249,9 +249,16 @@ export function sharedWithMarket(series: SeriesSlice, returns: SeriesReturns, be
   return false;
 }
 
-/** True when the series has two or more rows with different values on the date step `k` ends on: `duplicate_conflict` says which. */
+/**
+ * True when the series has two or more rows with different values on a date step `k` starts
+ * or ends on: which row is right is `duplicate_conflict`'s question, and a move measured from
+ * the wrong one is not a second fault.
+ */
 export function endsOnConflict(series: SeriesSlice, returns: SeriesReturns, k: number): boolean {
-  const row = returns.to[k];
+  return conflictAt(series, returns.to[k]) || conflictAt(series, returns.from[k]);
+}
+
+function conflictAt(series: SeriesSlice, row: number): boolean {
   const day = series.dates[row];
   for (let i = row + 1; i < series.dates.length && series.dates[i] === day; i++) if (series.values[i] !== series.values[row]) return true;
   return false;
