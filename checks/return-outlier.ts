@@ -19,7 +19,10 @@ interface OutlierParams {
  * deviations (MAD × 1.4826) from normal, and at least `min_move` in size. Daily residuals are
  * fat-tailed, so the bar is 8 rather than the 3–4 that normal data would suggest, and it rises
  * to `tail_multiple` × the series' own 99th-percentile |z| when that is higher: a series whose
- * ordinary days are wild needs a wilder day to stand out. Days that
+ * ordinary days are wild needs a wilder day to stand out, and to the series' extrapolated tail
+ * (`tailBar`): the |z| its ordinary days would reach with chance `tail_chance` over its whole
+ * history. Steps touching a date with conflicting duplicate rows, and moves some benchmark in
+ * the feed made too (a market-wide day), are left alone. Days that
  * are split-like jumps or spike reversals (judged with those checks' defaults) are left to
  * those checks, and so are days inside a date-shifted span. Without a benchmark the series is judged against its own typical move.
  */

@@ -15,11 +15,14 @@ export const SPIKE_DEFAULTS: SpikeParams = { min_move: 0.01, min_z: 5, reversal_
 
 /**
  * A large one-day move, relative to the benchmark, that the next observation undoes: the
- * signature of a keying error. "Large" means both at least `min_move` (1 %) and at least
- * `min_z` robust standard deviations of the series' own residual moves; "undoes" means the
- * way back is nearly as large and the two days together leave less than
- * `reversal_tolerance` of the first move. Two such days in a row are rare enough by chance
- * that the bar can sit lower than `return_outlier`'s.
+ * signature of a keying error. "Large" means both at least `min_move` (1 %) and at least the
+ * bar in robust standard deviations of the series' own residual moves, the bar being `min_z`
+ * or `tail_multiple` × the series' 99th-percentile |z| when that is higher (fat-tailed series
+ * reach 5 on ordinary days); "undoes" means the way back is nearly as large and the two days
+ * together leave less than `reversal_tolerance` of the first move. Two such days in a row are
+ * rare enough by chance that the bar can sit lower than `return_outlier`'s. Left alone: days
+ * in a date-shifted span, steps touching a date with conflicting duplicate rows, and a fall
+ * and rebound some benchmark in the feed made too.
  */
 export const spikeReversal: SeriesCheck<SpikeParams> = {
   id: 'spike_reversal',

@@ -61,9 +61,10 @@ describe('stale_value', () => {
     ]);
   });
 
-  it('lets three repeats pass, and skips stable-value and smoothly accruing funds', () => {
+  it('finds three repeats by default (not with min_days 4), and skips stable-value and smoothly accruing funds', () => {
     const three = [...moving(100, 10), 101.5, 101.5, 101.5, ...moving(102, 10)];
-    expect(staleValue.run(seriesOf('S1', rows(three)), contextFor(), staleValue.defaults)).toEqual([]);
+    expect(staleValue.run(seriesOf('S1', rows(three)), contextFor(), staleValue.defaults).map((f) => f.evidence.business_days)).toEqual([3]);
+    expect(staleValue.run(seriesOf('S1', rows(three)), contextFor(), { ...staleValue.defaults, min_days: 4 })).toEqual([]);
     const frozen = rows([...moving(100, 10), ...Array(8).fill(1), ...moving(102, 10)]);
     expect(staleValue.run(seriesOf('S1', frozen), contextFor({ master: master('S1', { stable_value: true }) }), staleValue.defaults)).toEqual([]);
     // 10.0000, 10.0001 … rounded accrual repeats a value for days at a time but only ever rises
