@@ -48,6 +48,8 @@ export interface FeedContext {
   readonly previous: SeriesFrame | undefined;
   /** Rows that could not be read, from every input file. */
   readonly rejected: readonly import('../ingest/records.js').RejectedRow[];
+  /** The vendor's risk figures, when a vendor file was given. */
+  readonly vendor?: readonly import('../ingest/records.js').VendorFigureRecord[];
 }
 
 export interface FeedCheck<P extends CheckParams = CheckParams> {

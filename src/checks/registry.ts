@@ -18,6 +18,7 @@ import { splitLikeJump } from '../../checks/split-like-jump.js';
 import { staleValue } from '../../checks/stale-value.js';
 import { unknownSeries } from '../../checks/unknown-series.js';
 import { unparseableRow } from '../../checks/unparseable-row.js';
+import { vendorInconsistent } from '../../checks/vendor-inconsistent.js';
 
 export const CHECKS: readonly Check[] = [
   missingDates,
@@ -38,6 +39,7 @@ export const CHECKS: readonly Check[] = [
   droppedRows,
   benchmarkMismatch,
   invalidIdentifier,
+  vendorInconsistent,
 ];
 
 export const CHECK_IDS: readonly string[] = CHECKS.map((check) => check.id);

@@ -4,7 +4,7 @@
  */
 import type { BusinessCalendars } from '../calendar/business-calendar.js';
 import { severityRank, type Finding } from '../findings.js';
-import type { CorporateActionRecord, RejectedRow, SeriesMasterRecord } from '../ingest/records.js';
+import type { CorporateActionRecord, RejectedRow, SeriesMasterRecord, VendorFigureRecord } from '../ingest/records.js';
 import { findSeries, seriesAt, type SeriesFrame } from '../series/frame.js';
 import type { FeedCheck, FeedContext, SeriesCheck, SeriesContext } from './check.js';
 import { CHECKS } from './registry.js';
@@ -17,6 +17,7 @@ export interface CheckInput {
   readonly actions?: readonly CorporateActionRecord[];
   readonly previous?: SeriesFrame;
   readonly rejected: readonly RejectedRow[];
+  readonly vendor?: readonly VendorFigureRecord[];
   readonly calendars: BusinessCalendars;
   /** Epoch day. */
   readonly asOf: number;
@@ -59,6 +60,7 @@ export function runChecks(input: CheckInput, settings: CheckSettings = {}): Find
     master: input.master,
     previous: input.previous,
     rejected: input.rejected,
+    vendor: input.vendor,
   };
   for (const check of feedChecks) {
     const { enabled, params } = resolver.resolve(check, null, null);

@@ -6,10 +6,10 @@ import { CheckSettingsError, parseCheckSettings, SettingsResolver } from '../../
 import { day, frameOf, master } from './helpers.js';
 
 describe('the registry', () => {
-  it('holds every check the interface names except the vendor one, each once and documented', () => {
+  it('holds every check the interface names (interface.md, "Check identifiers") plus invalid_identifier, each once and documented', () => {
     const required = ['missing_dates', 'late_series', 'stale_value', 'split_like_jump', 'spike_reversal', 'return_outlier', 'date_shift',
       'off_calendar_date', 'future_date', 'duplicate_conflict', 'duplicate_row', 'non_positive_value', 'unparseable_row', 'unknown_series',
-      'restated_value', 'dropped_rows', 'benchmark_mismatch', 'invalid_identifier'];
+      'restated_value', 'dropped_rows', 'benchmark_mismatch', 'vendor_inconsistent', 'invalid_identifier'];
     expect([...CHECK_IDS].sort()).toEqual([...required].sort());
     expect(new Set(CHECK_IDS).size).toBe(CHECK_IDS.length);
     for (const check of CHECKS) expect(check.purpose.length).toBeGreaterThan(20);

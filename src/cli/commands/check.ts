@@ -13,6 +13,7 @@ interface CheckOptions {
   holidays?: string;
   actions?: string;
   previous?: string;
+  vendor?: string;
   asOf?: string;
   format?: string;
   out?: string;
@@ -28,6 +29,7 @@ export function checkCommand(): Command {
     .option('--master <file>', 'series master (series_id, benchmark_id, …)')
     .option('--holidays <file>', 'holidays (calendar, date)')
     .option('--actions <file>', 'corporate actions (series_id, ex_date, kind, value)')
+    .option('--vendor <file>', "the vendor's risk figures, judged for impossible and contradictory values")
     .option('--previous <file>', "the previous snapshot's NAV file, to find restated and dropped rows")
     .addOption(profilesOption())
     .addOption(asOfOption('today'))
@@ -48,6 +50,7 @@ async function runCheckCommand(options: CheckOptions): Promise<number> {
     master: options.master,
     holidays: options.holidays,
     actions: options.actions,
+    vendor: options.vendor,
   };
   const loadOptions = loadOptionsFrom(options.config);
   const feed = await loadFeed(paths, loadOptions);

@@ -1,0 +1,78 @@
+import { describe, expect, it } from 'vitest';
+import { vendorInconsistent } from '../../checks/vendor-inconsistent.js';
+import { BusinessCalendars } from '../../src/calendar/business-calendar.js';
+import { parseIsoDate } from '../../src/calendar/days.js';
+import type { FeedContext } from '../../src/checks/check.js';
+import type { VendorFigureRecord } from '../../src/ingest/records.js';
+import { frameFromSeries } from '../../src/series/frame.js';
+
+const AS_OF = parseIsoDate('2026-11-30')!;
+let line = 2;
+const figure = (series_id: string, metric: string, value: number, unit: 'decimal' | 'percent' = 'decimal', window = '3y'): VendorFigureRecord => ({
+  series_id,
+  as_of: AS_OF,
+  window,
+  metric,
+  value: unit === 'percent' ? value / 100 : value,
+  unit,
+  raw_value: String(value),
+  line: line++,
+});
+
+const context = (vendor: VendorFigureRecord[]): FeedContext => ({
+  asOf: AS_OF,
+  calendars: new BusinessCalendars(),
+  nav: frameFromSeries([]),
+  benchmarks: undefined,
+  master: undefined,
+  previous: undefined,
+  rejected: [],
+  vendor,
+});
+
+const run = (vendor: VendorFigureRecord[]) => vendorInconsistent.run(context(vendor), vendorInconsistent.defaults);
+
+describe('vendor_inconsistent', () => {
+  it('passes a coherent set of figures', () => {
+    expect(
+      run([
+        figure('NVA0001', 'std_dev', 0.1412),
+        figure('NVA0001', 'r_squared', 0.93),
+        figure('NVA0001', 'max_drawdown', 0.21),
+        figure('NVA0001', 'sharpe', 0.55),
+        figure('NVA0001', 'beta', 0.97),
+        figure('NVA0001', 'treynor', 0.06),
+        figure('NVA0002', 'r_squared', 93, 'percent'),
+      ]),
+    ).toEqual([]);
+  });
+
+  it('reports values no such figure can take, and says when a decimal looks like a percentage', () => {
+    const findings = run([figure('NVA0001', 'std_dev', -0.02), figure('NVA0001', 'r_squared', 93), figure('NVA0001', 'max_drawdown', 140)]);
+    expect(findings.map((f) => [f.severity, f.series_id, f.start, f.key])).toEqual([
+      ['error', 'NVA0001', '2026-11-30', 'vendor_inconsistent|NVA0001|2026-11-30|3y|std_dev|impossible'],
+      ['error', 'NVA0001', '2026-11-30', 'vendor_inconsistent|NVA0001|2026-11-30|3y|r_squared|impossible'],
+      ['error', 'NVA0001', '2026-11-30', 'vendor_inconsistent|NVA0001|2026-11-30|3y|max_drawdown|impossible'],
+    ]);
+    // An R² of 93 with unit decimal is 93 times too large; read as 93 % it would be fine.
+    expect(findings[1].message).toContain('it looks like a percentage written without unit percent');
+    // A drawdown of 140 is impossible either way (140 % is still beyond 100 %), so no such hint.
+    expect(findings[2].message).not.toContain('percentage');
+  });
+
+  it('reports the same figure delivered twice with different values, once', () => {
+    const findings = run([figure('NVA0003', 'beta', 0.98), figure('NVA0003', 'beta', 1.02), figure('NVA0003', 'alpha', 0.01), figure('NVA0003', 'alpha', 0.01)]);
+    expect(findings).toHaveLength(1);
+    expect(findings[0].message).toBe('The vendor sent 2 different values for the 3y beta of NVA0003 as of 2026-11-30 (0.98, 1.02); only one can be published.');
+  });
+
+  it("flags a Treynor ratio whose sign is not Sharpe's times beta's, and only when both are clearly nonzero", () => {
+    // Definition: Sharpe and Treynor divide the same mean excess return, by a deviation (> 0) and by beta.
+    const contradictory = run([figure('NVA0004', 'sharpe', 0.8), figure('NVA0004', 'beta', 1.1), figure('NVA0004', 'treynor', -0.05)]);
+    expect(contradictory.map((f) => [f.severity, f.key])).toEqual([['warning', 'vendor_inconsistent|NVA0004|2026-11-30|3y|treynor|sign']]);
+    const negativeBeta = run([figure('NVA0005', 'sharpe', 0.8), figure('NVA0005', 'beta', -0.6), figure('NVA0005', 'treynor', -0.05)]);
+    expect(negativeBeta).toEqual([]);
+    const nearZero = run([figure('NVA0006', 'sharpe', 0.03), figure('NVA0006', 'beta', 1.1), figure('NVA0006', 'treynor', -0.001)]);
+    expect(nearZero).toEqual([]);
+  });
+});
