@@ -1,6 +1,7 @@
 import { BusinessCalendars } from '../calendar/business-calendar.js';
 import { epochDay, formatIsoDate, civilFromEpochDay } from '../calendar/days.js';
 import { SeededRandom } from '../random.js';
+import { vendorFile } from './vendor-figures.js';
 
 /**
  * The built-in demo: an invented fund house, Bramblecourt Funds, with thirteen share classes,
@@ -229,14 +230,22 @@ export function demoFiles(seed = 20261130): DemoFiles {
   plantEvents(paths, calendars);
   plantEvents(yesterdayPaths, calendars);
   restoreForYesterday(yesterdayPaths, paths);
+  const feed = {
+    nav: navFile(paths, DEMO_AS_OF, faultyRows(paths)),
+    benchmarks: benchmarkFile(market),
+    rates: ratesFile(market),
+    master: masterFile(),
+    actions: actionsFile(),
+  };
   return {
-    'nav.csv': navFile(paths, DEMO_AS_OF, faultyRows(paths)),
+    'nav.csv': feed.nav,
     'nav-previous.csv': navFile(yesterdayPaths, DEMO_PREVIOUS_AS_OF, []),
-    'benchmarks.csv': benchmarkFile(market),
-    'rates.csv': ratesFile(market),
-    'master.csv': masterFile(),
-    'actions.csv': actionsFile(),
+    'benchmarks.csv': feed.benchmarks,
+    'rates.csv': feed.rates,
+    'master.csv': feed.master,
+    'actions.csv': feed.actions,
     'holidays.csv': holidaysFile(holidays),
+    'vendor-figures.csv': vendorFile(feed, DEMO_AS_OF),
   };
 }
 
@@ -264,6 +273,7 @@ files:
   rates: rates.csv
   holidays: holidays.csv
   actions: actions.csv
+  vendor: vendor-figures.csv
 previous: nav-previous.csv
 profiles:
   # The index vendor writes "Index Code;Value Date;Close" with day-first dates and decimal commas.

@@ -121,6 +121,9 @@ describe('demo and run', () => {
       'non_positive_value NVA0005',
       'future_date NVA0001',
       'off_calendar_date NVA0010',
+      'vendor_inconsistent NVA0003', // R² written as a percentage, labelled decimal
+      'vendor_inconsistent NVA0007', // Treynor with the wrong sign
+      'vendor_inconsistent NVA0010', // beta delivered twice
     ]) {
       expect(found, planted).toContain(planted);
     }
