@@ -22,7 +22,7 @@ interface MetricsOptions {
   config?: string;
   set: string[];
   asOf?: string;
-  windows: string;
+  windows?: string;
   format?: string;
   out?: string;
 }
@@ -39,7 +39,7 @@ export function metricsCommand(): Command {
     .addOption(profilesOption())
     .option('--set <dimension=value>', 'change one methodology setting, such as sd_denominator=population or frequency=weekly (repeatable; see docs/methodology.md)', collect, [])
     .addOption(asOfOption('the last month-end on or before today'))
-    .option('--windows <list>', 'comma-separated windows such as 1y,3y,5y or 6m', '1y,3y,5y')
+    .option('--windows <list>', "comma-separated windows such as 1y,3y,5y or 6m (default: the configuration's windows, else 1y,3y,5y)")
     .addOption(formatOption())
     .addOption(outOption())
     .action(async (options: MetricsOptions) => {
@@ -49,9 +49,9 @@ export function metricsCommand(): Command {
 
 async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   const asOf = parseAsOf(options.asOf, () => lastMonthEndOnOrBefore(todayEpochDay()));
-  const windows = parseWindowList(options.windows);
   const constantRate = options.rf === undefined ? undefined : parseRate(options.rf);
   const config = options.config === undefined ? undefined : loadRunConfig(options.config);
+  const windows = options.windows === undefined ? (config?.windows ?? DEFAULT_WINDOWS) : parseWindowList(options.windows);
   const methodology = chosenMethodology(config?.methodology ?? DEFAULT_METHODOLOGY, options.set, options.rates !== undefined || constantRate !== undefined);
   const loadOptions = config ? { profiles: config.profiles, weekendDays: config.weekend } : {};
   const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions }, loadOptions);
@@ -68,6 +68,8 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   emit(render(chosenFormat(options.format), answer, metricsView(answer)), options.out);
   return 0;
 }
+
+const DEFAULT_WINDOWS = ['1y', '3y', '5y'];
 
 function collect(value: string, previous: string[]): string[] {
   return [...previous, value];
