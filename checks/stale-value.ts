@@ -1,5 +1,7 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
+import type { SeriesContext } from '../src/checks/check.js';
+import { seriesReturns } from '../src/checks/returns.js';
 import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
@@ -30,14 +32,22 @@ export const staleValue: SeriesCheck<StaleParams> = {
     const rows = firstRowOfEachDate(series, context.asOf).filter((i) => series.values[i] > 0);
     if (rows.length < 2 || accruesSmoothly(series, rows, params.accrual_max_daily)) return [];
     const runs = equalValueRuns(series, rows);
-    const required = requiredRunLengths(runs, rows.length, params, roundingRepeatChance(series, rows));
+    const model = chanceModel(series, rows, runs, context, params);
     const calendar = calendarOf(context);
-    return runs
-      .map((run, i) => ({ run, required: required[i] }))
-      .filter(({ run }) => run.length >= 2)
-      .map(({ run, required }) => ({ run, required, days: context.calendars.businessDayDistance(calendar, series.dates[run[0]], series.dates[run[run.length - 1]]) + 1 }))
-      .filter(({ days, required }) => days >= required)
-      .map(({ run, days, required }) => {
+    const judged: Array<{ run: number[]; days: number; chance: number; required: number }> = [];
+    let position = 0;
+    for (const run of runs) {
+      const at = position;
+      position += run.length;
+      if (run.length < 2) continue;
+      const days = context.calendars.businessDayDistance(calendar, series.dates[run[0]], series.dates[run[run.length - 1]]) + 1;
+      if (days < params.min_days) continue;
+      const { chance, required } = runChance(model, at, run.length, rows.length, params);
+      if (rows.length * chance > params.max_chance) continue;
+      judged.push({ run, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
+    }
+    return judged
+      .map(({ run, days, chance, required }) => {
         const first = run[0];
         const last = run[run.length - 1];
         return makeFinding({
@@ -54,6 +64,7 @@ export const staleValue: SeriesCheck<StaleParams> = {
             first: { date: isoDate(series.dates[first]), line: series.lines[first] },
             last: { date: isoDate(series.dates[last]), line: series.lines[last] },
             required_days: required,
+            chance_by_rounding: Number(chance.toPrecision(3)),
           },
           identity: [isoDate(series.dates[first])],
         });
@@ -71,59 +82,178 @@ function equalValueRuns(series: SeriesSlice, rows: number[]): number[][] {
   return runs;
 }
 
+/**
+ * The chance that the run's repeats all happen by rounding alone: the product of its steps'
+ * chances, each raised by the series' calibration factor (observed over expected repeats
+ * outside suspect runs and outside this run, with one pseudo-observation of each so a series
+ * with a single chance repeat is not over-corrected). Also the run length a run with this
+ * run's typical step chance would need (for the evidence).
+ */
+function runChance(model: ChanceModel | undefined, at: number, length: number, observations: number, params: StaleParams): { chance: number; required: number } {
+  if (!model) return { chance: 0, required: params.min_days };
+  let observed = model.observed;
+  let expected = model.expected;
+  for (let j = Math.max(0, at - 1); j < at + length - 1; j++) {
+    if (!model.counted[j]) continue;
+    expected -= model.chance[j];
+    if (j >= at) observed--;
+  }
+  const factor = Math.max(1, (observed + 1) / (expected + 1));
+  // The series' plain repeat rate is a floor: when its values sit on a grid the tick estimate
+  // does not see (a 2-decimal NAV rescaled by a distribution), the model's shape is wrong too.
+  let pairs = 0;
+  for (let j = 0; j < model.counted.length; j++) if (model.counted[j] && (j < at - 1 || j >= at + length - 1)) pairs++;
+  const plain = pairs > 0 ? observed / pairs : 0;
+  let logChance = 0;
+  for (let j = at; j < at + length - 1; j++) logChance += Math.log(Math.min(1, Math.max(plain, factor * model.chance[j])));
+  const perStep = Math.exp(logChance / (length - 1));
+  const required = perStep >= 1 ? Infinity : Math.ceil(Math.log(params.max_chance / observations) / Math.log(perStep)) + 1;
+  return { chance: Math.exp(logChance), required };
+}
+
 /** Runs of this many equal values or more are left out when measuring how often a series repeats by rounding. */
 const SUSPECT_RUN = 4;
 
+/** Observations on each side of a run whose values give the printed tick near it. */
+const TICK_WINDOW = 32;
+
 /**
- * For each run, the shortest stale run that is both long enough by rule and unlikely for this
- * series by chance. How often the series repeats by rounding is measured on every run except
- * suspect ones (four values or more) and except the run being judged, so a lone short stale
- * run does not excuse itself on a series that otherwise never repeats.
+ * The chance model of a series: for each step between consecutive observations, the chance
+ * that its printed NAV stays the same by rounding alone, given the level, the printed tick near
+ * it, the fund's typical residual move and what its benchmark did over the same dates; and a
+ * calibration factor from how often the series actually repeats compared with what the model
+ * expects (outside suspect runs), so a series that is stickier than its moves suggest asks for
+ * longer runs.
  */
-function requiredRunLengths(runs: number[][], observations: number, params: StaleParams, modelled: number): number[] {
-  const cutoff = Math.max(params.min_days, SUSPECT_RUN);
-  let repeats = 0;
-  let pairs = 0;
-  for (const run of runs) {
-    if (run.length >= cutoff) continue;
-    repeats += run.length - 1;
-    pairs += run.length;
+interface ChanceModel {
+  /** chance[k]: the step from rows[k] to rows[k + 1] repeats the value by rounding alone. */
+  readonly chance: Float64Array;
+  readonly observed: number;
+  readonly expected: number;
+  /** Steps counted in `observed` and `expected` (outside suspect runs). */
+  readonly counted: Uint8Array;
+}
+
+function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], context: SeriesContext, params: StaleParams): ChanceModel | undefined {
+  const n = rows.length;
+  if (n < 21) return undefined;
+  // The typical one-day move in log terms, of the series alone (for steps the benchmark
+  // cannot price) and of its residual against the benchmark.
+  const changes = new Float64Array(n - 1);
+  for (let k = 1; k < n; k++) changes[k - 1] = Math.log(series.values[rows[k]] / series.values[rows[k - 1]]);
+  const alone = robustScale(changes, 0);
+  const returns = seriesReturns(series, context);
+  const fitted = returns.hasBenchmark && returns.count >= 20 && returns.scale > 0;
+  const benchmark = context.benchmark;
+  const calendar = calendarOf(context);
+  const tickOf = blockTicks(series, rows);
+  const chance = new Float64Array(n - 1);
+  let cursor = 0;
+  for (let k = 0; k < n - 1; k++) {
+    const a = rows[k];
+    const b = rows[k + 1];
+    const dayA = series.dates[a];
+    const dayB = series.dates[b];
+    const span = dayB - dayA === 1 ? 1 : Math.max(1, context.calendars.businessDayDistance(calendar, dayA, dayB));
+    let mean = 0;
+    let sd = alone * Math.sqrt(span);
+    if (fitted && benchmark) {
+      // Positions of both dates in the benchmark (a merge: both are ascending).
+      const dates = benchmark.dates;
+      while (cursor < dates.length && dates[cursor] < dayA) cursor++;
+      const p = cursor < dates.length && dates[cursor] === dayA ? cursor : -1;
+      let next = cursor;
+      while (next < dates.length && dates[next] < dayB) next++;
+      const q = next < dates.length && dates[next] === dayB ? next : -1;
+      if (p >= 0 && q >= 0 && benchmark.values[p] > 0 && benchmark.values[q] > 0) {
+        mean = returns.beta * Math.log(benchmark.values[q] / benchmark.values[p]);
+        sd = returns.scale * Math.sqrt(Math.max(span, q - p));
+      }
+    }
+    const level = series.values[a];
+    chance[k] = sameBinChance(level * mean, level * sd, tickOf(k));
   }
-  return runs.map((run) => {
-    const own = run.length < cutoff;
-    const r = repeats - (own ? run.length - 1 : 0);
-    const n = pairs - (own ? run.length : 0);
-    const repeatChance = Math.max(n > 0 ? r / n : 0, modelled);
-    if (repeatChance <= 0) return params.min_days;
-    const repeatsNeeded = Math.log(params.max_chance / observations) / Math.log(repeatChance);
-    return Math.max(params.min_days, Math.ceil(repeatsNeeded) + 1);
-  });
+  const counted = new Uint8Array(n - 1);
+  let observed = 0;
+  let expected = 0;
+  let position = 0;
+  const cutoff = Math.max(params.min_days, SUSPECT_RUN);
+  for (const run of runs) {
+    // Steps inside the run and the step into it.
+    const suspect = run.length >= cutoff;
+    for (let j = position; j < position + run.length - 1; j++) {
+      if (suspect) continue;
+      counted[j] = 1;
+      observed++;
+      expected += chance[j];
+    }
+    const into = position + run.length - 1;
+    if (!suspect && into < n - 1) {
+      counted[into] = 1;
+      expected += chance[into];
+    }
+    position += run.length;
+  }
+  return { chance, observed, expected, counted };
 }
 
 /**
- * The chance that the printed NAV repeats by rounding alone, from the series' printed
- * precision (the most decimals any of its values shows, up to 8) and its typical daily move:
- * for a move of standard deviation s much larger than the tick, about tick / (s·√(2π)).
- * A 4-decimal fund at 100 moving 1 % a day repeats one day in 25,000; a 2-decimal fund at 50
- * moving 0.1 % a day, one day in 12.
+ * The chance that a level moving by D ~ N(mean, sd²) (in currency) prints the same value on a
+ * grid of `tick`: with the previous unrounded level anywhere in its bin, E[(1 − |D|/tick)+].
+ * In closed form [G(mean + tick) − 2G(mean) + G(mean − tick)] / tick with
+ * G(a) = a·Φ(a/sd) + sd·φ(a/sd); for sd well above the tick, tick·φ(mean/sd)/sd.
  */
-function roundingRepeatChance(series: SeriesSlice, rows: number[]): number {
-  let decimals = 0;
-  const changes = new Float64Array(Math.max(0, rows.length - 1));
-  // The precision from a sample of at most 64 values is plenty, and keeps this cheap.
-  const every = Math.max(1, Math.floor(rows.length / 64));
-  for (let k = 0; k < rows.length; k++) {
-    const value = series.values[rows[k]];
-    if (k % every === 0) {
-      let scaled = value * 10 ** decimals;
-      while (decimals < 8 && Math.abs(scaled - Math.round(scaled)) > 1e-6) scaled = value * 10 ** ++decimals;
-    }
-    if (k > 0) changes[k - 1] = value - series.values[rows[k - 1]];
+export function sameBinChance(mean: number, sd: number, tick: number): number {
+  if (!(sd > 0)) return Math.abs(mean) < tick ? 1 - Math.abs(mean) / tick : 0;
+  if (sd > 5 * tick) return Math.min(1, (tick * normalDensity(mean / sd)) / sd);
+  const g = (a: number) => a * normalCdf(a / sd) + sd * normalDensity(a / sd);
+  return Math.max(0, Math.min(1, (g(mean + tick) - 2 * g(mean) + g(mean - tick)) / tick));
+}
+
+function normalDensity(x: number): number {
+  return Math.exp(-0.5 * x * x) / Math.sqrt(2 * Math.PI);
+}
+
+/** Φ by Abramowitz and Stegun 7.1.26 (error below 1.5e-7). */
+function normalCdf(x: number): number {
+  const t = 1 / (1 + 0.3275911 * (Math.abs(x) / Math.SQRT2));
+  const erf = 1 - ((((1.061405429 * t - 1.453152027) * t + 1.421413741) * t - 0.284496736) * t + 0.254829592) * t * Math.exp(-(x * x) / 2);
+  return x >= 0 ? 0.5 * (1 + erf) : 0.5 * (1 - erf);
+}
+
+/**
+ * The printed tick near each step: the finest grid the values of its block of 2·TICK_WINDOW
+ * observations sit on (decimals shown, then the greatest common divisor of the values in
+ * units of the last decimal, so prices quoted in half-cents, or a 2-decimal NAV halved by a
+ * split, have a tick of 0.005). Blocks, not the whole series, because the printed precision
+ * can change within a history (a new administrator, a split printed to more decimals).
+ */
+function blockTicks(series: SeriesSlice, rows: number[]): (k: number) => number {
+  const size = 2 * TICK_WINDOW;
+  const ticks: number[] = [];
+  for (let start = 0; start < rows.length; start += size) {
+    const end = Math.min(rows.length, start + size);
+    // A short last block borrows the values before it.
+    ticks.push(printedTick(series, rows, Math.max(0, Math.min(start, end - size)), end));
   }
-  if (changes.length < 20) return 0;
-  const spread = robustScale(changes, 0);
-  const tick = 10 ** -decimals;
-  return spread > 0 ? Math.min(1, tick / (spread * Math.sqrt(2 * Math.PI))) : 1;
+  return (k: number) => ticks[Math.floor(k / size)];
+}
+
+function printedTick(series: SeriesSlice, rows: number[], from: number, to: number): number {
+  let decimals = 0;
+  for (let k = from; k < to; k++) {
+    const value = series.values[rows[k]];
+    let scaled = value * 10 ** decimals;
+    while (decimals < 8 && Math.abs(scaled - Math.round(scaled)) > 1e-6 * Math.max(1, scaled * 1e-9)) scaled = value * 10 ** ++decimals;
+  }
+  let divisor = 0;
+  for (let k = from; k < to && divisor !== 1; k++) divisor = gcd(divisor, Math.round(series.values[rows[k]] * 10 ** decimals));
+  return Math.max(1, divisor) * 10 ** -decimals;
+}
+
+function gcd(a: number, b: number): number {
+  while (b) [a, b] = [b, a % b];
+  return Math.abs(a);
 }
 
 function accruesSmoothly(series: SeriesSlice, rows: number[], maxDaily: number): boolean {
