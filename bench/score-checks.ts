@@ -13,15 +13,8 @@
  */
 import { generateUniverse } from '../fixtures/universe/generate.js';
 import { generateAltUniverse } from '../fixtures/universe-alt/generate.js';
-import { scoreFindings } from '../fixtures/universe/score.js';
+import { scoreFindings, type PooledScore as Pooled } from '../fixtures/universe/score.js';
 import { runChecks } from '../src/checks/run.js';
-
-interface Pooled {
-  planted: number;
-  found: number;
-  findings: number;
-  real: number;
-}
 
 const args = process.argv.slice(2);
 const option = (name: string): string | undefined => {

@@ -17,7 +17,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it, vi } from 'vitest';
 import { generateAltUniverse, type AltUniverse } from '../../fixtures/universe-alt/generate.js';
-import { scoreFindings } from '../../fixtures/universe/score.js';
+import { poolScores, scoreTable } from '../../fixtures/universe/score.js';
 import { formatIsoDate } from '../../src/calendar/days.js';
 import { runChecks } from '../../src/checks/run.js';
 import { CHECK_IDS } from '../../src/checks/registry.js';
@@ -35,35 +35,10 @@ const runs: Array<{ universe: AltUniverse; findings: Finding[] }> = SEEDS.map((s
   return { universe, findings: runChecks(universe) };
 });
 
-interface Pooled {
-  planted: number;
-  found: number;
-  findings: number;
-  real: number;
-}
-
-function pooledScores(): Map<string, Pooled> {
-  const pooled = new Map<string, Pooled>();
-  for (const { universe, findings } of runs) {
-    for (const score of scoreFindings(findings, universe).values()) {
-      const total = pooled.get(score.check) ?? { planted: 0, found: 0, findings: 0, real: 0 };
-      total.planted += score.planted;
-      total.found += score.found;
-      total.findings += score.findings;
-      total.real += score.real;
-      pooled.set(score.check, total);
-    }
-  }
-  return pooled;
-}
 
 describe(`recall and precision on the held-out-style universe (seeds ${SEEDS.join(', ')})`, () => {
-  const pooled = pooledScores();
-  console.table(
-    Object.fromEntries(
-      [...pooled].map(([check, p]) => [check, { planted: p.planted, found: p.found, recall: +(p.found / p.planted).toFixed(3), findings: p.findings, precision: +(p.real / p.findings).toFixed(3) }]),
-    ),
-  );
+  const pooled = poolScores(runs);
+  console.table(scoreTable(pooled));
 
   it('plants every kind of fault the catalogue looks for, at least 20 of each', () => {
     for (const id of FEED_CHECK_IDS) expect(pooled.get(id)?.planted ?? 0, id).toBeGreaterThanOrEqual(20);

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { generateUniverse, type Universe } from '../../fixtures/universe/generate.js';
-import { scoreFindings } from '../../fixtures/universe/score.js';
+import { poolScores, scoreTable } from '../../fixtures/universe/score.js';
 import { runChecks } from '../../src/checks/run.js';
 import { CHECK_IDS } from '../../src/checks/registry.js';
 import type { Finding } from '../../src/findings.js';
@@ -10,40 +10,15 @@ const FEED_CHECK_IDS = CHECK_IDS.filter((id) => id !== 'vendor_inconsistent');
 
 const SEEDS = [101, 202, 303, 404, 505];
 
-interface Pooled {
-  planted: number;
-  found: number;
-  findings: number;
-  real: number;
-}
-
 const runs: Array<{ universe: Universe; findings: Finding[] }> = SEEDS.map((seed) => {
   const universe = generateUniverse({ seed });
   return { universe, findings: runChecks(universe) };
 });
 
-function pooledScores(): Map<string, Pooled> {
-  const pooled = new Map<string, Pooled>();
-  for (const { universe, findings } of runs) {
-    for (const score of scoreFindings(findings, universe).values()) {
-      const total = pooled.get(score.check) ?? { planted: 0, found: 0, findings: 0, real: 0 };
-      total.planted += score.planted;
-      total.found += score.found;
-      total.findings += score.findings;
-      total.real += score.real;
-      pooled.set(score.check, total);
-    }
-  }
-  return pooled;
-}
 
 describe(`recall and precision on invented universes (seeds ${SEEDS.join(', ')})`, () => {
-  const pooled = pooledScores();
-  console.table(
-    Object.fromEntries(
-      [...pooled].map(([check, p]) => [check, { planted: p.planted, found: p.found, recall: +(p.found / p.planted).toFixed(3), findings: p.findings, precision: +(p.real / p.findings).toFixed(3) }]),
-    ),
-  );
+  const pooled = poolScores(runs);
+  console.table(scoreTable(pooled));
 
   it('plants every kind of fault the catalogue looks for', () => {
     for (const id of FEED_CHECK_IDS) expect(pooled.get(id)?.planted ?? 0, id).toBeGreaterThanOrEqual(20);
