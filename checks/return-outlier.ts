@@ -1,5 +1,6 @@
 import type { SeriesCheck } from '../src/checks/check.js';
-import { endsOnConflict, ordinaryExtreme, tailBar, seriesReturns, sharedWithMarket, type SeriesReturns } from '../src/checks/returns.js';
+import type { SeriesSlice } from '../src/series/frame.js';
+import { bridgedStep, endsOnConflict, ordinaryExtreme, tailBar, seriesReturns, sharedWithMarket, type Bridge, type SeriesReturns } from '../src/checks/returns.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
 import { inShiftedSpan } from './date-shift.js';
 import { SPIKE_DEFAULTS, isSpikeReversal } from './spike-reversal.js';
@@ -21,7 +22,11 @@ interface OutlierParams {
  * to `tail_multiple` × the series' own 99th-percentile |z| when that is higher: a series whose
  * ordinary days are wild needs a wilder day to stand out, and to the series' extrapolated tail
  * (`tailBar`): the |z| its ordinary days would reach with chance `tail_chance` over its whole
- * history. Steps touching a date with conflicting duplicate rows, and moves some benchmark in
+ * history, estimated without the day being judged (leave-one-out), so a fault never widens
+ * the tail that judges it. A day the benchmark cannot price (it has no level on one of the two
+ * dates) must also clear the bar over the shortest surrounding window the benchmark does price
+ * (at most 5 steps each way): a fund day the benchmark explains over that bridged window is
+ * not an outlier. Steps touching a date with conflicting duplicate rows, and moves some benchmark in
  * the feed made too (a market-wide day), are left alone. Days that
  * are split-like jumps or spike reversals (judged with those checks' defaults) are left to
  * those checks, and so are days inside a date-shifted span. Without a benchmark the series is judged against its own typical move.
@@ -35,7 +40,10 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
     const returns = seriesReturns(series, context);
     const findings = [];
     for (let k = 0; k < returns.count; k++) {
-      if (!isOutlier(returns, k, params) || explainedElsewhere(returns, k)) continue;
+      if (!clearsBar(returns, returns.z[k], returns.residual[k], k, params)) continue;
+      const bridge = bridgedStep(returns, context.benchmark, k);
+      if (bridge && !clearsBar(returns, bridge.z, bridge.residual, k, params)) continue;
+      if (explainedElsewhere(returns, k)) continue;
       if (inShiftedSpan(series, returns, context.benchmark, k)) continue;
       if (endsOnConflict(series, returns, k) || sharedWithMarket(series, returns, context.benchmarks, [k])) continue;
       const before = returns.from[k];
@@ -61,6 +69,7 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
             residual: round(returns.residual[k], 6),
             robust_scale: round(returns.scale, 6),
             robust_z: round(returns.z[k], 2),
+            ...(bridge ? { bridged: bridgeEvidence(series, returns, bridge) } : {}),
           },
           identity: [isoDate(series.dates[day])],
         }),
@@ -70,9 +79,24 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
   },
 };
 
-function isOutlier(returns: SeriesReturns, k: number, params: OutlierParams): boolean {
-  if (Math.abs(returns.z[k]) < params.threshold || Math.abs(returns.residual[k]) < params.min_move) return false;
-  return Math.abs(returns.z[k]) >= params.tail_multiple * ordinaryExtreme(returns) && Math.abs(returns.z[k]) >= tailBar(returns, params.tail_chance);
+/**
+ * True when a move of robust z `z` and residual `residual`, judged for step `k`, clears every
+ * bar: the floor, `tail_multiple` × the 99th-percentile |z|, `min_move`, and the extrapolated
+ * tail of the series' other days (step `k` left out of the estimate).
+ */
+function clearsBar(returns: SeriesReturns, z: number, residual: number, k: number, params: OutlierParams): boolean {
+  if (!(Math.abs(z) >= params.threshold) || Math.abs(residual) < params.min_move) return false;
+  return Math.abs(z) >= params.tail_multiple * ordinaryExtreme(returns) && Math.abs(z) >= tailBar(returns, params.tail_chance, k);
+}
+
+function bridgeEvidence(series: SeriesSlice, returns: SeriesReturns, bridge: Bridge) {
+  return {
+    from: isoDate(series.dates[returns.from[bridge.first]]),
+    to: isoDate(series.dates[returns.to[bridge.last]]),
+    benchmark_return: round(Math.expm1(bridge.bench), 6),
+    residual: round(bridge.residual, 6),
+    robust_z: round(bridge.z, 2),
+  };
 }
 
 function explainedElsewhere(returns: SeriesReturns, k: number): boolean {

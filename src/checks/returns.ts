@@ -37,6 +37,8 @@ export interface SeriesReturns {
   /** residual / (scale·√span): the step in robust standard units of this series. */
   readonly z: Float64Array;
   readonly beta: number;
+  /** Per-business-day drift of the fit against the benchmark (of the series alone without one). */
+  readonly intercept: number;
   /** Robust standard deviation of a one-business-day residual. */
   readonly scale: number;
   readonly hasBenchmark: boolean;
@@ -264,7 +266,22 @@ function conflictAt(series: SeriesSlice, row: number): boolean {
   return false;
 }
 
-const tailCache = new WeakMap<SeriesReturns, { p99: number; alpha: number; n: number }>();
+const magnitudeCache = new WeakMap<SeriesReturns, Float64Array>();
+
+/** |z| of every step, ascending (cached per series). */
+function sortedMagnitudes(returns: SeriesReturns): Float64Array {
+  let magnitudes = magnitudeCache.get(returns);
+  if (magnitudes === undefined) magnitudeCache.set(returns, (magnitudes = Float64Array.from(returns.z, Math.abs).filter(Number.isFinite).sort()));
+  return magnitudes;
+}
+
+interface Tail {
+  p99: number;
+  alpha: number;
+  n: number;
+}
+
+const tailCache = new WeakMap<SeriesReturns, Tail>();
 
 /**
  * The |z| that the series' own ordinary days would exceed with a total chance of `chance`
@@ -274,25 +291,91 @@ const tailCache = new WeakMap<SeriesReturns, { p99: number; alpha: number; n: nu
  * below the fixed floors; Student-t(4–5) residuals give α near 4 and a bar of 15–20 robust
  * standard deviations, where their genuine extreme days end. Steps beyond 3 × the gross-error
  * bar are candidate faults, not the tail being measured, and are left out of the estimate.
+ *
+ * With `leaveOut`, the tail is estimated without that step, as an externally studentised
+ * residual is: a step is judged against the behaviour of the other days, so a fault inside
+ * the tail region cannot widen the bar that judges it.
  */
-export function tailBar(returns: SeriesReturns, chance: number): number {
-  let tail = tailCache.get(returns);
-  if (tail === undefined) {
-    const magnitudes = Float64Array.from(returns.z, Math.abs).filter(Number.isFinite).sort();
-    const n = magnitudes.length;
-    tail = { p99: 0, alpha: Infinity, n };
-    if (n >= 100) {
-      const k = Math.floor(0.05 * n);
-      const threshold = magnitudes[n - k - 1];
-      let sum = 0, used = 0;
-      for (let i = n - k; i < n; i++) {
-        if (magnitudes[i] >= 3 * GROSS_Z) continue;
-        sum += Math.log(magnitudes[i] / threshold);
-        used++;
-      }
-      tail = { p99: magnitudes[Math.floor(0.99 * (n - 1))], alpha: used >= 10 && sum > 0 ? used / sum : Infinity, n };
-    }
-    tailCache.set(returns, tail);
+export function tailBar(returns: SeriesReturns, chance: number, leaveOut?: number): number {
+  const magnitudes = sortedMagnitudes(returns);
+  let tail: Tail;
+  if (leaveOut !== undefined && Number.isFinite(returns.z[leaveOut])) {
+    const at = lowerBound(magnitudes, Math.abs(returns.z[leaveOut]));
+    const others = new Float64Array(magnitudes.length - 1);
+    others.set(magnitudes.subarray(0, at));
+    others.set(magnitudes.subarray(at + 1), at);
+    tail = hillTail(others);
+  } else {
+    const cached = tailCache.get(returns);
+    if (cached === undefined) tailCache.set(returns, (tail = hillTail(magnitudes)));
+    else tail = cached;
   }
   return Number.isFinite(tail.alpha) ? tail.p99 * Math.pow(tail.n / (100 * chance), 1 / tail.alpha) : 0;
+}
+
+/** Hill estimate of the tail of ascending |z| values (see `tailBar`). */
+function hillTail(magnitudes: Float64Array): Tail {
+  const n = magnitudes.length;
+  if (n < 100) return { p99: 0, alpha: Infinity, n };
+  const k = Math.floor(0.05 * n);
+  const threshold = magnitudes[n - k - 1];
+  let sum = 0, used = 0;
+  for (let i = n - k; i < n; i++) {
+    if (magnitudes[i] >= 3 * GROSS_Z) continue;
+    sum += Math.log(magnitudes[i] / threshold);
+    used++;
+  }
+  return { p99: magnitudes[Math.floor(0.99 * (n - 1))], alpha: used >= 10 && sum > 0 ? used / sum : Infinity, n };
+}
+
+/** First index of an ascending array whose value is ≥ `x`. */
+function lowerBound(values: Float64Array, x: number): number {
+  let lo = 0, hi = values.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (values[mid] < x) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/** A run of steps judged as one move against the benchmark (see `bridgedStep`). */
+export interface Bridge {
+  /** First and last step of the window. */
+  readonly first: number;
+  readonly last: number;
+  /** The benchmark's log return over the window's two end dates. */
+  readonly bench: number;
+  /** The fund's residual over the window and its robust z. */
+  readonly residual: number;
+  readonly z: number;
+}
+
+/**
+ * For a step its benchmark cannot price (the benchmark has no level on one of its two dates,
+ * typically a benchmark holiday), the shortest window of steps around it whose end dates the
+ * benchmark does price, reaching at most `maxSteps` steps back and forward, with the fund's
+ * residual over the whole window against beta × the benchmark's move over it. Null when the
+ * step is priced, the series has no benchmark, or no such window exists. The two ends are
+ * independent (the back end needs a priced start date, the forward end a priced end date), so
+ * the shortest window is the nearest priced date on each side.
+ */
+export function bridgedStep(returns: SeriesReturns, benchmark: SeriesSlice | undefined, k: number, maxSteps = 5): Bridge | null {
+  if (!benchmark || !returns.hasBenchmark || Number.isFinite(returns.bench[k])) return null;
+  let first = k;
+  while (first > k - maxSteps && first > 0 && returns.benchFrom[first] < 0) first--;
+  let last = k;
+  while (last < k + maxSteps && last < returns.count - 1 && returns.benchTo[last] < 0) last++;
+  const p = returns.benchFrom[first];
+  const q = returns.benchTo[last];
+  if (p < 0 || q <= p) return null;
+  const bench = Math.log(benchmark.values[q] / benchmark.values[p]);
+  let fund = 0, span = 0;
+  for (let j = first; j <= last; j++) {
+    fund += returns.fund[j];
+    span += returns.span[j];
+  }
+  span = Math.max(span, q - p);
+  const residual = fund - returns.intercept * span - returns.beta * bench;
+  return { first, last, bench, residual, z: residual / (returns.scale * Math.sqrt(span)) };
 }
