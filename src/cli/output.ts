@@ -1,8 +1,8 @@
-import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
-import { dirname, extname, join, basename } from 'node:path';
+import { mkdirSync, rmSync } from 'node:fs';
+import { basename, dirname, extname, join } from 'node:path';
 import type { RejectedRow } from '../ingest/records.js';
-import { renderCsv } from '../report/render.js';
-import { tableView } from '../report/view.js';
+import { renameDurably, writeFileDurably } from '../store/durable-files.js';
+import { rejectedRowsToCsv } from '../store/rejected-csv.js';
 
 /** Writes a report to --out (atomically: temporary file, then rename) or to standard output. */
 export function emit(text: string, out: string | undefined): void {
@@ -13,11 +13,14 @@ export function emit(text: string, out: string | undefined): void {
   writeFileAtomically(out, text);
 }
 
+/** The store's durable steps for one file: write a temporary sibling, flush it, rename it into place. */
 export function writeFileAtomically(path: string, text: string): void {
-  mkdirSync(dirname(path), { recursive: true });
-  const temporary = join(dirname(path), `.${basename(path)}.${process.pid}.tmp`);
-  writeFileSync(temporary, text);
-  renameSync(temporary, path);
+  const directory = dirname(path);
+  mkdirSync(directory, { recursive: true });
+  const temporary = join(directory, `.${basename(path)}.${process.pid}.tmp`);
+  rmSync(temporary, { force: true }); // a leftover of an earlier run killed with this pid
+  writeFileDurably(temporary, text);
+  renameDurably(temporary, path, directory);
 }
 
 /** The quarantine file beside a report: `report.json` → `report.quarantine.csv`. */
@@ -28,6 +31,5 @@ export function quarantinePathFor(reportPath: string): string {
 }
 
 export function writeQuarantine(path: string, rejected: readonly RejectedRow[]): void {
-  const rows = rejected.map((row) => [row.file, row.line, row.reason, row.raw]);
-  writeFileAtomically(path, renderCsv(tableView('Rejected rows', [], ['file', 'line', 'reason', 'raw'], rows, '')));
+  writeFileAtomically(path, rejectedRowsToCsv(rejected));
 }

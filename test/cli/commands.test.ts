@@ -75,7 +75,7 @@ describe('check', () => {
     expect(unparseable).toHaveLength(2);
     expect(answer.summary.by_check.unparseable_row).toBe(2);
     const quarantine = readFileSync(join(dir, 'report.quarantine.csv'), 'utf8').trim().split('\n');
-    expect(quarantine[0]).toBe('file,line,reason,raw');
+    expect(quarantine[0]).toBe('file,line,raw,reason'); // the same form as a snapshot's rejected.csv
     expect(quarantine).toHaveLength(3);
     expect(quarantine[1]).toContain(',5,');
     expect(quarantine[2]).toContain(',6,');
