@@ -3,7 +3,7 @@ import { formatIsoDate, parseIsoDate, todayEpochDay } from '../calendar/days.js'
 import { isSeverity, type Severity } from '../findings.js';
 import { ConfigError } from '../ingest/errors.js';
 import { OUTPUT_FORMATS, type OutputFormat } from '../report/render.js';
-import { loadRunConfig } from '../config/run-config.js';
+import { loadRunConfig, type RunConfig } from '../config/run-config.js';
 import type { LoadOptions } from '../ingest/feed.js';
 
 /** Options several commands share, with one parser each so every command reads them alike. */
@@ -21,9 +21,11 @@ export const profilesOption = () =>
 
 /** Feed profiles and weekend from a run configuration, for commands given files one by one. */
 export function loadOptionsFrom(configPath: string | undefined): LoadOptions {
-  if (configPath === undefined) return {};
-  const config = loadRunConfig(configPath);
-  return { profiles: config.profiles, weekendDays: config.weekend };
+  return loadOptionsOf(configPath === undefined ? undefined : loadRunConfig(configPath));
+}
+
+export function loadOptionsOf(config: RunConfig | undefined): LoadOptions {
+  return config ? { profiles: config.profiles, weekendDays: config.weekend } : {};
 }
 
 export function chosenFormat(format: string | undefined): OutputFormat {

@@ -2,11 +2,11 @@ import { Command } from 'commander';
 import { formatIsoDate } from '../../calendar/days.js';
 import { loadRunConfig } from '../../config/run-config.js';
 import { ConfigError } from '../../ingest/errors.js';
-import { loadFeed, type FeedPaths, type LoadOptions } from '../../ingest/feed.js';
+import { loadFeed, type FeedPaths } from '../../ingest/feed.js';
 import { render } from '../../report/render.js';
 import { tableView } from '../../report/view.js';
 import { storeSnapshot } from '../snapshots.js';
-import { asOfOption, chosenFormat, formatOption, outOption, parseAsOf } from '../options.js';
+import { asOfOption, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf } from '../options.js';
 import { emit } from '../output.js';
 
 interface IngestOptions {
@@ -48,11 +48,9 @@ export function ingestCommand(): Command {
 
 async function runIngest(options: IngestOptions): Promise<number> {
   const config = options.config === undefined ? undefined : loadRunConfig(options.config);
-  const paths: FeedPaths | undefined = config?.paths ?? (options.nav ? { ...options, nav: options.nav } : undefined);
-  if (!paths) throw new ConfigError('ingest needs --nav FILE (and any other files of the day) or --config FILE; see navassay ingest --help.');
+  const paths = config?.paths ?? pathsFromOptions(options);
   const asOf = parseAsOf(options.asOf ?? config?.as_of);
-  const loadOptions: LoadOptions = config ? { profiles: config.profiles, weekendDays: config.weekend } : {};
-  const feed = await loadFeed(pickFeedPaths(paths), loadOptions);
+  const feed = await loadFeed(paths, loadOptionsOf(config));
   const store = config?.store ?? options.store;
   const feedName = config?.feed ?? options.feed;
   const snapshot = storeSnapshot({ store, feed: feedName }, asOf, feed);
@@ -74,7 +72,8 @@ async function runIngest(options: IngestOptions): Promise<number> {
   return 0;
 }
 
-function pickFeedPaths(paths: FeedPaths): FeedPaths {
-  const { nav, benchmarks, master, rates, holidays, actions, vendor } = paths;
+function pathsFromOptions(options: IngestOptions): FeedPaths {
+  const { nav, benchmarks, master, rates, holidays, actions, vendor } = options;
+  if (nav === undefined) throw new ConfigError('ingest needs --nav FILE (and any other files of the day) or --config FILE; see navassay ingest --help.');
   return { nav, benchmarks, master, rates, holidays, actions, vendor };
 }

@@ -11,7 +11,7 @@ import { metricsView } from '../../report/metrics-answer.js';
 import { render, type OutputFormat } from '../../report/render.js';
 import { adjustForCorporateActions } from '../../series/adjust.js';
 import type { SeriesFrame } from '../../series/frame.js';
-import { asOfOption, chosenFormat, failOnOption, formatOption, outOption, parseAsOf, parseFailOn } from '../options.js';
+import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn } from '../options.js';
 import { emit, writeFileAtomically, writeQuarantine } from '../output.js';
 import { previousNavFromStore, storeSnapshot } from '../snapshots.js';
 
@@ -59,7 +59,7 @@ export async function runDailyJob(configPath: string, options: RunOptions): Prom
 export async function executeRun(configPath: string, options: RunOptions): Promise<DailyRun> {
   const config = loadRunConfig(configPath);
   const asOf = parseAsOf(options.asOf ?? config.as_of);
-  const feed = await loadFeed(config.paths, { profiles: config.profiles, weekendDays: config.weekend });
+  const feed = await loadFeed(config.paths, loadOptionsOf(config));
   const previous = await previousNav(config, asOf);
   const findings: Finding[] = runChecks({ ...feed, previous, asOf }, config.checks);
   const check = checkAnswer(asOf, feed.rows, findings);
