@@ -89,9 +89,12 @@ export function trackingPair(seed: number, count = 300, noise = 0.001) {
   return { dates, bench, fund };
 }
 
-/** Slices for a fund and its benchmark, plus a context that links them. */
-export function linked(dates: number[], fund: number[], bench: number[], overrides: Partial<SeriesContext> = {}) {
-  const benchmarks = frameOfArrays([{ id: 'BM1', dates, values: bench }]);
+/**
+ * Slices for a fund and its benchmark, plus a context that links them. The benchmark shares the
+ * fund's dates unless `benchDates` gives its own (a benchmark holiday, say).
+ */
+export function linked(dates: number[], fund: number[], bench: number[], overrides: Partial<SeriesContext> = {}, benchDates: number[] = dates) {
+  const benchmarks = frameOfArrays([{ id: 'BM1', dates: benchDates, values: bench }]);
   const series = seriesAt(frameOfArrays([{ id: 'F1', dates, values: fund }]), 0);
   const context = contextFor({
     asOf: dates[dates.length - 1],

@@ -1,8 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { returnOutlier } from '../../checks/return-outlier.js';
 import { seriesReturns, tailBar } from '../../src/checks/returns.js';
-import { seriesAt } from '../../src/series/frame.js';
-import { contextFor, frameOfArrays, iso, linked, master, weekdays } from './helpers.js';
+import { iso, linked, weekdays } from './helpers.js';
 
 /**
  * Hand-made series (no random numbers): the benchmark moves 0.8 % × sin(1.7 i) a day, and the
@@ -65,14 +64,7 @@ describe('return_outlier: a benchmark holiday is bridged', () => {
     const { dates, fund, bench } = handMade({ at: AT, fund: fundMove - benchMove, bench: benchMove });
     const benchDates = dates.filter((_, i) => i !== AT);
     const benchValues = bench.filter((_, i) => i !== AT);
-    const benchmarks = frameOfArrays([{ id: 'BM1', dates: benchDates, values: benchValues }]);
-    const series = seriesAt(frameOfArrays([{ id: 'F1', dates, values: fund }]), 0);
-    const context = contextFor({
-      asOf: dates[dates.length - 1],
-      master: master('F1', { benchmark_id: 'BM1' }),
-      benchmark: seriesAt(benchmarks, 0),
-      benchmarks,
-    });
+    const { series, context } = linked(dates, fund, benchValues, {}, benchDates);
     return { dates, series, context };
   }
 
