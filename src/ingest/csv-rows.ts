@@ -99,7 +99,8 @@ export class CsvRowScanner {
 
   /** True for a line with nothing on it (not a data row). */
   isBlank(): boolean {
-    if (this.error !== null || this.fieldCount !== 1) return false;
+    // Spaces and tabs only, whatever the delimiter: a tab-delimited line of tabs holds no value either.
+    if (this.error !== null) return false;
     for (let i = this.rowStart; i < this.rowEnd; i++) if (this.bytes[i] !== 32 && this.bytes[i] !== 9) return false;
     return true;
   }

@@ -112,6 +112,13 @@ describe('malformed rows are rejected one by one, with line, raw text and reason
     expect(result.rejected[0].line).toBe(7);
   });
 
+  it('in a tab-delimited file too, a line of only spaces and tabs is blank (a fast-check counterexample)', () => {
+    const text = 'series_id\tdate\tnav\r\nNVA0001\t2026-01-02\t1\r\n\t\r\n \t \t\r\nNVA0001\t2026-01-05\tx\r\n';
+    const result = readText(text, 'nav', { delimiter: '\\t' });
+    expect(result.rows).toEqual({ read: 2, accepted: 1, rejected: 1 });
+    expect(result.rejected[0].line).toBe(5);
+  });
+
   it('a line of empty fields is a data row, rejected', () => {
     const { rejected } = rejectedOf(HEADER + ',,\n""\n');
     expect(rejected).toEqual([
