@@ -2,7 +2,7 @@ import { formatIsoDate } from '../calendar/days.js';
 import type { SeriesMasterRecord } from '../ingest/records.js';
 import { findSeries, type SeriesFrame } from '../series/frame.js';
 import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
-import { annualizationOf, describeMethodology, type Methodology } from './methodology.js';
+import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { sampleWindow, type BenchmarkSource, type Outcome, type RiskFreeSource, type WindowSample } from './sampling.js';
 import { windowStatistics, type WindowStatistics } from './statistics.js';
 import { parseWindow, windowMonths } from './windows.js';
@@ -81,10 +81,15 @@ function metricRow(series_id: string, window: string, metric: MetricId, figure: 
 /** A metric from a window's statistics (or the window's own reason), as the answer reports it. */
 function figureOf(metric: MetricId, stats: Outcome<WindowStatistics>, methodology: Methodology): MetricValue {
   if (!stats.ok) return { value: null, observations: 0, reason: stats.reason };
-  const observations = metric === 'max_drawdown' ? stats.value.navObservations : stats.value.n;
+  const observations = metric === 'max_drawdown' ? drawdownObservations(stats.value, methodology) : stats.value.n;
   const outcome = metricFromStatistics(metric, stats.value, methodology);
   if (outcome.value === null) return { value: null, observations, reason: outcome.reason };
   return { value: outcome.value, observations };
+}
+
+/** The values max_drawdown runs over: every NAV observation, or the n + 1 sample points. */
+function drawdownObservations(stats: WindowStatistics, methodology: Methodology): number {
+  return methodology.drawdown === 'sampled' ? stats.n + 1 : stats.navObservations;
 }
 
 /**
@@ -145,7 +150,7 @@ export class MetricCalculator {
       span: windowMonths(request.asOf, months, methodology.window_end),
       asOf: request.asOf,
       frequency: methodology.frequency,
-      annualization: annualizationOf(methodology),
+      ratePerPeriod: (annualRate) => perPeriodRate(annualRate, methodology),
     });
   }
 
@@ -180,9 +185,12 @@ export class MetricCalculator {
     return rates && rates.dates.length > 0 ? { id, rates } : { missing: `risk-free rate ${id} has no observations` };
   }
 
-  /** Everything that changes a window's sampling; the other dimensions are arithmetic on its statistics. */
+  /**
+   * Everything that changes a window's sampling or its risk-free returns (the dimensions marked
+   * `resamples` in METHODOLOGY_DIMENSIONS); the other dimensions are arithmetic on its statistics.
+   */
   private cacheKey(request: Omit<MetricRequest, 'metric'>, m: Methodology): string {
-    const sampling = [m.frequency, m.window_end, m.benchmark ?? '', riskFreeKey(m), annualizationOf(m)];
+    const sampling = [m.frequency, m.window_end, m.benchmark ?? '', riskFreeKey(m), ratePeriodsOf(m), m.rate_conversion];
     return [request.seriesId, request.asOf, request.window, ...sampling].join('|');
   }
 }

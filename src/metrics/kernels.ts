@@ -1,4 +1,4 @@
-import { annualizationOf, type Methodology } from './methodology.js';
+import { annualizationOf, perPeriodRate, type Methodology } from './methodology.js';
 import {
   correlation,
   divisor,
@@ -11,7 +11,7 @@ import {
   type PairMoments,
   type TargetSums,
 } from './moments.js';
-import type { BasisStatistics, WindowStatistics } from './statistics.js';
+import { fixedTargetSums, type BasisStatistics, type WindowStatistics } from './statistics.js';
 import { METRIC_IDS, type MetricId } from '../ingest/schema.js';
 
 /**
@@ -98,7 +98,7 @@ export function needsRiskFree(metric: MetricId, methodology: Methodology): boole
 type Formula = (stats: WindowStatistics, methodology: Methodology) => number;
 
 const FORMULAS: Readonly<Record<MetricId, Formula>> = {
-  return_annualized: (stats, m) => annualizedGrowth(stats.growth.fund, stats.n, annualizationOf(m)),
+  return_annualized: (stats, m) => annualizedReturn(stats.growth.fund, stats, m),
   std_dev: (stats, m) => annualizedDeviation(fundVariance(basisOf(stats, m).raw, stats.n, m), m),
   downside_deviation: (stats, m) => downsideDeviation(stats, m),
   beta: (stats, m) => beta(stats, m),
@@ -109,8 +109,7 @@ const FORMULAS: Readonly<Record<MetricId, Formula>> = {
   tracking_error: (stats, m) => trackingError(stats, m),
   information_ratio: (stats, m) => informationRatio(stats, m),
   treynor: (stats, m) => treynor(stats, m),
-  max_drawdown: (stats) =>
-    Number.isNaN(stats.maxDrawdown) ? refuse('a NAV in the window is not a positive number') : stats.maxDrawdown,
+  max_drawdown: (stats, m) => maxDrawdownOf(stats, m),
 };
 
 // ---------------------------------------------------------------------------------------------
@@ -132,6 +131,25 @@ export function annualizedGrowth(logGrowth: number, periods: number, annualizati
   return Math.expm1((logGrowth * annualization) / periods);
 }
 
+/** DAYS_A_YEAR: the mean Gregorian calendar year (common practice for calendar-time annualising). */
+export const DAYS_A_YEAR = 365.25;
+
+/**
+ * An annualised geometric return from Σ ln(1 + r): over the window's periods,
+ * (Π(1 + r))^(A/n) − 1, or with `return_annualization: calendar_days` over its calendar days,
+ * (Π(1 + r))^(365.25/days) − 1.
+ */
+export function annualizedReturn(logGrowth: number, stats: WindowStatistics, m: Methodology): number {
+  if (m.return_annualization === 'periods') return annualizedGrowth(logGrowth, stats.n, annualizationOf(m));
+  if (stats.days < 1) refuse('the window spans no calendar days');
+  return Math.expm1((logGrowth * DAYS_A_YEAR) / stats.days);
+}
+
+/** A ratio of per-period figures as the methodology reports it: × √A annualised, or as it is per period. */
+function scaledRatio(perPeriod: number, m: Methodology): number {
+  return m.ratio_scale === 'per_period' ? perPeriod : perPeriod * Math.sqrt(annualizationOf(m));
+}
+
 function annualizedDeviation(perPeriodVariance: number, m: Methodology): number {
   return Math.sqrt(perPeriodVariance * annualizationOf(m));
 }
@@ -145,29 +163,48 @@ function fundVariance(pair: PairMoments, n: number, m: Methodology): number {
   return varianceY(pair, m.sd_denominator);
 }
 
-function targetSums(basis: BasisStatistics, m: Methodology): TargetSums {
-  return m.mar === 'risk_free' ? basis.belowRiskFree : basis.belowZero;
+/** The sums about the methodology's minimum acceptable return, in its return basis. */
+function targetSums(stats: WindowStatistics, m: Methodology): TargetSums {
+  if (m.mar === 'risk_free') return basisOf(stats, m).belowRiskFree;
+  if (m.mar === 'zero') return basisOf(stats, m).belowZero;
+  return fixedTargetSums(stats, m.return_type, perPeriodRate(m.mar, m));
 }
 
-/** Mean of r − MAR per period: the excess mean for a risk-free MAR, the plain mean for zero. */
-function meanOverTarget(basis: BasisStatistics, m: Methodology): number {
-  return m.mar === 'risk_free' ? basis.excess.meanY : basis.raw.meanY;
+/**
+ * Mean of r − MAR per period: the excess mean for a risk-free MAR, the plain mean for zero, the
+ * plain mean less the per-period rate for a fixed annual MAR.
+ */
+function meanOverTarget(stats: WindowStatistics, m: Methodology): number {
+  const basis = basisOf(stats, m);
+  if (m.mar === 'risk_free') return basis.excess.meanY;
+  if (m.mar === 'zero') return basis.raw.meanY;
+  return basis.raw.meanY - perPeriodRate(m.mar, m);
 }
 
 // ---------------------------------------------------------------------------------------------
 // Metrics
 
-function downsideDeviation(stats: WindowStatistics, m: Methodology): number {
+/** Σ min(r − MAR, 0)² / D: the downside variance of one period. */
+function downsideVariance(stats: WindowStatistics, m: Methodology): number {
   if (stats.n < 1) refuse('the window has no periods');
-  const sums = targetSums(basisOf(stats, m), m);
+  const sums = targetSums(stats, m);
   const count = m.dd_denominator === 'full' ? stats.n : Math.max(sums.countBelow, 1);
-  return annualizedDeviation(sums.sumSqBelow / count, m);
+  return sums.sumSqBelow / count;
+}
+
+function downsideDeviation(stats: WindowStatistics, m: Methodology): number {
+  return annualizedDeviation(downsideVariance(stats, m), m);
 }
 
 function sortino(stats: WindowStatistics, m: Methodology): number {
-  const deviation = downsideDeviation(stats, m);
-  if (deviation === 0) refuse('no period fell below the minimum acceptable return, so the downside deviation is zero');
-  return (annualizationOf(m) * meanOverTarget(basisOf(stats, m), m)) / deviation;
+  const perPeriodDeviation = Math.sqrt(downsideVariance(stats, m));
+  if (perPeriodDeviation === 0) refuse('no period fell below the minimum acceptable return, so the downside deviation is zero');
+  return scaledRatio(meanOverTarget(stats, m) / perPeriodDeviation, m);
+}
+
+function maxDrawdownOf(stats: WindowStatistics, m: Methodology): number {
+  if (m.drawdown === 'sampled') return stats.sampledMaxDrawdown;
+  return Number.isNaN(stats.maxDrawdown) ? refuse('a NAV in the window is not a positive number') : stats.maxDrawdown;
 }
 
 /** The regression's pair, once it is known a slope can be fitted to it. */
@@ -185,13 +222,18 @@ function beta(stats: WindowStatistics, m: Methodology): number {
 function alpha(stats: WindowStatistics, m: Methodology): number {
   const A = annualizationOf(m);
   if (m.alpha_form === 'excess_return') {
-    return annualizedGrowth(stats.growth.fund, stats.n, A) - annualizedGrowth(stats.growth.benchmark, stats.n, A);
+    return annualizedReturn(stats.growth.fund, stats, m) - annualizedReturn(stats.growth.benchmark, stats, m);
   }
   if (m.alpha_form === 'jensen') return A * interceptYonX(fittableRegression(stats, m));
+  if (m.alpha_form === 'compounded') {
+    const intercept = interceptYonX(fittableRegression(stats, m));
+    if (!(intercept > -1)) refuse(`the per-period intercept ${intercept} cannot be compounded`);
+    return Math.expm1(A * Math.log1p(intercept));
+  }
   const slope = beta(stats, m);
-  const riskFree = annualizedGrowth(stats.growth.riskFree, stats.n, A);
-  const fund = annualizedGrowth(stats.growth.fund, stats.n, A);
-  const benchmark = annualizedGrowth(stats.growth.benchmark, stats.n, A);
+  const riskFree = annualizedReturn(stats.growth.riskFree, stats, m);
+  const fund = annualizedReturn(stats.growth.fund, stats, m);
+  const benchmark = annualizedReturn(stats.growth.benchmark, stats, m);
   return fund - riskFree - slope * (benchmark - riskFree);
 }
 
@@ -207,7 +249,7 @@ function sharpe(stats: WindowStatistics, m: Methodology): number {
   const excess = basisOf(stats, m).excess;
   const perPeriodVariance = fundVariance(excess, stats.n, m);
   if (isNegligibleVariance(perPeriodVariance, excess.meanY)) refuse('the excess returns have zero variance');
-  return (excess.meanY / Math.sqrt(perPeriodVariance)) * Math.sqrt(annualizationOf(m));
+  return scaledRatio(excess.meanY / Math.sqrt(perPeriodVariance), m);
 }
 
 function trackingError(stats: WindowStatistics, m: Methodology): number {
@@ -217,15 +259,18 @@ function trackingError(stats: WindowStatistics, m: Methodology): number {
 
 function informationRatio(stats: WindowStatistics, m: Methodology): number {
   const active = basisOf(stats, m).active;
-  const error = trackingError(stats, m);
-  if (isNegligibleVariance(error * error, active.mean)) refuse('the tracking error is zero');
-  return (annualizationOf(m) * active.mean) / error;
+  requirePeriods(stats.n, m);
+  const perPeriodVariance = variance(active, m.sd_denominator);
+  if (isNegligibleVariance(perPeriodVariance, active.mean)) refuse('the tracking error is zero');
+  return scaledRatio(active.mean / Math.sqrt(perPeriodVariance), m);
 }
 
+/** Excess return per unit of beta: × A annualised (a return, so not × √A), or per period. */
 function treynor(stats: WindowStatistics, m: Methodology): number {
   const slope = beta(stats, m);
   if (slope === 0) refuse('beta is zero');
-  return (annualizationOf(m) * basisOf(stats, m).excess.meanY) / slope;
+  const perPeriod = basisOf(stats, m).excess.meanY / slope;
+  return m.ratio_scale === 'per_period' ? perPeriod : annualizationOf(m) * perPeriod;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -265,28 +310,27 @@ export function appraisalRatio(stats: WindowStatistics, m: Methodology): MetricO
  */
 export function modiglianiM2(stats: WindowStatistics, m: Methodology): MetricOutcome {
   return guarded(() => {
-    const A = annualizationOf(m);
     const pair = basisOf(stats, m).raw;
     if (isNegligibleVariance(pair.sumSqY / pair.n, pair.meanY)) refuse('the fund returns have zero variance');
-    const riskFree = annualizedGrowth(stats.growth.riskFree, stats.n, A);
-    const fund = annualizedGrowth(stats.growth.fund, stats.n, A);
+    const riskFree = annualizedReturn(stats.growth.riskFree, stats, m);
+    const fund = annualizedReturn(stats.growth.fund, stats, m);
     return riskFree + (fund - riskFree) * Math.sqrt(pair.sumSqX / pair.sumSqY);
   });
 }
 
 /** Share of periods below the minimum acceptable return. */
 export function downsideFrequency(stats: WindowStatistics, m: Methodology): number {
-  return targetSums(basisOf(stats, m), m).countBelow / stats.n;
+  return targetSums(stats, m).countBelow / stats.n;
 }
 
 /** Mean shortfall below the minimum acceptable return, per period (not annualised). */
 export function downsidePotential(stats: WindowStatistics, m: Methodology): number {
-  return targetSums(basisOf(stats, m), m).shortfallBelow / stats.n;
+  return targetSums(stats, m).shortfallBelow / stats.n;
 }
 
 /** √(Σ max(r − MAR, 0)² / N), per period (not annualised). */
 export function upsideRisk(stats: WindowStatistics, m: Methodology): number {
-  return Math.sqrt(targetSums(basisOf(stats, m), m).sumSqAbove / stats.n);
+  return Math.sqrt(targetSums(stats, m).sumSqAbove / stats.n);
 }
 
 /** Mean of |x − mean x|; two passes, as the mean must be known first. */

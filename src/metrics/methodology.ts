@@ -22,6 +22,9 @@ export const RiskFreeSchema = z.discriminatedUnion('source', [
 ]);
 export type RiskFree = z.infer<typeof RiskFreeSchema>;
 
+/** Names of the minimum acceptable returns that are not a fixed number. */
+export const MAR_SOURCES = ['risk_free', 'zero'] as const;
+
 /** Each dimension's values, without defaults (a changes object must not fill in the rest). */
 const DIMENSIONS = {
   frequency: z.enum(FREQUENCIES),
@@ -30,29 +33,71 @@ const DIMENSIONS = {
   sd_denominator: z.enum(['sample', 'population']),
   return_type: z.enum(['simple', 'log']),
   regression: z.enum(['excess', 'raw']),
-  alpha_form: z.enum(['jensen', 'jensen_geometric', 'excess_return']),
-  mar: z.enum(['risk_free', 'zero']),
+  alpha_form: z.enum(['jensen', 'jensen_geometric', 'excess_return', 'compounded']),
+  /** The minimum acceptable return: the risk-free rate, zero, or a fixed annual rate (0.02 is 2 %). */
+  mar: z.union([z.enum(MAR_SOURCES), z.number().finite().gt(-1)]),
   dd_denominator: z.enum(['full', 'below']),
   /** Months the window ends before the as-of month: 0 is the as-of month, −1 the month before. */
   window_end: z.number().int().max(0),
   /** A benchmark id used instead of the master's mapping; null keeps the master's. */
   benchmark: z.string().min(1).nullable(),
   risk_free: RiskFreeSchema,
+  /** Periods a year an annual rate is spread over: the frequency's own, or the annualisation A. */
+  rate_periods: z.enum(['frequency', 'annualization']),
+  /** An annual rate c per period: c / P (simple) or (1 + c)^(1/P) − 1 (compound). */
+  rate_conversion: z.enum(['simple', 'compound']),
+  /** Max drawdown over every NAV observation of the window, or over its sample points only. */
+  drawdown: z.enum(['every_nav', 'sampled']),
+  /** Sharpe, Sortino, information ratio and Treynor annualised, or per period. */
+  ratio_scale: z.enum(['annualized', 'per_period']),
+  /** Annualised returns compound to a year by periods (A / n) or by calendar days (365.25 / days). */
+  return_annualization: z.enum(['periods', 'calendar_days']),
 };
 
-/** The values each two-or-three-valued dimension can take, for a methodology search to try. */
+/** Annualisation factors in common use (interface.md). */
+export const COMMON_ANNUALIZATIONS: readonly number[] = [12, 52, 250, 252, 260, 365];
+
+/**
+ * Every methodology dimension a search may change, with the values it can try, in one list.
+ * `resamples` says whether a change re-reads the window (a new pass over the data); every other
+ * dimension is arithmetic on the cached window statistics. `benchmark`, `window_end` and
+ * `risk_free` take values from the data or the run (benchmark ids, months, rate sources), and
+ * `mar` may also be any fixed annual rate, so their lists hold only the named choices.
+ */
+export const METHODOLOGY_DIMENSIONS = [
+  { name: 'frequency', values: DIMENSIONS.frequency.options, resamples: true },
+  { name: 'annualization', values: COMMON_ANNUALIZATIONS, resamples: false },
+  { name: 'sd_denominator', values: DIMENSIONS.sd_denominator.options, resamples: false },
+  { name: 'return_type', values: DIMENSIONS.return_type.options, resamples: false },
+  { name: 'regression', values: DIMENSIONS.regression.options, resamples: false },
+  { name: 'alpha_form', values: DIMENSIONS.alpha_form.options, resamples: false },
+  { name: 'mar', values: MAR_SOURCES, resamples: false },
+  { name: 'dd_denominator', values: DIMENSIONS.dd_denominator.options, resamples: false },
+  { name: 'rate_periods', values: DIMENSIONS.rate_periods.options, resamples: true },
+  { name: 'rate_conversion', values: DIMENSIONS.rate_conversion.options, resamples: true },
+  { name: 'drawdown', values: DIMENSIONS.drawdown.options, resamples: false },
+  { name: 'ratio_scale', values: DIMENSIONS.ratio_scale.options, resamples: false },
+  { name: 'return_annualization', values: DIMENSIONS.return_annualization.options, resamples: false },
+  { name: 'window_end', values: [0, -1, -2], resamples: true },
+  { name: 'benchmark', values: [], resamples: true },
+  { name: 'risk_free', values: [], resamples: true },
+] as const satisfies ReadonlyArray<{ name: keyof typeof DIMENSIONS; values: readonly unknown[]; resamples: boolean }>;
+
+/** The values each dimension with a closed list of named values can take, for a methodology search to try. */
 export const DIMENSION_CHOICES = {
   frequency: DIMENSIONS.frequency.options,
   sd_denominator: DIMENSIONS.sd_denominator.options,
   return_type: DIMENSIONS.return_type.options,
   regression: DIMENSIONS.regression.options,
   alpha_form: DIMENSIONS.alpha_form.options,
-  mar: DIMENSIONS.mar.options,
+  mar: MAR_SOURCES,
   dd_denominator: DIMENSIONS.dd_denominator.options,
+  rate_periods: DIMENSIONS.rate_periods.options,
+  rate_conversion: DIMENSIONS.rate_conversion.options,
+  drawdown: DIMENSIONS.drawdown.options,
+  ratio_scale: DIMENSIONS.ratio_scale.options,
+  return_annualization: DIMENSIONS.return_annualization.options,
 } as const;
-
-/** Annualisation factors in common use (interface.md). */
-export const COMMON_ANNUALIZATIONS: readonly number[] = [12, 52, 250, 252, 260, 365];
 
 export const MethodologySchema = z.object({
   frequency: DIMENSIONS.frequency.default('monthly'),
@@ -66,6 +111,11 @@ export const MethodologySchema = z.object({
   window_end: DIMENSIONS.window_end.default(0),
   benchmark: DIMENSIONS.benchmark.default(null),
   risk_free: DIMENSIONS.risk_free.default({ source: 'series' }),
+  rate_periods: DIMENSIONS.rate_periods.default('frequency'),
+  rate_conversion: DIMENSIONS.rate_conversion.default('simple'),
+  drawdown: DIMENSIONS.drawdown.default('every_nav'),
+  ratio_scale: DIMENSIONS.ratio_scale.default('annualized'),
+  return_annualization: DIMENSIONS.return_annualization.default('periods'),
 });
 
 export type Methodology = z.infer<typeof MethodologySchema>;
@@ -88,6 +138,11 @@ export const DEFAULT_METHODOLOGY: Readonly<Methodology> = Object.freeze<Methodol
   window_end: 0,
   benchmark: null,
   risk_free: { source: 'series' },
+  rate_periods: 'frequency',
+  rate_conversion: 'simple',
+  drawdown: 'every_nav',
+  ratio_scale: 'annualized',
+  return_annualization: 'periods',
 });
 
 export function parseMethodology(input: unknown): Methodology {
@@ -112,6 +167,21 @@ export function withChanges(base: Methodology, changes: MethodologyChanges): Met
 /** The periods a year the methodology annualises by. */
 export function annualizationOf(methodology: Methodology): number {
   return methodology.annualization ?? DEFAULT_ANNUALIZATION[methodology.frequency];
+}
+
+/**
+ * The periods a year an annual rate is spread over: the frequency's own (12 monthly, 52 weekly,
+ * 252 daily) by default, so that changing A alone never changes the excess returns; A itself
+ * with `rate_periods: annualization`.
+ */
+export function ratePeriodsOf(methodology: Methodology): number {
+  return methodology.rate_periods === 'annualization' ? annualizationOf(methodology) : DEFAULT_ANNUALIZATION[methodology.frequency];
+}
+
+/** An annual rate as a per-period rate: c / P (`simple`) or (1 + c)^(1/P) − 1 (`compound`). */
+export function perPeriodRate(annualRate: number, methodology: Methodology): number {
+  const periods = ratePeriodsOf(methodology);
+  return methodology.rate_conversion === 'compound' ? Math.expm1(Math.log1p(annualRate) / periods) : annualRate / periods;
 }
 
 /** The methodology as reports show it: the annualisation written out. */

@@ -32,8 +32,8 @@ export interface WindowRequest {
   /** Observations after this epoch day are not used. */
   readonly asOf: number;
   readonly frequency: Frequency;
-  /** Periods a year: an annual rate becomes a per-period rate by dividing by it. */
-  readonly annualization: number;
+  /** An annual risk-free rate as the rate of one period (the methodology's `ratePeriodsOf` and conversion). */
+  readonly ratePerPeriod: (annualRate: number) => number;
 }
 
 export interface WindowSample {
@@ -203,30 +203,44 @@ function benchmarkReturns(request: WindowRequest, pointDays: Int32Array): Outcom
   const label = `benchmark ${source.id}`;
   const monthEnds = coverWindow(source.levels, request.span, request.asOf, `${label} level`);
   if (!monthEnds.ok) return monthEnds;
-  if (request.frequency === 'monthly') return { ok: true, value: returnsAt(source.levels.values, monthEnds.value) };
-  const points = alignedPoints(source.levels.dates, monthEnds.value, pointDays, request.frequency);
+  const points = benchmarkPointsOnFundDates(source.levels.dates, monthEnds.value, pointDays, request);
   const aligned = positiveAt(source.levels, points, `${label} level`);
   return aligned.ok ? { ok: true, value: returnsAt(source.levels.values, aligned.value) } : aligned;
 }
 
 /**
- * The benchmark read at the fund's sample points: its own window-start and window-end month-end
- * values at the ends, and in between its last level in the fund's period or, when it has none
- * there (a benchmark holiday), its latest earlier level.
+ * The benchmark read on the fund's own sample dates (docs/methodology.md, "The benchmark and the
+ * rate on the fund's dates"): at each fund sample point, the benchmark's latest level on or
+ * before that day. At a point that is a month-end value (every monthly point, and the window's
+ * two ends at every frequency) that level must lie in the same month; when the benchmark has
+ * none there up to the fund's day, its own month-end value of the month counts instead.
  */
-function alignedPoints(dates: Int32Array, monthEnds: Int32Array, fundDays: Int32Array, frequency: Frequency): Int32Array {
-  const first = monthEnds[0];
-  const last = monthEnds[monthEnds.length - 1];
+export function benchmarkPointsOnFundDates(
+  dates: Int32Array,
+  monthEnds: Int32Array,
+  fundDays: Int32Array,
+  request: Pick<WindowRequest, 'frequency' | 'span'>,
+): Int32Array {
   const points = new Int32Array(fundDays.length);
-  points[0] = first;
-  let cursor = first;
-  for (let k = 1; k < fundDays.length - 1; k++) {
-    const key = periodKey(fundDays[k], frequency);
-    while (cursor < last && periodKey(dates[cursor + 1], frequency) <= key) cursor++;
-    points[k] = cursor;
+  const last = fundDays.length - 1;
+  for (let k = 0; k <= last; k++) {
+    const latest = upperBound(dates, fundDays[k]) - 1;
+    const month = monthOfPoint(k, last, request);
+    if (month === null) {
+      points[k] = Math.max(latest, points[k - 1]);
+    } else {
+      const sameMonth = latest >= 0 && dates[latest] >= monthStartDay(request.span.startMonth + month);
+      points[k] = sameMonth ? latest : monthEnds[month];
+    }
   }
-  if (fundDays.length > 1) points[fundDays.length - 1] = last;
   return points;
+}
+
+/** The window month (0 = the start month) whose month-end value point k is, or null for a point inside the window. */
+function monthOfPoint(k: number, last: number, request: Pick<WindowRequest, 'frequency' | 'span'>): number | null {
+  if (request.frequency === 'monthly') return k;
+  if (k === 0) return 0;
+  return k === last ? request.span.months : null;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -234,7 +248,7 @@ function alignedPoints(dates: Int32Array, monthEnds: Int32Array, fundDays: Int32
 
 /**
  * The risk-free return of each period: the mean of the annual rates observed in the period,
- * divided by the annualisation. Monthly, a period is the calendar month (interface.md: "the mean
+ * made a per-period rate by the methodology (c / P by default, P the frequency's periods a year). Monthly, a period is the calendar month (interface.md: "the mean
  * of that month's annual rates"), and a month without a rate makes the window's rate unknown.
  * Weekly and daily, a period is the days its return covers: after its start point, up to and
  * including its end point; a period without a rate takes the latest earlier rate when that was
@@ -246,7 +260,7 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
   const periods = pointDays.length - 1;
   if ('missing' in source) return { ok: false, reason: source.missing };
   if ('annualRate' in source) {
-    return { ok: true, value: new Float64Array(periods).fill(source.annualRate / request.annualization) };
+    return { ok: true, value: new Float64Array(periods).fill(request.ratePerPeriod(source.annualRate)) };
   }
 
   const perPeriod = new Float64Array(periods);
@@ -255,7 +269,7 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
     const [from, to] = periodDays(request, pointDays, k);
     const rate = meanRate(source.rates, from, to) ?? lookBackRate(source.rates, from, to, request.frequency);
     if (rate === null) missing.push(describePeriod(pointDays[k + 1], request.frequency));
-    else perPeriod[k] = rate / request.annualization;
+    else perPeriod[k] = request.ratePerPeriod(rate);
   }
   if (missing.length === 0) return { ok: true, value: perPeriod };
   const listed = missing.slice(0, LISTED_AT_MOST).join(', ');

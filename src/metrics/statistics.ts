@@ -33,6 +33,16 @@ export interface WindowStatistics {
    */
   readonly maxDrawdown: number;
   readonly navObservations: number;
+  /** Largest fall of the fund's value at its sample points only (`drawdown: sampled`), from its returns. */
+  readonly sampledMaxDrawdown: number;
+  /** Calendar days from the first sample point to the last (`return_annualization: calendar_days`). */
+  readonly days: number;
+  /**
+   * The fund's returns in each basis, kept for sums about a fixed minimum acceptable return
+   * (`mar: 0.02`), which are built on first use and memoised in `fixedTargets`.
+   */
+  readonly fundReturns: { readonly simple: Float64Array; readonly log: Float64Array };
+  readonly fixedTargets: Map<string, TargetSums>;
   /** Why benchmark figures cannot be computed, or null when they can. */
   readonly benchmarkReason: string | null;
   /** Why risk-free dependent figures cannot be computed, or null when they can. */
@@ -54,6 +64,10 @@ export function windowStatistics(sample: WindowSample): WindowStatistics {
     growth: { fund: sum(logFund), benchmark: sum(logBenchmark), riskFree: sum(log1pAll(riskFree)) },
     maxDrawdown: maxDrawdown(sample.navPath),
     navObservations: sample.navPath.length,
+    sampledMaxDrawdown: maxDrawdownOfReturns(fund),
+    days: sample.pointDays.length > 0 ? sample.pointDays[sample.pointDays.length - 1] - sample.pointDays[0] : 0,
+    fundReturns: { simple: fund, log: logFund },
+    fixedTargets: new Map(),
     benchmarkReason: sample.benchmarkReason,
     riskFreeReason: sample.riskFreeReason,
   };
@@ -92,6 +106,35 @@ export function maxDrawdown(values: ArrayLike<number>): number {
     else deepest = Math.max(deepest, 1 - value / peak);
   }
   return deepest;
+}
+
+/** The largest fall of the value path 1, (1 + r_1), (1 + r_1)(1 + r_2), …: the drawdown at the sample points. */
+export function maxDrawdownOfReturns(returns: ArrayLike<number>): number {
+  let value = 1;
+  let peak = 1;
+  let deepest = 0;
+  for (let i = 0; i < returns.length; i++) {
+    value *= 1 + returns[i];
+    if (value > peak) peak = value;
+    else deepest = Math.max(deepest, 1 - value / peak);
+  }
+  return deepest;
+}
+
+/**
+ * Sums of a basis' fund returns about a fixed per-period target, built once per (basis, target)
+ * and kept with the window's statistics, so a search over fixed MARs passes the returns once each.
+ */
+export function fixedTargetSums(stats: WindowStatistics, basis: 'simple' | 'log', target: number): TargetSums {
+  const key = `${basis}:${target}`;
+  let sums = stats.fixedTargets.get(key);
+  if (!sums) {
+    sums = new TargetSums();
+    const returns = stats.fundReturns[basis];
+    for (let i = 0; i < returns.length; i++) sums.add(returns[i], target);
+    stats.fixedTargets.set(key, sums);
+  }
+  return sums;
 }
 
 function log1pAll(values: Float64Array): Float64Array {

@@ -18,11 +18,16 @@ export interface OracleMethodology {
   sd_denominator: 'sample' | 'population';
   return_type: 'simple' | 'log';
   regression: 'excess' | 'raw';
-  alpha_form: 'jensen' | 'jensen_geometric' | 'excess_return';
-  mar: 'risk_free' | 'zero';
+  alpha_form: 'jensen' | 'jensen_geometric' | 'excess_return' | 'compounded';
+  mar: 'risk_free' | 'zero' | number;
   dd_denominator: 'full' | 'below';
   window_end: number;
   benchmark: string | null;
+  rate_periods: 'frequency' | 'annualization';
+  rate_conversion: 'simple' | 'compound';
+  drawdown: 'every_nav' | 'sampled';
+  ratio_scale: 'annualized' | 'per_period';
+  return_annualization: 'periods' | 'calendar_days';
 }
 
 export const ORACLE_DEFAULT: OracleMethodology = {
@@ -36,6 +41,11 @@ export const ORACLE_DEFAULT: OracleMethodology = {
   dd_denominator: 'full',
   window_end: 0,
   benchmark: null,
+  rate_periods: 'frequency',
+  rate_conversion: 'simple',
+  drawdown: 'every_nav',
+  ratio_scale: 'annualized',
+  return_annualization: 'periods',
 };
 
 export type OracleRiskFree = { constant: number } | { rates: Obs[] } | { none: true };
@@ -137,6 +147,24 @@ function geometric(returns: number[], A: number): number {
   return growth ** (A / returns.length) - 1;
 }
 
+/** Compounded over calendar time: (Π(1 + r))^(365.25 / days) − 1. */
+function geometricOverDays(returns: number[], days: number): number {
+  let growth = 1;
+  for (const r of returns) growth *= 1 + r;
+  return growth ** (365.25 / days) - 1;
+}
+
+/** Largest fall from a running peak of a list of values. */
+function deepestFall(values: number[]): number {
+  let peak = -Infinity;
+  let deepest = 0;
+  for (const v of values) {
+    peak = Math.max(peak, v);
+    deepest = Math.max(deepest, 1 - v / peak);
+  }
+  return deepest;
+}
+
 const finiteOrNull = (v: number) => (Number.isFinite(v) ? v : null);
 
 // ---------------------------------------------------------------------------------------------
@@ -147,6 +175,10 @@ const allNull = (): OracleAnswer => Object.fromEntries(METRICS.map((m) => [m, nu
 export function oracle(input: OracleInput): OracleAnswer {
   const m = input.methodology;
   const A = m.annualization ?? { monthly: 12, weekly: 52, daily: 252 }[m.frequency];
+  // interface.md: the per-period rate follows the frequency (annual / 12 monthly) whatever A says;
+  // `rate_periods: annualization` spreads it over A instead, `rate_conversion: compound` compounds.
+  const P = m.rate_periods === 'annualization' ? A : { monthly: 12, weekly: 52, daily: 252 }[m.frequency];
+  const perPeriod = (annual: number) => (m.rate_conversion === 'compound' ? (1 + annual) ** (1 / P) - 1 : annual / P);
   const lastMonth = shiftMonth(input.asOf.slice(0, 7), m.window_end);
   const months = Array.from({ length: input.months + 1 }, (_, k) => shiftMonth(lastMonth, k - input.months));
 
@@ -172,35 +204,35 @@ export function oracle(input: OracleInput): OracleAnswer {
   for (let k = 1; k < points.length; k++) r.push(points[k].value / points[k - 1].value - 1);
   const n = r.length;
 
-  // Benchmark at the same points: its own month-end values at the ends, in between its last level
-  // on or before the fund's point (its own holiday carries the level before).
+  // Benchmark on the fund's own sample dates (docs/methodology.md): its latest level on or before
+  // each fund point, never earlier than the level read at the point before. At a month-end point
+  // (every monthly point, the window's two ends otherwise) that level must be in the same month;
+  // with none there, the benchmark's own month-end value of that month.
   const benchId = m.benchmark ?? input.benchmarkId;
   const bench = input.benchmarks[benchId] ?? [];
   const benchEnds = monthEndValues(bench, months, input.asOf);
   let rb: number[] | null = null;
   if (benchEnds) {
-    let levels: number[];
-    if (m.frequency === 'monthly') levels = benchEnds.map((o) => o.value);
-    else {
-      const firstB = benchEnds[0];
-      const lastB = benchEnds[benchEnds.length - 1];
-      levels = points.map((p, k) => {
-        if (k === 0) return firstB.value;
-        if (k === points.length - 1) return lastB.value;
-        const upTo = m.frequency === 'weekly' ? isoDate(dayNumber(isoWeekOf(p.date)) + 6) : p.date;
-        let level = firstB.value;
-        for (const o of bench) if (o.date >= firstB.date && o.date <= upTo && o.date <= lastB.date) level = o.value;
-        return level;
-      });
+    const read: Obs[] = [];
+    points.forEach((p, k) => {
+      const earlier = bench.filter((o) => o.date <= p.date);
+      let latest = earlier[earlier.length - 1];
+      const monthPoint = m.frequency === 'monthly' ? k : k === 0 ? 0 : k === points.length - 1 ? months.length - 1 : -1;
+      if (monthPoint >= 0) {
+        if (!latest || latest.date.slice(0, 7) !== months[monthPoint]) latest = benchEnds[monthPoint];
+      } else if (!latest || latest.date < read[k - 1].date) latest = read[k - 1];
+      read.push(latest);
+    });
+    if (read.every((o) => o.value > 0)) {
+      rb = [];
+      for (let k = 1; k < read.length; k++) rb.push(read[k].value / read[k - 1].value - 1);
     }
-    rb = [];
-    for (let k = 1; k < levels.length; k++) rb.push(levels[k] / levels[k - 1] - 1);
   }
 
   // Risk-free return of each period.
   let rf: number[] | null = [];
   const rfSource = input.riskFree;
-  if ('constant' in rfSource) rf = r.map(() => rfSource.constant / A);
+  if ('constant' in rfSource) rf = r.map(() => perPeriod(rfSource.constant));
   else if ('none' in rfSource) rf = r.map(() => 0);
   else {
     const rates = rfSource.rates.filter((o) => o.date <= input.asOf);
@@ -220,7 +252,7 @@ export function oracle(input: OracleInput): OracleAnswer {
         }
       }
       if (inPeriod.length === 0) rf = null;
-      else rf.push(avg(inPeriod) / A);
+      else rf.push(perPeriod(avg(inPeriod)));
     }
   }
 
@@ -233,21 +265,21 @@ export function oracle(input: OracleInput): OracleAnswer {
   const enough = population ? n >= 1 : n >= 2;
 
   const out = allNull();
-  out.return_annualized = n >= 1 ? geometric(r, A) : null;
+  const days = dayNumber(last.date) - dayNumber(first.date);
+  const annualized = (x: number[]) => (m.return_annualization === 'calendar_days' ? geometricOverDays(x, days) : geometric(x, A));
+  // Ratios: annualised by √A (Treynor, a return per unit of beta, by A), or per period.
+  const rootA = m.ratio_scale === 'per_period' ? 1 : Math.sqrt(A);
+  const byA = m.ratio_scale === 'per_period' ? 1 : A;
+  out.return_annualized = n >= 1 ? annualized(r) : null;
   out.std_dev = enough ? sd(p) * Math.sqrt(A) : null;
 
-  // Max drawdown: every NAV observation from the first month-end value to the last.
-  let peak = -Infinity;
-  let deepest = 0;
-  for (const o of input.fund) {
-    if (o.date < first.date || o.date > last.date) continue;
-    peak = Math.max(peak, o.value);
-    deepest = Math.max(deepest, 1 - o.value / peak);
-  }
-  out.max_drawdown = deepest;
+  // Max drawdown: every NAV observation from the first month-end value to the last, or the sample points.
+  const path = m.drawdown === 'sampled' ? points : input.fund.filter((o) => o.date >= first.date && o.date <= last.date);
+  out.max_drawdown = deepestFall(path.map((o) => o.value));
 
-  const marOf = (k: number) => (m.mar === 'zero' ? 0 : rf![k]);
-  if (rf || m.mar === 'zero') {
+  const fixedMar = typeof m.mar === 'number' ? m.mar : null;
+  const marOf = (k: number) => (fixedMar !== null ? perPeriod(fixedMar) : m.mar === 'zero' ? 0 : rf![k]);
+  if (rf || m.mar !== 'risk_free') {
     let squares = 0;
     let below = 0;
     for (let k = 0; k < n; k++) {
@@ -261,19 +293,20 @@ export function oracle(input: OracleInput): OracleAnswer {
     const dd = Math.sqrt(squares / count) * Math.sqrt(A);
     out.downside_deviation = dd;
     const meanOverMar = avg(p.map((v, k) => v - marOf(k)));
-    out.sortino = dd > 0 ? (A * meanOverMar) / dd : null;
+    const ddPerPeriod = Math.sqrt(squares / count);
+    out.sortino = dd > 0 ? (meanOverMar / ddPerPeriod) * rootA : null;
   }
 
   if (rf) {
     const ep = p.map((v, k) => v - rf![k]);
-    out.sharpe = enough ? finiteOrNull((avg(ep) / sd(ep)) * Math.sqrt(A)) : null;
+    out.sharpe = enough ? finiteOrNull((avg(ep) / sd(ep)) * rootA) : null;
   }
 
   if (b) {
     const active = p.map((v, k) => v - b[k]);
     const te = enough ? sd(active) * Math.sqrt(A) : null;
     out.tracking_error = te;
-    out.information_ratio = te ? (A * avg(active)) / te : null;
+    out.information_ratio = te ? (avg(active) / sd(active)) * rootA : null;
 
     // The regression: excess returns, or raw returns with `regression: raw`.
     const x = m.regression === 'raw' ? b : rf && b.map((v, k) => v - rf![k]);
@@ -284,13 +317,14 @@ export function oracle(input: OracleInput): OracleAnswer {
       out.beta = beta;
       out.r_squared = finiteOrNull(cov(x, y, population) ** 2 / (cov(x, x, population) * cov(y, y, population)));
       if (m.alpha_form === 'jensen' && beta !== null) out.alpha = A * (avg(y) - beta * avg(x));
+      if (m.alpha_form === 'compounded' && beta !== null) out.alpha = (1 + (avg(y) - beta * avg(x))) ** A - 1;
     }
-    if (m.alpha_form === 'excess_return') out.alpha = geometric(r, A) - geometric(rb!, A);
+    if (m.alpha_form === 'excess_return') out.alpha = annualized(r) - annualized(rb!);
     if (m.alpha_form === 'jensen_geometric' && rf && beta !== null) {
-      const gf = geometric(rf, A);
-      out.alpha = geometric(r, A) - gf - beta * (geometric(rb!, A) - gf);
+      const gf = annualized(rf);
+      out.alpha = annualized(r) - gf - beta * (annualized(rb!) - gf);
     }
-    if (rf && beta !== null && beta !== 0) out.treynor = (A * avg(p.map((v, k) => v - rf![k]))) / beta;
+    if (rf && beta !== null && beta !== 0) out.treynor = (byA * avg(p.map((v, k) => v - rf![k]))) / beta;
   }
   return out;
 }

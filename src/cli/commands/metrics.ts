@@ -86,6 +86,15 @@ function chosenMethodology(base: Methodology, settings: readonly string[], rateG
 }
 
 const NUMERIC_DIMENSIONS = new Set(['annualization', 'window_end']);
+/** Dimensions that take a name or a number (`mar=zero`, `mar=0.02`). */
+const NAME_OR_NUMBER_DIMENSIONS = new Set(['mar']);
+const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
+
+function settingValue(dimension: string, value: string): unknown {
+  if (NUMERIC_DIMENSIONS.has(dimension)) return Number(value);
+  if (NAME_OR_NUMBER_DIMENSIONS.has(dimension) && NUMBER.test(value)) return Number(value);
+  return value === 'null' ? null : value;
+}
 
 function parseSettings(settings: readonly string[]): MethodologyChanges {
   const raw: Record<string, unknown> = {};
@@ -93,7 +102,7 @@ function parseSettings(settings: readonly string[]): MethodologyChanges {
     const match = /^([a-z_]+)=(.+)$/.exec(setting.trim());
     if (!match) throw new ConfigError(`--set "${setting}" is not dimension=value; write for example --set sd_denominator=population.`);
     const [, dimension, value] = match;
-    raw[dimension] = NUMERIC_DIMENSIONS.has(dimension) ? Number(value) : value === 'null' ? null : value;
+    raw[dimension] = settingValue(dimension, value);
   }
   const result = MethodologyChangesSchema.safeParse(raw);
   if (result.success) return result.data as MethodologyChanges;
