@@ -191,6 +191,11 @@ describe('methodology configuration', () => {
       window_end: 0,
       benchmark: null,
       risk_free: { source: 'series' },
+      rate_periods: 'frequency',
+      rate_conversion: 'simple',
+      drawdown: 'every_nav',
+      ratio_scale: 'annualized',
+      return_annualization: 'periods',
     });
   });
 

@@ -177,12 +177,15 @@ describe('methodology variants', () => {
     close(figure('sortino', { dd_denominator: 'below' }), (12 * mean(ep)) / downside);
   });
 
-  it('annualization 52 on monthly returns, the rate divided by 52 too', () => {
+  it('annualization 52 on monthly returns: the rate stays annual / 12 (interface.md), / 52 only with rate_periods: annualization', () => {
+    close(figure('std_dev', { annualization: 52 }), sdNaive(p) * Math.sqrt(52));
+    // Changing A alone never changes the excess returns: the monthly rate is the annual one / 12.
+    close(figure('sharpe', { annualization: 52 }), (mean(ep) / sdNaive(ep)) * Math.sqrt(52));
+    close(figure('alpha', { annualization: 52 }), (52 / 12) * figure('alpha'));
+    close(figure('return_annualized', { annualization: 52 }), geometricAnnualized(p, 52));
     const f52 = p.map((_, i) => monthlyRate(i + 1, 52));
     const ep52 = minus(p, f52);
-    close(figure('std_dev', { annualization: 52 }), sdNaive(p) * Math.sqrt(52));
-    close(figure('sharpe', { annualization: 52 }), (mean(ep52) / sdNaive(ep52)) * Math.sqrt(52));
-    close(figure('return_annualized', { annualization: 52 }), geometricAnnualized(p, 52));
+    close(figure('sharpe', { annualization: 52, rate_periods: 'annualization' }), (mean(ep52) / sdNaive(ep52)) * Math.sqrt(52));
   });
 
   it('window_end −1 ends the window a month before the as-of month', () => {
