@@ -141,6 +141,13 @@ describe('Bacon (2008) printed values', () => {
     // Bacon (2008) p. 96: 0.157
     expect(metric('P', 'sortino', MAR_HALF_PERCENT) / Math.sqrt(12)).toBeCloseTo(0.157, 3);
   });
+
+  it('Kappa 2 as a per-period Sortino ratio about a fixed MAR of 6 % a year (mar: 0.06, ratio_scale: per_period)', () => {
+    // Bacon (2008) p. 96: 0.157. The target is a fixed annual rate, 0.06 / 12 = 0.5 % a month,
+    // with no risk-free rate at all, and the ratio is reported per period (not × √12).
+    const fixedTarget = withChanges(ZERO_RATE, { mar: 0.06, ratio_scale: 'per_period' });
+    expect(metric('P', 'sortino', fixedTarget)).toBeCloseTo(0.157, 3);
+  });
 });
 
 describe('values derived from the same table (derived cross-check, independent reference)', () => {

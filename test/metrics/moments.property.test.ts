@@ -2,6 +2,7 @@ import { createRequire } from 'node:module';
 import fc from 'fast-check';
 import {
   linearRegression,
+  rootMeanSquare,
   sampleCorrelation,
   sampleCovariance,
   sampleStandardDeviation,
@@ -19,6 +20,8 @@ import {
   varianceX,
   varianceY,
   withChanges,
+  type MethodologyChanges,
+  type MetricId,
 } from '../../src/metrics/index.js';
 import { compound, frame, masterRecord, monthEnds } from './builders.js';
 
@@ -125,3 +128,61 @@ describe('metrics over random NAV series agree with simple-statistics', () => {
     );
   });
 });
+
+describe('the conventions of issue 10 agree with simple-statistics and jstat', () => {
+  const monthlyPairs = fc.array(fc.tuple(fc.double({ min: -0.2, max: 0.2, noNaN: true }), fc.double({ min: -0.2, max: 0.2, noNaN: true })), {
+    minLength: 12,
+    maxLength: 12,
+  });
+  const annualRate = fc.integer({ min: 0, max: 800 }).map((bp) => bp / 10_000);
+
+  function setUp(xy: [number, number][]) {
+    const [fund, bench] = split(xy);
+    const dates = monthEnds(2025, 12, 13);
+    const calculator = new MetricCalculator({
+      nav: frame({ F: { dates, values: compound(fund) } }),
+      benchmarks: frame({ B: { dates, values: compound(bench) } }),
+      master: [masterRecord('F', 'B')],
+    });
+    const figure = (metric: MetricId, changes: MethodologyChanges) =>
+      calculator.metric({ seriesId: 'F', asOf: dates[12], window: '1y', metric, methodology: withChanges(DEFAULT_METHODOLOGY, changes) }).value!;
+    return { fund, bench, figure };
+  }
+
+  it('per-period Sharpe and information ratio, and the compounded Jensen intercept, with a compounded rate', () => {
+    fc.assert(
+      fc.property(monthlyPairs, annualRate, (xy, rate) => {
+        const { fund, bench, figure } = setUp(xy);
+        fc.pre(naiveVariance(fund) > 1e-6 && naiveVariance(bench) > 1e-6);
+        const riskFree = { source: 'constant', annual_rate: rate } as const;
+        const rf = (1 + rate) ** (1 / 12) - 1;
+        const excess = fund.map((r) => r - rf);
+        const base = { risk_free: riskFree, rate_conversion: 'compound', ratio_scale: 'per_period' } as const;
+        expectClose(figure('sharpe', base), mean(excess) / sampleStandardDeviation(excess), 1e-11);
+        expectClose(figure('sharpe', base), mean(excess) / jStat.stdev(excess, true), 1e-11);
+        const active = fund.map((r, i) => r - bench[i]);
+        fc.pre(naiveVariance(active) > 1e-8);
+        expectClose(figure('information_ratio', base), mean(active) / sampleStandardDeviation(active), 1e-10);
+        const intercept = linearRegression(xy.map(([f, b]) => [b - rf, f - rf])).b;
+        expectClose(figure('alpha', { ...base, alpha_form: 'compounded' }), (1 + intercept) ** 12 - 1, 1e-11);
+      }),
+      { numRuns: 150 },
+    );
+  });
+
+  it('downside deviation about a fixed annual MAR: simple-statistics root mean square of the shortfalls', () => {
+    fc.assert(
+      fc.property(monthlyPairs, fc.integer({ min: -500, max: 1500 }).map((bp) => bp / 10_000), (xy, mar) => {
+        const { fund, figure } = setUp(xy);
+        const shortfalls = fund.map((r) => Math.min(r - mar / 12, 0));
+        const none = { risk_free: { source: 'none' } } as const;
+        expectClose(figure('downside_deviation', { ...none, mar }), rootMeanSquare(shortfalls) * Math.sqrt(12), 1e-13);
+      }),
+      { numRuns: 150 },
+    );
+  });
+});
+
+function mean(x: number[]): number {
+  return x.reduce((s, v) => s + v, 0) / x.length;
+}
