@@ -35,7 +35,7 @@ const DIMENSIONS = {
   regression: z.enum(['excess', 'raw']),
   alpha_form: z.enum(['jensen', 'jensen_geometric', 'excess_return', 'compounded']),
   /** The minimum acceptable return: the risk-free rate, zero, or a fixed annual rate (0.02 is 2 %). */
-  mar: z.union([z.enum(MAR_SOURCES), z.number().finite().gt(-1)]),
+  mar: z.union([z.enum(MAR_SOURCES), z.number().finite().gt(-1)], { error: 'must be risk_free, zero or an annual rate such as 0.02' }),
   dd_denominator: z.enum(['full', 'below']),
   /** Months the window ends before the as-of month: 0 is the as-of month, −1 the month before. */
   window_end: z.number().int().max(0),

@@ -179,6 +179,13 @@ describe('metrics', () => {
     expect(figure(population, 'beta')).toBeCloseTo(figure(sample, 'beta'), 12);
     const bad = await runCli(...args, '--set', 'mar=half');
     expect(bad.status).toBe(2);
-    expect(bad.stderr).toContain('--set mar: must be one of risk_free, zero.');
+    expect(bad.stderr).toContain('--set mar: must be risk_free, zero or an annual rate such as 0.02.');
+    // A fixed annual MAR and per-period ratios (docs/methodology.md): the per-period Sortino
+    // about 0.02 / 12 a month, annualised by √12, is the annualised one.
+    const fixed = JSON.parse((await runCli(...args, '--set', 'mar=0.02', '--set', 'ratio_scale=per_period')).stdout);
+    expect(fixed.methodology).toMatchObject({ mar: 0.02, ratio_scale: 'per_period' });
+    const fixedAnnualized = JSON.parse((await runCli(...args, '--set', 'mar=0.02')).stdout);
+    expect(figure(fixed, 'sortino') * Math.sqrt(12)).toBeCloseTo(figure(fixedAnnualized, 'sortino'), 12);
+    expect(figure(fixedAnnualized, 'sortino')).not.toBeCloseTo(figure(sample, 'sortino'), 6);
   });
 });

@@ -13,6 +13,7 @@ import {
   type MetricId,
   type MetricValue,
 } from '../../src/metrics/index.js';
+import { RunConfigSchema } from '../../src/config/run-config.js';
 import { compound, frame, masterRecord, monthEnds } from './builders.js';
 
 /**
@@ -191,6 +192,13 @@ describe('the declared list of dimensions', () => {
     expect(parseMethodology({ mar: 0.02, drawdown: 'sampled', ratio_scale: 'per_period' })).toMatchObject({ mar: 0.02, drawdown: 'sampled', ratio_scale: 'per_period' });
     expect(() => parseMethodologyChanges({ mar: 'half' })).toThrow();
     expect(() => parseMethodologyChanges({ rate_conversion: 'continuous' })).toThrow();
+  });
+
+  it('are written in a run configuration under methodology, the rest keeping their defaults', () => {
+    const written = { rate_periods: 'annualization', rate_conversion: 'compound', alpha_form: 'compounded', mar: 0.02, drawdown: 'sampled', ratio_scale: 'per_period', return_annualization: 'calendar_days' };
+    const config = RunConfigSchema.parse({ files: { nav: 'nav.csv' }, methodology: written });
+    expect(config.methodology).toEqual({ ...DEFAULT_METHODOLOGY, ...written });
+    expect(RunConfigSchema.parse({ files: { nav: 'nav.csv' } }).methodology).toEqual(DEFAULT_METHODOLOGY);
   });
 
   it('marks as resampling exactly the dimensions that change the sampled returns or the per-period rate', () => {
