@@ -60,7 +60,8 @@ export const COMMON_ANNUALIZATIONS: readonly number[] = [12, 52, 250, 252, 260, 
 /**
  * Every methodology dimension a search may change, with the values it can try, in one list.
  * `resamples` says whether a change re-reads the window (a new pass over the data); every other
- * dimension is arithmetic on the cached window statistics. `benchmark`, `window_end` and
+ * dimension is arithmetic on the cached window statistics, except `annualization` under
+ * `rate_periods: annualization`, where A also sets the per-period rate. `benchmark`, `window_end` and
  * `risk_free` take values from the data or the run (benchmark ids, months, rate sources), and
  * `mar` may also be any fixed annual rate, so their lists hold only the named choices.
  */
