@@ -1,0 +1,142 @@
+/**
+ * The whole daily audit of the standard universe (bench/standard-universe.ts), each run a fresh
+ * child process (bench/audit-child.ts) with a clean store and report folder, several times per
+ * size. Prints per-stage seconds (median and best), NAV rows/s and MB/s of ingestion, the whole
+ * process's wall time and its peak resident memory, with the machine and the run count. Then the
+ * same audit from the Arrow snapshot the first run stored.
+ *
+ *   npm run build && node dist/bench/audit-bench.js                 # 10,000 series × 10 years, 3 runs
+ *   node dist/bench/audit-bench.js --sizes 1000,5000,10000,20000 --years 10 --runs 3
+ *   node dist/bench/audit-bench.js --sizes 2000 --runs 1 --no-arrow --node-arg --cpu-prof
+ *
+ * The generated files are kept under bench/.cache/ (gitignored), so later runs do not regenerate.
+ */
+import { spawnSync } from 'node:child_process';
+import { copyFileSync, mkdirSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { cpus, loadavg, totalmem } from 'node:os';
+import { dirname, join, relative, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import type { ChildReport } from './audit-child.js';
+import { AS_OF, STANDARD_SIZE, standardUniverse, type StandardUniverse } from './standard-universe.js';
+import { formatIsoDate } from '../src/calendar/days.js';
+
+const here = dirname(fileURLToPath(import.meta.url));
+/** bench/.cache at the repository root, whether this runs from bench/ (tsx) or dist/bench/ (built). */
+const repositoryRoot = here.includes(`${join('dist', 'bench')}`) ? resolve(here, '..', '..') : resolve(here, '..');
+const cacheDir = join(repositoryRoot, 'bench', '.cache');
+const child = join(here, `audit-child${import.meta.url.endsWith('.ts') ? '.ts' : '.js'}`);
+
+const args = process.argv.slice(2);
+const option = (name: string, fallback: string): string => {
+  const i = args.indexOf(name);
+  return i >= 0 && i + 1 < args.length ? args[i + 1] : fallback;
+};
+const sizes = option('--sizes', String(STANDARD_SIZE.series)).split(',').map(Number);
+const years = Number(option('--years', String(STANDARD_SIZE.years)));
+const runs = Number(option('--runs', '3'));
+const withArrow = !args.includes('--no-arrow');
+const extra = args.flatMap((a, i) => (a === '--child-arg' ? [args[i + 1]] : []));
+const nodeArgs = args.flatMap((a, i) => (a === '--node-arg' ? [args[i + 1]] : []));
+
+const median = (values: number[]) => {
+  const sorted = [...values].sort((a, b) => a - b);
+  const mid = sorted.length >> 1;
+  return sorted.length % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
+};
+const best = (values: number[]) => Math.min(...values);
+
+console.log(`navassay audit bench: the whole daily audit in a fresh process per run, ${runs} run${runs === 1 ? '' : 's'} per size, warm page cache`);
+console.log(`machine: ${cpus()[0]?.model.trim() ?? 'unknown cpu'}, ${cpus().length} cores, ${(totalmem() / 2 ** 30).toFixed(1)} GiB, Node ${process.version}; load average at start ${loadavg().map((l) => l.toFixed(1)).join(' ')}`);
+console.log(`date: ${new Date().toISOString().slice(0, 16)}Z; child options: ${[...nodeArgs, ...extra].join(' ') || 'none'}`);
+
+interface Scenario {
+  readonly label: string;
+  readonly config: string;
+  readonly inputBytes: number;
+}
+
+for (const series of sizes) {
+  const universe = await standardUniverse(cacheDir, { series, years }, (line) => console.log(line));
+  const csv = scenario(universe, 'csv', csvFiles(universe));
+  const results = measure(csv, universe);
+  print(csv, universe, results);
+  if (withArrow) {
+    const arrow = scenario(universe, 'arrow', arrowFiles(universe, join(dirname(csv.config), 'store')));
+    print(arrow, universe, measure(arrow, universe));
+  }
+}
+
+function csvFiles(universe: StandardUniverse): Record<string, string> {
+  return { ...universe.files };
+}
+
+/** The Arrow files of the snapshot the CSV runs stored, copied beside the universe. */
+function arrowFiles(universe: StandardUniverse, store: string): Record<string, string> {
+  const feedDir = join(store, 'bench');
+  const snapshot = join(feedDir, formatIsoDate(AS_OF));
+  const target = join(universe.dir, 'arrow');
+  mkdirSync(target, { recursive: true });
+  const files: Record<string, string> = {};
+  for (const name of readdirSync(snapshot).filter((n) => n.endsWith('.arrow'))) {
+    copyFileSync(join(snapshot, name), join(target, name));
+    files[name.replace('.arrow', '')] = join(target, name);
+  }
+  return files;
+}
+
+function scenario(universe: StandardUniverse, label: string, files: Record<string, string>): Scenario {
+  const dir = join(universe.dir, `run-${label}`);
+  mkdirSync(dir, { recursive: true });
+  const config = join(dir, 'navassay.yaml');
+  const lines = [`feed: bench`, `as_of: ${formatIsoDate(AS_OF)}`, 'store: store', 'files:'];
+  for (const [kind, path] of Object.entries(files)) lines.push(`  ${kind}: ${relative(dir, path)}`);
+  lines.push('windows: [1y, 3y, 5y]', 'output:', '  dir: report', '  formats: [json, html]', 'fail_on: none', '');
+  writeFileSync(config, lines.join('\n'));
+  const inputBytes = Object.values(files).reduce((sum, path) => sum + statSync(path).size, 0);
+  return { label, config, inputBytes };
+}
+
+interface Run {
+  readonly report: ChildReport;
+  /** Wall seconds of the whole child process, start-up included. */
+  readonly wall: number;
+}
+
+function measure(scenario: Scenario, universe: StandardUniverse): Run[] {
+  const results: Run[] = [];
+  for (let run = 0; run < runs; run++) {
+    const dir = dirname(scenario.config);
+    rmSync(join(dir, 'store'), { recursive: true, force: true });
+    rmSync(join(dir, 'report'), { recursive: true, force: true });
+    const t0 = process.hrtime.bigint();
+    const loader = child.endsWith('.ts') ? ['--import', 'tsx'] : [];
+    const out = spawnSync(process.execPath, [...loader, ...nodeArgs, child, scenario.config, ...extra], { encoding: 'utf8', maxBuffer: 1 << 26, cwd: repositoryRoot });
+    const wall = Number(process.hrtime.bigint() - t0) / 1e9;
+    if (out.status !== 0) throw new Error(`audit child failed on ${universe.size.series} series (${scenario.label}): ${out.stderr}`);
+    const lines = out.stdout.trim().split('\n');
+    results.push({ report: JSON.parse(lines[lines.length - 1]) as ChildReport, wall });
+  }
+  // The CSV scenario's store must survive for the Arrow scenario, so only the report folder goes.
+  return results;
+}
+
+function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): void {
+  const first = results[0].report;
+  const rows = first.navRows;
+  console.log(
+    `\n${universe.size.series.toLocaleString('en')} series × ${universe.size.years}y from ${scenario.label.toUpperCase()}: ${rows.toLocaleString('en')} NAV rows, ${(scenario.inputBytes / 2 ** 20).toFixed(0)} MiB of input, ` +
+      `${first.rowsRead.toLocaleString('en')} rows read in all, ${first.findings.toLocaleString('en')} findings, ${first.figures.toLocaleString('en')} figures`,
+  );
+  for (const note of first.skipped) console.log(`  skipped: ${note}`);
+  const stageNames = Object.keys(first.stages).filter((s) => s !== 'total');
+  for (const name of [...stageNames, 'total']) {
+    const seconds = results.map((r) => r.report.stages[name]);
+    let rate = '';
+    if (name === 'ingest') rate = `  ${(rows / median(seconds) / 1e6).toFixed(2)} M NAV rows/s, ${(scenario.inputBytes / median(seconds) / 1e6).toFixed(0)} MB/s (median)`;
+    console.log(`  ${name.padEnd(10)} median ${median(seconds).toFixed(2).padStart(7)} s   best ${best(seconds).toFixed(2).padStart(7)} s${rate}`);
+  }
+  const walls = results.map((r) => r.wall);
+  const rss = results.map((r) => r.report.maxRssBytes / 2 ** 20);
+  console.log(`  ${'process'.padEnd(10)} median ${median(walls).toFixed(2).padStart(7)} s   best ${best(walls).toFixed(2).padStart(7)} s  (whole child process, start-up included)`);
+  console.log(`  ${'peak RSS'.padEnd(10)} median ${median(rss).toFixed(0).padStart(7)} MiB best ${best(rss).toFixed(0).padStart(7)} MiB`);
+}

@@ -1,0 +1,84 @@
+/**
+ * One whole daily audit in its own process, timed stage by stage: the audit bench
+ * (`bench/audit-bench.ts`) starts this file as a child several times and reads the JSON line it
+ * prints last. The stages are those of `navassay run` (src/cli/commands/run.ts): read the feed,
+ * run every check, compute the risk figures for the configured windows, reconcile (when the
+ * project has that stage), store the snapshot, write the reports.
+ *
+ *   node dist/bench/audit-child.js CONFIG [--threads N]
+ */
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { lastMonthEndOnOrBefore } from '../src/calendar/days.js';
+import { runChecks } from '../src/checks/run.js';
+import { loadRunConfig } from '../src/config/run-config.js';
+import { loadFeed } from '../src/ingest/feed.js';
+import { computeMetrics } from '../src/metrics/compute.js';
+import { checkAnswer, checkView } from '../src/report/check-answer.js';
+import { metricsView } from '../src/report/metrics-answer.js';
+import { render } from '../src/report/render.js';
+import { adjustForCorporateActions } from '../src/series/adjust.js';
+import { loadOptionsOf, parseAsOf } from '../src/cli/options.js';
+import { writeFileAtomically, writeQuarantine } from '../src/cli/output.js';
+import { storeSnapshot } from '../src/cli/snapshots.js';
+
+export interface ChildReport {
+  readonly stages: Record<string, number>;
+  readonly skipped: string[];
+  readonly navRows: number;
+  readonly rowsRead: number;
+  readonly findings: number;
+  readonly figures: number;
+  readonly maxRssBytes: number;
+}
+
+const started = process.hrtime.bigint();
+const configPath = process.argv[2];
+const config = loadRunConfig(configPath);
+const asOf = parseAsOf(config.as_of);
+const stages: Record<string, number> = {};
+const skipped: string[] = [];
+
+async function stage<T>(name: string, work: () => T | Promise<T>): Promise<T> {
+  const t0 = process.hrtime.bigint();
+  const result = await work();
+  stages[name] = Number(process.hrtime.bigint() - t0) / 1e9;
+  return result;
+}
+
+const feed = await stage('ingest', () => loadFeed(config.paths, loadOptionsOf(config)));
+const findings = await stage('checks', () => runChecks({ ...feed, asOf }, config.checks));
+const check = checkAnswer(asOf, feed.rows, findings);
+const metrics = await stage('metrics', () =>
+  computeMetrics({
+    nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
+    benchmarks: feed.benchmarks!,
+    master: feed.master!,
+    rates: feed.rates,
+    asOf: lastMonthEndOnOrBefore(asOf),
+    windows: config.windows,
+    methodology: config.methodology,
+  }),
+);
+// The reconciliation stage (src/reconcile/) is timed once the project has it.
+if (!existsSync(new URL('../src/reconcile/', import.meta.url))) skipped.push('reconcile (no src/reconcile stage in this build)');
+if (config.store !== '') await stage('store', () => storeSnapshot(config, asOf, feed));
+await stage('reports', () => {
+  for (const format of config.output.formats) {
+    writeFileAtomically(join(config.output.dir, `check.${format}`), render(format, check, checkView(check)));
+    writeFileAtomically(join(config.output.dir, `metrics.${format}`), render(format, metrics, metricsView(metrics)));
+  }
+  writeQuarantine(join(config.output.dir, 'quarantine.csv'), feed.rejected);
+});
+stages.total = Number(process.hrtime.bigint() - started) / 1e9;
+
+const report: ChildReport = {
+  stages,
+  skipped,
+  navRows: feed.nav.dates.length,
+  rowsRead: feed.rows.read,
+  findings: findings.length,
+  figures: metrics.metrics.length,
+  maxRssBytes: process.resourceUsage().maxRSS * 1024,
+};
+console.log(JSON.stringify(report));
