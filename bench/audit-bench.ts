@@ -9,6 +9,9 @@
  *   node dist/bench/audit-bench.js --sizes 1000,5000,10000,20000 --years 10 --runs 3
  *   node dist/bench/audit-bench.js --sizes 2000 --runs 1 --no-arrow --node-arg --cpu-prof
  *
+ * Options: --sizes (series counts), --years, --runs, --no-arrow, --cache DIR (where the universe
+ * is kept), --node-arg ARG (passed to node for the child), --child-arg ARG (passed to the child).
+ *
  * The generated files are kept under bench/.cache/ (gitignored), so later runs do not regenerate.
  */
 import { spawnSync } from 'node:child_process';
@@ -23,7 +26,6 @@ import { formatIsoDate } from '../src/calendar/days.js';
 const here = dirname(fileURLToPath(import.meta.url));
 /** bench/.cache at the repository root, whether this runs from bench/ (tsx) or dist/bench/ (built). */
 const repositoryRoot = here.includes(`${join('dist', 'bench')}`) ? resolve(here, '..', '..') : resolve(here, '..');
-const cacheDir = join(repositoryRoot, 'bench', '.cache');
 const child = join(here, `audit-child${import.meta.url.endsWith('.ts') ? '.ts' : '.js'}`);
 
 const args = process.argv.slice(2);
@@ -31,6 +33,7 @@ const option = (name: string, fallback: string): string => {
   const i = args.indexOf(name);
   return i >= 0 && i + 1 < args.length ? args[i + 1] : fallback;
 };
+const cacheDir = resolve(option('--cache', join(repositoryRoot, 'bench', '.cache')));
 const sizes = option('--sizes', String(STANDARD_SIZE.series)).split(',').map(Number);
 const years = Number(option('--years', String(STANDARD_SIZE.years)));
 const runs = Number(option('--runs', '3'));
