@@ -239,20 +239,28 @@ function blockTicks(series: SeriesSlice, rows: number[]): (k: number) => number 
   return (k: number) => ticks[Math.floor(k / size)];
 }
 
+/** 10^k and 10^−k for the decimals a printed value can show, computed once (a power per value was a hot spot). */
+const POWERS_OF_TEN = Array.from({ length: 9 }, (_, k) => 10 ** k);
+const INVERSE_POWERS_OF_TEN = Array.from({ length: 9 }, (_, k) => 10 ** -k);
+
 function printedTick(series: SeriesSlice, rows: number[], from: number, to: number): number {
   let decimals = 0;
   for (let k = from; k < to; k++) {
     const value = series.values[rows[k]];
-    let scaled = value * 10 ** decimals;
-    while (decimals < 8 && Math.abs(scaled - Math.round(scaled)) > 1e-6 * Math.max(1, scaled * 1e-9)) scaled = value * 10 ** ++decimals;
+    let scaled = value * POWERS_OF_TEN[decimals];
+    while (decimals < 8 && Math.abs(scaled - Math.round(scaled)) > 1e-6 * Math.max(1, scaled * 1e-9)) scaled = value * POWERS_OF_TEN[++decimals];
   }
   let divisor = 0;
-  for (let k = from; k < to && divisor !== 1; k++) divisor = gcd(divisor, Math.round(series.values[rows[k]] * 10 ** decimals));
-  return Math.max(1, divisor) * 10 ** -decimals;
+  for (let k = from; k < to && divisor !== 1; k++) divisor = gcd(divisor, Math.round(series.values[rows[k]] * POWERS_OF_TEN[decimals]));
+  return Math.max(1, divisor) * INVERSE_POWERS_OF_TEN[decimals];
 }
 
 function gcd(a: number, b: number): number {
-  while (b) [a, b] = [b, a % b];
+  while (b) {
+    const rest = a % b;
+    a = b;
+    b = rest;
+  }
   return Math.abs(a);
 }
 

@@ -57,8 +57,28 @@ export function isoWeekday(days: number): number {
 
 /** Months since 1970-01 (0 = January 1970); monthly sampling groups rows by this index. */
 export function monthIndex(days: number): number {
+  const slot = days - MONTH_TABLE_FIRST_DAY;
+  if (slot >= 0 && slot < MONTH_TABLE_DAYS) return (monthTable ??= buildMonthTable())[slot];
+  return civilMonthIndex(days);
+}
+
+function civilMonthIndex(days: number): number {
   const { year, month } = civilFromEpochDay(days);
   return (year - 1970) * 12 + (month - 1);
+}
+
+/**
+ * The month index of every day from 1900 to 2199, built on first use: the checks ask for the
+ * month of millions of dates, and a table read is far cheaper than the civil conversion.
+ */
+const MONTH_TABLE_FIRST_DAY = -25567; // 1900-01-01
+const MONTH_TABLE_DAYS = 109573; // to 2199-12-31
+let monthTable: Int16Array | undefined;
+
+function buildMonthTable(): Int16Array {
+  const table = new Int16Array(MONTH_TABLE_DAYS);
+  for (let slot = 0; slot < MONTH_TABLE_DAYS; slot++) table[slot] = civilMonthIndex(MONTH_TABLE_FIRST_DAY + slot);
+  return table;
 }
 
 /** The last calendar day of the month with the given month index, as an epoch day. */

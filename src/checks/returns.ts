@@ -215,7 +215,8 @@ const extremeCache = new WeakMap<SeriesReturns, number>();
 export function ordinaryExtreme(returns: SeriesReturns): number {
   let cached = extremeCache.get(returns);
   if (cached === undefined) {
-    const magnitudes = Float64Array.from(returns.z, Math.abs).filter(Number.isFinite).sort();
+    // The same ascending |z| the tail estimate uses: one sort per series serves both.
+    const magnitudes = sortedMagnitudes(returns);
     cached = magnitudes.length >= 50 ? magnitudes[Math.floor(0.99 * (magnitudes.length - 1))] : 2.576;
     extremeCache.set(returns, cached);
   }
@@ -268,10 +269,24 @@ function conflictAt(series: SeriesSlice, row: number): boolean {
 
 const magnitudeCache = new WeakMap<SeriesReturns, Float64Array>();
 
-/** |z| of every step, ascending (cached per series). */
+/**
+ * |z| of every step with a finite z, ascending (cached per series). A plain loop, not a mapped
+ * `Float64Array.from(…, Math.abs).filter(…)`: the callback forms cost a call per element and
+ * were the largest single cost of the checks at universe scale (docs/performance.md).
+ */
 function sortedMagnitudes(returns: SeriesReturns): Float64Array {
   let magnitudes = magnitudeCache.get(returns);
-  if (magnitudes === undefined) magnitudeCache.set(returns, (magnitudes = Float64Array.from(returns.z, Math.abs).filter(Number.isFinite).sort()));
+  if (magnitudes === undefined) {
+    const z = returns.z;
+    const all = new Float64Array(z.length);
+    let n = 0;
+    for (let k = 0; k < z.length; k++) {
+      const magnitude = Math.abs(z[k]);
+      if (Number.isFinite(magnitude)) all[n++] = magnitude;
+    }
+    magnitudes = all.subarray(0, n).sort();
+    magnitudeCache.set(returns, magnitudes);
+  }
   return magnitudes;
 }
 

@@ -68,7 +68,8 @@ export function capped<T>(items: readonly T[], limit = 20): T[] {
 export function median(values: ArrayLike<number>): number {
   const n = values.length;
   if (n === 0) return NaN;
-  const work = Float64Array.from(values);
+  const work = new Float64Array(n); // a plain copy loop: Float64Array.from walks an iterator
+  for (let i = 0; i < n; i++) work[i] = values[i];
   const upper = selectKth(work, n >> 1);
   return n % 2 === 1 ? upper : (maxBelow(work, n >> 1) + upper) / 2;
 }
