@@ -19,6 +19,12 @@ interface DayTable {
   readonly before: Int32Array;
 }
 
+/** The calendars as plain data: weekend weekdays and each calendar's holidays (epoch days). */
+export interface CalendarDescription {
+  readonly weekendDays: readonly number[];
+  readonly holidays: ReadonlyArray<readonly [string, readonly number[]]>;
+}
+
 /**
  * A business calendar: weekend weekdays plus named holiday lists. Series name their calendar
  * in the master; a series without one uses the default calendar (weekends only, plus any
@@ -37,6 +43,17 @@ export class BusinessCalendars {
     if (!days) this.holidaysByCalendar.set(calendar, (days = new Set()));
     days.add(day);
     this.tables.clear();
+  }
+
+  /** Plain data that rebuilds these calendars (`BusinessCalendars.from`), for a worker thread. */
+  describe(): CalendarDescription {
+    return { weekendDays: [...this.weekendDays], holidays: [...this.holidaysByCalendar].map(([name, days]) => [name, [...days]]) };
+  }
+
+  static from(description: CalendarDescription): BusinessCalendars {
+    const calendars = new BusinessCalendars(description.weekendDays);
+    for (const [name, days] of description.holidays) for (const day of days) calendars.addHoliday(name, day);
+    return calendars;
   }
 
   knows(calendar: string): boolean {

@@ -26,14 +26,23 @@ export interface CheckInput {
 /** Runs the catalogue. `settings` is validated here too, so a bad key fails before any work. */
 export function runChecks(input: CheckInput, settings: CheckSettings = {}): Finding[] {
   const resolver = new SettingsResolver(parseCheckSettings(settings));
+  const findings = runSeriesChecks(input, resolver, 0, input.nav.ids.length, latestDateUpTo(input.nav, input.asOf));
+  findings.push(...runFeedChecks(input, resolver));
+  return findings.sort(compareFindings);
+}
+
+/**
+ * The series-level checks over series `first` to `end − 1` of the NAV frame, unsorted. The
+ * worker threads (src/checks/parallel.ts) call this on disjoint ranges; `feedLatest` is the whole
+ * feed's, not the range's.
+ */
+export function runSeriesChecks(input: CheckInput, resolver: SettingsResolver, first: number, end: number, feedLatest: number | undefined): Finding[] {
   const findings: Finding[] = [];
   const seriesChecks = CHECKS.filter((check): check is SeriesCheck => check.scope === 'series');
-  const feedChecks = CHECKS.filter((check): check is FeedCheck => check.scope === 'feed');
   const masterById = new Map((input.master ?? []).map((record) => [record.series_id, record]));
   const actionsById = groupActions(input.actions ?? []);
-  const feedLatest = latestDateUpTo(input.nav, input.asOf);
 
-  for (let i = 0; i < input.nav.ids.length; i++) {
+  for (let i = first; i < end; i++) {
     const series = seriesAt(input.nav, i);
     const master = masterById.get(series.id);
     const context: SeriesContext = {
@@ -51,7 +60,13 @@ export function runChecks(input: CheckInput, settings: CheckSettings = {}): Find
       if (enabled) findings.push(...check.run(series, context, params));
     }
   }
+  return findings;
+}
 
+/** The feed-level checks, unsorted. */
+export function runFeedChecks(input: CheckInput, resolver: SettingsResolver): Finding[] {
+  const findings: Finding[] = [];
+  const feedChecks = CHECKS.filter((check): check is FeedCheck => check.scope === 'feed');
   const feed: FeedContext = {
     asOf: input.asOf,
     calendars: input.calendars,
@@ -66,10 +81,11 @@ export function runChecks(input: CheckInput, settings: CheckSettings = {}): Find
     const { enabled, params } = resolver.resolve(check, null, null);
     if (enabled) findings.push(...check.run(feed, params));
   }
-  return findings.sort(compareFindings);
+  return findings;
 }
 
-function latestDateUpTo(frame: SeriesFrame, asOf: number): number | undefined {
+/** The latest NAV date of the whole feed on or before the as-of (what "up to date" means). */
+export function latestDateUpTo(frame: SeriesFrame, asOf: number): number | undefined {
   let latest: number | undefined;
   for (let i = 0; i < frame.dates.length; i++) {
     const day = frame.dates[i];

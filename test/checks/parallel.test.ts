@@ -1,0 +1,67 @@
+/**
+ * Speed never changes answers: the check runner on worker threads gives the same findings, in
+ * the same order, as the plain runner on this thread — on the demo feed and on both
+ * fault-planting generators (the recall/precision tests score the plain runner against the
+ * planted faults, so equality here carries their scores over to the fast path).
+ */
+import { describe, expect, it } from 'vitest';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { generateUniverse } from '../../fixtures/universe/generate.js';
+import { generateAltUniverse } from '../../fixtures/universe-alt/generate.js';
+import { runChecks } from '../../src/checks/run.js';
+import { runChecksInParallel, seriesRanges } from '../../src/checks/parallel.js';
+import { DEMO_AS_OF, DEMO_PREVIOUS_AS_OF, demoFiles } from '../../src/demo/scenario.js';
+import { loadFeed } from '../../src/ingest/feed.js';
+import { FeedProfileSchema } from '../../src/ingest/profile.js';
+
+describe('checks on worker threads', () => {
+  it('cut the series into disjoint ranges that cover every series once, in order', () => {
+    const universe = generateUniverse({ seed: 41, funds: 37, faultsPerKind: 0 });
+    for (const threads of [1, 2, 3, 7]) {
+      const ranges = seriesRanges(universe.nav, threads);
+      expect(ranges[0][0]).toBe(0);
+      expect(ranges[ranges.length - 1][1]).toBe(universe.nav.ids.length);
+      for (let r = 1; r < ranges.length; r++) expect(ranges[r][0]).toBe(ranges[r - 1][1]);
+      for (const [first, end] of ranges) expect(end).toBeGreaterThan(first);
+    }
+  });
+
+  it('find exactly what the plain runner finds on both generators', async () => {
+    const cases = [
+      { universe: generateUniverse({ seed: 2001 }), threads: 2 },
+      { universe: generateUniverse({ seed: 2002, tails: 4 }), threads: 3 },
+      { universe: generateAltUniverse({ seed: 3001 }), threads: 2 },
+    ];
+    for (const { universe, threads } of cases) {
+      const plain = runChecks(universe);
+      expect(plain.length).toBeGreaterThan(10); // the planted faults are there to be found
+      expect(await runChecksInParallel(universe, {}, { threads, minRows: 0 })).toEqual(plain);
+    }
+  });
+
+  it('apply per-category and per-series settings in the workers as on one thread', async () => {
+    const universe = generateUniverse({ seed: 2003 });
+    const someSeries = universe.nav.ids[5];
+    const settings = { run: { stale_value: { min_days: 4 } }, series: { [someSeries]: { missing_dates: { enabled: false } } } };
+    expect(await runChecksInParallel(universe, settings, { threads: 2, minRows: 0 })).toEqual(runChecks(universe, settings));
+  });
+
+  it('find exactly what the plain runner finds on the demo feed, with its previous snapshot', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'navassay-parallel-'));
+    for (const [name, text] of Object.entries(demoFiles())) writeFileSync(join(dir, name), text);
+    const indexVendor = FeedProfileSchema.parse({ columns: { benchmark_id: 'Index Code', date: 'Value Date', level: 'Close' }, delimiter: ';', decimal: ',', date_format: 'day-first' });
+    const at = (name: string) => join(dir, name);
+    const feed = await loadFeed(
+      { nav: at('nav.csv'), benchmarks: at('benchmarks.csv'), master: at('master.csv'), rates: at('rates.csv'), holidays: at('holidays.csv'), actions: at('actions.csv'), vendor: at('vendor-figures.csv') },
+      { profiles: { benchmarks: indexVendor } },
+    );
+    const previous = (await loadFeed({ nav: at('nav-previous.csv') })).nav;
+    expect(DEMO_PREVIOUS_AS_OF).toBeLessThan(DEMO_AS_OF);
+    const input = { ...feed, previous, asOf: DEMO_AS_OF };
+    const plain = runChecks(input);
+    expect(plain.some((f) => f.check === 'restated_value')).toBe(true); // the previous snapshot reached the workers' checks
+    expect(await runChecksInParallel(input, {}, { threads: 2, minRows: 0 })).toEqual(plain);
+  });
+});
