@@ -10,7 +10,8 @@
  *   node dist/bench/audit-bench.js --sizes 2000 --runs 1 --no-arrow --node-arg --cpu-prof
  *
  * Options: --sizes (series counts), --years, --runs, --no-arrow, --cache DIR (where the universe
- * is kept), --node-arg ARG (passed to node for the child), --child-arg ARG (passed to the child).
+ * is kept), --node-arg ARG (passed to node for the child), --child-arg ARG (passed to the child,
+ * e.g. `--child-arg --threads --child-arg 1`).
  *
  * The generated files are kept under bench/.cache/ (gitignored), so later runs do not regenerate.
  */
@@ -128,7 +129,7 @@ function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): 
   const rows = first.navRows;
   console.log(
     `\n${universe.size.series.toLocaleString('en')} series × ${universe.size.years}y from ${scenario.label.toUpperCase()}: ${rows.toLocaleString('en')} NAV rows, ${(scenario.inputBytes / 2 ** 20).toFixed(0)} MiB of input, ` +
-      `${first.rowsRead.toLocaleString('en')} rows read in all, ${first.findings.toLocaleString('en')} findings, ${first.figures.toLocaleString('en')} figures`,
+      `${first.rowsRead.toLocaleString('en')} rows read in all, ${first.findings.toLocaleString('en')} findings, ${first.figures.toLocaleString('en')} figures; ${first.threads} check thread${first.threads === 1 ? '' : 's'}`,
   );
   for (const note of first.skipped) console.log(`  skipped: ${note}`);
   const stageNames = Object.keys(first.stages).filter((s) => s !== 'total');
@@ -136,7 +137,8 @@ function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): 
     const seconds = results.map((r) => r.report.stages[name]);
     let rate = '';
     if (name === 'ingest') rate = `  ${(rows / median(seconds) / 1e6).toFixed(2)} M NAV rows/s, ${(scenario.inputBytes / median(seconds) / 1e6).toFixed(0)} MB/s (median)`;
-    console.log(`  ${name.padEnd(10)} median ${median(seconds).toFixed(2).padStart(7)} s   best ${best(seconds).toFixed(2).padStart(7)} s${rate}`);
+    const cpu = results.map((r) => r.report.cpu[name]);
+    console.log(`  ${name.padEnd(10)} median ${median(seconds).toFixed(2).padStart(7)} s   best ${best(seconds).toFixed(2).padStart(7)} s   CPU median ${median(cpu).toFixed(2).padStart(7)} s${rate}`);
   }
   const walls = results.map((r) => r.wall);
   const rss = results.map((r) => r.report.maxRssBytes / 2 ** 20);

@@ -6,11 +6,14 @@
  * project has that stage), store the snapshot, write the reports.
  *
  *   node dist/bench/audit-child.js CONFIG [--threads N]
+ *
+ * Each stage reports wall seconds and CPU seconds (user + system, every thread of the process):
+ * on a shared machine the CPU figure is the steadier one.
  */
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { lastMonthEndOnOrBefore } from '../src/calendar/days.js';
-import { runChecks } from '../src/checks/run.js';
+import { defaultThreads, runChecksInParallel } from '../src/checks/parallel.js';
 import { loadRunConfig } from '../src/config/run-config.js';
 import { loadFeed } from '../src/ingest/feed.js';
 import { computeMetrics } from '../src/metrics/compute.js';
@@ -24,6 +27,8 @@ import { storeSnapshot } from '../src/cli/snapshots.js';
 
 export interface ChildReport {
   readonly stages: Record<string, number>;
+  readonly cpu: Record<string, number>;
+  readonly threads: number;
   readonly skipped: string[];
   readonly navRows: number;
   readonly rowsRead: number;
@@ -36,18 +41,24 @@ const started = process.hrtime.bigint();
 const configPath = process.argv[2];
 const config = loadRunConfig(configPath);
 const asOf = parseAsOf(config.as_of);
+const threadsAt = process.argv.indexOf('--threads');
+const threads = threadsAt > 0 ? Number(process.argv[threadsAt + 1]) : (config.threads ?? defaultThreads());
 const stages: Record<string, number> = {};
+const cpu: Record<string, number> = {};
 const skipped: string[] = [];
 
 async function stage<T>(name: string, work: () => T | Promise<T>): Promise<T> {
   const t0 = process.hrtime.bigint();
+  const cpu0 = process.cpuUsage();
   const result = await work();
   stages[name] = Number(process.hrtime.bigint() - t0) / 1e9;
+  const used = process.cpuUsage(cpu0);
+  cpu[name] = (used.user + used.system) / 1e6;
   return result;
 }
 
 const feed = await stage('ingest', () => loadFeed(config.paths, loadOptionsOf(config)));
-const findings = await stage('checks', () => runChecks({ ...feed, asOf }, config.checks));
+const findings = await stage('checks', () => runChecksInParallel({ ...feed, asOf }, config.checks, { threads }));
 const check = checkAnswer(asOf, feed.rows, findings);
 const metrics = await stage('metrics', () =>
   computeMetrics({
@@ -71,9 +82,13 @@ await stage('reports', () => {
   writeQuarantine(join(config.output.dir, 'quarantine.csv'), feed.rejected);
 });
 stages.total = Number(process.hrtime.bigint() - started) / 1e9;
+const whole = process.cpuUsage();
+cpu.total = (whole.user + whole.system) / 1e6;
 
 const report: ChildReport = {
   stages,
+  cpu,
+  threads,
   skipped,
   navRows: feed.nav.dates.length,
   rowsRead: feed.rows.read,

@@ -16,6 +16,17 @@ export const failOnOption = () =>
     .default('error');
 export const asOfOption = (what: string) => new Option('--as-of <date>', `as-of date, YYYY-MM-DD (default: ${what})`);
 
+export const threadsOption = () =>
+  new Option('--threads <count>', "worker threads for the checks (default: the configuration's threads, else one per core, at most 8)");
+
+/** A positive whole number of threads, or undefined when the option is absent. */
+export function parseThreads(text: string | undefined): number | undefined {
+  if (text === undefined) return undefined;
+  const count = Number(text);
+  if (!Number.isInteger(count) || count < 1 || count > 64) throw new ConfigError(`--threads "${text}" is not a whole number from 1 to 64; give for example --threads 2.`);
+  return count;
+}
+
 export const profilesOption = () =>
   new Option('--config <file>', "read each file with the feed profile its kind has in this run configuration (and the configuration's weekend)");
 

@@ -58,6 +58,8 @@ export const RunConfigSchema = z
       .strict()
       .default({ dir: 'navassay-report', formats: ['json', 'html'] }),
     fail_on: z.enum(['info', 'warning', 'error', 'critical', 'none']).default('error'),
+    /** Worker threads for the checks; by default one per available core (at most 8). */
+    threads: z.number().int().min(1).max(64).optional(),
   })
   .strict();
 

@@ -1,7 +1,7 @@
 import { Command } from 'commander';
 import { join } from 'node:path';
 import { lastMonthEndOnOrBefore } from '../../calendar/days.js';
-import { runChecks } from '../../checks/run.js';
+import { runChecksInParallel } from '../../checks/parallel.js';
 import { loadRunConfig, type RunConfig } from '../../config/run-config.js';
 import type { Finding } from '../../findings.js';
 import { loadFeed, loadPreviousNav, type LoadedFeed } from '../../ingest/feed.js';
@@ -11,7 +11,7 @@ import { metricsView } from '../../report/metrics-answer.js';
 import { render, type OutputFormat } from '../../report/render.js';
 import { adjustForCorporateActions } from '../../series/adjust.js';
 import type { SeriesFrame } from '../../series/frame.js';
-import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn } from '../options.js';
+import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn, parseThreads, threadsOption } from '../options.js';
 import { emit, writeFileAtomically, writeQuarantine } from '../output.js';
 import { previousNavFromStore, storeSnapshot } from '../snapshots.js';
 
@@ -20,6 +20,7 @@ interface RunOptions {
   format?: string;
   out?: string;
   failOn?: string;
+  threads?: string;
 }
 
 export function runCommand(): Command {
@@ -30,6 +31,7 @@ export function runCommand(): Command {
     .addOption(formatOption())
     .addOption(outOption())
     .addOption(failOnOption().default(undefined))
+    .addOption(threadsOption())
     .action(async (configPath: string, options: RunOptions) => {
       process.exitCode = await runDailyJob(configPath, options);
     });
@@ -61,7 +63,8 @@ export async function executeRun(configPath: string, options: RunOptions): Promi
   const asOf = parseAsOf(options.asOf ?? config.as_of);
   const feed = await loadFeed(config.paths, loadOptionsOf(config));
   const previous = await previousNav(config, asOf);
-  const findings: Finding[] = runChecks({ ...feed, previous, asOf }, config.checks);
+  const threads = parseThreads(options.threads) ?? config.threads;
+  const findings: Finding[] = await runChecksInParallel({ ...feed, previous, asOf }, config.checks, { threads });
   const check = checkAnswer(asOf, feed.rows, findings);
   const metrics = feed.benchmarks && feed.master ? runMetrics(config, feed, asOf) : null;
   storeSnapshot(config, asOf, feed);
