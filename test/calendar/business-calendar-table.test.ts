@@ -19,7 +19,7 @@ describe('business calendar day tables', () => {
         fc.integer({ min: -50, max: 900 }),
         fc.array(fc.integer({ min: -30_000, max: 91_000 }), { maxLength: 30 }),
         fc.constantFrom(undefined, 'north', 'elsewhere'),
-        fc.constantFrom([6, 7], [5, 6], [7]),
+        fc.constantFrom<number[]>([6, 7], [5, 6], [7]),
         (from, length, holidays, calendar, weekend) => {
           const calendars = new BusinessCalendars(weekend);
           for (const day of holidays) calendars.addHoliday('north', day);

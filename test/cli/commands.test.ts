@@ -44,6 +44,9 @@ describe('exit statuses of interface.md', () => {
     const badDate = await runCli('check', '--nav', 'x.csv', '--as-of', '30/11/2026');
     expect(badDate.status).toBe(2);
     expect(badDate.stderr).toMatch(/--as-of "30\/11\/2026" is not a date; write it as YYYY-MM-DD/);
+    const badThreads = await runCli('run', 'navassay.yaml', '--threads', '0');
+    expect(badThreads.status).toBe(2);
+    expect(badThreads.stderr).toContain('--threads "0" is not a whole number from 1 to 64');
   });
 
   it('3 for a file that cannot be opened or has no usable header, in one sentence naming the file', async () => {

@@ -59,11 +59,12 @@ export async function runDailyJob(configPath: string, options: RunOptions): Prom
 }
 
 export async function executeRun(configPath: string, options: RunOptions): Promise<DailyRun> {
+  const threadsOption = parseThreads(options.threads); // a wrong command line fails before any file is read
   const config = loadRunConfig(configPath);
   const asOf = parseAsOf(options.asOf ?? config.as_of);
   const feed = await loadFeed(config.paths, loadOptionsOf(config));
   const previous = await previousNav(config, asOf);
-  const threads = parseThreads(options.threads) ?? config.threads;
+  const threads = threadsOption ?? config.threads;
   const findings: Finding[] = await runChecksInParallel({ ...feed, previous, asOf }, config.checks, { threads });
   const check = checkAnswer(asOf, feed.rows, findings);
   const metrics = feed.benchmarks && feed.master ? runMetrics(config, feed, asOf) : null;
