@@ -25,3 +25,22 @@ export class InputError extends NavassayError {
     super(message, 3);
   }
 }
+
+/** Longest piece of input an error message quotes; the rest is cut, so a message stays one readable sentence. */
+export const MESSAGE_QUOTE_LIMIT = 80;
+
+/**
+ * A piece of input as an error message shows it: JSON-quoted (so control characters are visible)
+ * and cut to MESSAGE_QUOTE_LIMIT characters with the full length said, never the whole of a
+ * 20 MB value.
+ */
+export function quoteInput(text: string, limit = MESSAGE_QUOTE_LIMIT): string {
+  if (text.length <= limit) return JSON.stringify(text);
+  return `${JSON.stringify(text.slice(0, limit))}… (${text.length} characters)`;
+}
+
+/** Like `quoteInput` without the quotes, for a decoder's own message inside ours. */
+export function cutInput(text: string, limit = MESSAGE_QUOTE_LIMIT * 2): string {
+  const line = text.split('\n')[0];
+  return line.length <= limit ? line : `${line.slice(0, limit)}…`;
+}
