@@ -90,7 +90,7 @@ function missingColumnError(
 
 /** The file's column names for an error message: the first few, each cut short, and how many there are. */
 export function shownColumnNames(names: readonly string[], count = 20): string {
-  const shown = names.slice(0, count).map((name) => quoteInput(name, 40)).join(', ');
+  const shown = names.slice(0, count).map((name) => (name.length > 40 ? `${name.slice(0, 40)}…` : name)).join(', ');
   return names.length > count ? `${shown} and ${names.length - count} more` : shown;
 }
 

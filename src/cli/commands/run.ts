@@ -14,7 +14,7 @@ import { adjustForCorporateActions } from '../../series/adjust.js';
 import type { SeriesFrame } from '../../series/frame.js';
 import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn } from '../options.js';
 import { emit, writeFileAtomically, writeQuarantine } from '../output.js';
-import { previousNavFromStore, storeSnapshot } from '../snapshots.js';
+import { previousNavFromStore, storeSnapshot, type SkippedSnapshot } from '../snapshots.js';
 
 interface RunOptions {
   asOf?: string;
@@ -62,17 +62,19 @@ export async function executeRun(configPath: string, options: RunOptions): Promi
   if (options.out !== undefined) checkOutputsApart('--out', runInputs(config), [{ key: '--out', path: options.out }]);
   const asOf = parseAsOf(options.asOf ?? config.as_of);
   const feed = await loadFeed(config.paths, loadOptionsOf(config, asOf));
-  const previous = await previousNav(config, asOf);
+  const { nav: previous, skipped } = await previousNav(config, asOf);
   const findings: Finding[] = runChecks({ ...feed, previous, asOf }, config.checks);
-  const check = checkAnswer(asOf, feed.rows, findings);
+  const check = { ...checkAnswer(asOf, feed.rows, findings), ...(skipped.length > 0 ? { skipped_snapshots: skipped } : {}) };
   const metrics = feed.benchmarks && feed.master ? runMetrics(config, feed, asOf) : null;
   storeSnapshot(config, asOf, feed);
   const reportFiles = writeReports(config, check, metrics, feed);
   return { config, asOf, feed, check, metrics, reportFiles };
 }
 
-async function previousNav(config: RunConfig, asOf: number): Promise<SeriesFrame | undefined> {
-  if (config.previous !== undefined) return loadPreviousNav(config.previous, config.profiles.nav, loadOptionsOf(config, asOf).limits);
+async function previousNav(config: RunConfig, asOf: number): Promise<{ nav: SeriesFrame | undefined; skipped: SkippedSnapshot[] }> {
+  if (config.previous !== undefined) {
+    return { nav: await loadPreviousNav(config.previous, config.profiles.nav, loadOptionsOf(config, asOf).limits), skipped: [] };
+  }
   return previousNavFromStore(config, asOf);
 }
 
