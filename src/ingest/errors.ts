@@ -30,13 +30,18 @@ export class InputError extends NavassayError {
 export const MESSAGE_QUOTE_LIMIT = 80;
 
 /**
- * A piece of input as an error message shows it: JSON-quoted (so control characters are visible)
+ * A piece of input as an error message shows it: in quotes, control and invisible characters as `\uXXXX`,
  * and cut to MESSAGE_QUOTE_LIMIT characters with the full length said, never the whole of a
  * 20 MB value.
  */
 export function quoteInput(text: string, limit = MESSAGE_QUOTE_LIMIT): string {
-  if (text.length <= limit) return JSON.stringify(text);
-  return `${JSON.stringify(text.slice(0, limit))}… (${text.length} characters)`;
+  if (text.length <= limit) return `"${visible(text)}"`;
+  return `"${visible(text.slice(0, limit))}…" (${text.length} characters)`;
+}
+
+/** Control, invisible and replacement characters written as `\uXXXX`, so a message shows them. */
+function visible(text: string): string {
+  return text.replace(/[\p{Cc}\p{Cf}\uFFFD]/gu, (c) => `\\u${c.charCodeAt(0).toString(16).toUpperCase().padStart(4, '0')}`);
 }
 
 /** Like `quoteInput` without the quotes, for a decoder's own message inside ours. */
