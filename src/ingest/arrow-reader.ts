@@ -1,6 +1,6 @@
 import { DataType, makeVector, tableFromIPC, TimeUnit, util, type Data, type Table, type Vector } from 'apache-arrow';
 import { ingestColumnarFile, TextDictionaryBuilder, type SourceColumn } from './columnar-ingest.js';
-import { validateArrowTable } from './arrow-validate.js';
+import { checkFooterCoversFile, validateArrowTable } from './arrow-validate.js';
 import { cutInput, InputError } from './errors.js';
 import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import type { FeedProfile } from './profile.js';
@@ -38,8 +38,11 @@ export function readArrowBuffer(
 
 function openArrowTable(bytes: Uint8Array, fileName: string): Table {
   try {
-    return tableFromIPC(bytes);
+    const table = tableFromIPC(bytes);
+    checkFooterCoversFile(bytes, fileName);
+    return table;
   } catch (error) {
+    if (error instanceof InputError) throw error;
     throw new InputError(
       `${fileName} cannot be read as an Arrow IPC file (${cutInput(String((error as Error)?.message ?? error))}); check that it is an uncompressed Arrow file or stream, or export it as CSV or Parquet.`,
     );

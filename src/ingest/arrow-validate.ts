@@ -1,4 +1,4 @@
-import { DataType, type Data, type Table } from 'apache-arrow';
+import { DataType, RecordBatchReader, type Data, type Table } from 'apache-arrow';
 import { InputError } from './errors.js';
 
 /**
@@ -21,6 +21,49 @@ export function validateArrowTable(table: Table, fileName: string, maxColumns: n
     }
     for (const data of vector.data) checkData(data, fileName, field.name, 0);
   }
+}
+
+const MAGIC = 'ARROW1';
+/** Bytes allowed between the last block a footer lists and the footer: the end-of-stream marker and padding. */
+const FOOTER_SLACK = 16;
+
+/**
+ * In the Arrow file format the footer lists every dictionary and record batch. A damaged footer
+ * can list none of them, and the file then reads as zero rows without a word; so the blocks the
+ * footer lists must reach up to the footer itself.
+ */
+export function checkFooterCoversFile(bytes: Uint8Array, fileName: string): void {
+  if (bytes.length < 18 || textAt(bytes, 0) !== MAGIC || textAt(bytes, bytes.length - 6) !== MAGIC) return;
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const footerStart = bytes.length - 10 - view.getInt32(bytes.length - 10, true);
+  const reader = RecordBatchReader.from(bytes);
+  reader.open();
+  const footer = (reader as unknown as { footer?: FooterBlocks })?.footer ?? (reader as unknown as { _impl?: { _footer?: FooterBlocks } })._impl?._footer;
+  if (!footer) return;
+  let end = schemaEnd(view);
+  for (const block of [...footer.dictionaryBatches(), ...footer.recordBatches()]) {
+    end = Math.max(end, Number(block.offset) + block.metaDataLength + Number(block.bodyLength));
+  }
+  if (footerStart - end > FOOTER_SLACK) {
+    throw new InputError(
+      `${fileName} is a damaged Arrow file: ${footerStart - end} bytes before its footer belong to no block the footer lists, so its data cannot be trusted; export the file again.`,
+    );
+  }
+}
+
+interface FooterBlocks {
+  dictionaryBatches(): Iterable<{ offset: number | bigint; metaDataLength: number; bodyLength: number | bigint }>;
+  recordBatches(): Iterable<{ offset: number | bigint; metaDataLength: number; bodyLength: number | bigint }>;
+}
+
+/** Where the schema message after the leading magic ends (with or without the continuation marker). */
+function schemaEnd(view: DataView): number {
+  const first = view.getInt32(8, true);
+  return first === -1 ? 16 + view.getInt32(12, true) : 12 + first;
+}
+
+function textAt(bytes: Uint8Array, at: number): string {
+  return String.fromCharCode(...bytes.subarray(at, at + MAGIC.length));
 }
 
 const MAX_NESTING = 32;

@@ -17,6 +17,8 @@ export const LIMIT_DEFAULTS = {
   yaml_max_aliases: 100,
   /** Deepest nesting of a configuration's YAML collections. */
   yaml_max_depth: 64,
+  /** Time an Arrow file may take to decode in the watchdog worker (ms) before it is refused as damaged. */
+  decode_timeout_ms: 10_000,
   /** Earliest date a fund-data row may carry. */
   earliest_date: '1900-01-01',
 } as const;
@@ -33,6 +35,7 @@ export const LimitsSchema = z
     max_header_columns: z.number().int().min(1).default(LIMIT_DEFAULTS.max_header_columns),
     yaml_max_aliases: z.number().int().min(0).default(LIMIT_DEFAULTS.yaml_max_aliases),
     yaml_max_depth: z.number().int().min(2).default(LIMIT_DEFAULTS.yaml_max_depth),
+    decode_timeout_ms: z.number().int().min(100).default(LIMIT_DEFAULTS.decode_timeout_ms),
     earliest_date: isoDate.default(LIMIT_DEFAULTS.earliest_date),
     /** Latest date a row may carry; by default the as-of date plus one year. */
     latest_date: isoDate.optional(),
@@ -46,6 +49,7 @@ export interface ReadLimits {
   readonly maxInputBytes: number;
   readonly maxFieldBytes: number;
   readonly maxHeaderColumns: number;
+  readonly decodeTimeoutMs: number;
   /** Epoch days of the first and last plausible date, both included. */
   readonly firstDay: number;
   readonly lastDay: number;
@@ -57,6 +61,7 @@ export function readLimits(file: Partial<LimitsFile> = {}, asOf: number = todayE
     maxInputBytes: file.max_input_bytes ?? LIMIT_DEFAULTS.max_input_bytes,
     maxFieldBytes: file.max_field_bytes ?? LIMIT_DEFAULTS.max_field_bytes,
     maxHeaderColumns: file.max_header_columns ?? LIMIT_DEFAULTS.max_header_columns,
+    decodeTimeoutMs: file.decode_timeout_ms ?? LIMIT_DEFAULTS.decode_timeout_ms,
     firstDay: parseIsoDate(file.earliest_date ?? LIMIT_DEFAULTS.earliest_date)!,
     lastDay: file.latest_date === undefined ? oneYearAfter(asOf) : parseIsoDate(file.latest_date)!,
   };

@@ -1,5 +1,6 @@
 import { extname } from 'node:path';
 import { readArrowBuffer } from './arrow-reader.js';
+import { decodeArrowUnderWatchdog } from './arrow-watchdog.js';
 import { readCsvBuffer } from './csv-reader.js';
 import { cutInput, InputError, NavassayError } from './errors.js';
 import { readInputFile } from './input-file.js';
@@ -33,6 +34,7 @@ export async function readFeedFile(
       case 'csv':
         return readCsvBuffer(bytes, path, kind, profile, limits);
       case 'arrow':
+        await decodeArrowUnderWatchdog(bytes, path, limits.decodeTimeoutMs);
         return readArrowBuffer(bytes, path, kind, profile, limits);
       case 'parquet':
         return await readParquetBuffer(bytes, path, kind, profile, limits);
