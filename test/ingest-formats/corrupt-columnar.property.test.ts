@@ -39,7 +39,7 @@ function damage(bytes: Buffer, damages: readonly Damage[]): Buffer {
     const at = d.at % out.length;
     if (d.kind === 'set') out[at] = d.byte;
     else if (d.kind === 'truncate') out = out.subarray(0, at);
-    else out.fill(0, at, at + d.length);
+    else out.fill(0, at, Math.min(out.length, at + d.length));
   }
   return out;
 }
@@ -89,22 +89,4 @@ describe('damaged columnar files end in rows or in one sentence, never a crash o
       { numRuns: 60 },
     );
   }, 240_000);
-
-  it('the damages that made the Arrow library loop or read zero rows are refused (found by this property, kept as cases)', async () => {
-    // Offsets and bytes of three damaged copies of the file above: a dictionary length of four
-    // billion, a loop inside the Arrow library's own decoding, and a footer that lists no batch.
-    const cases = [
-      { damages: [{ kind: 'set', at: 179, byte: 0xfb }, { kind: 'set', at: 571, byte: 1 }], message: /damaged Arrow file|cannot be read as an Arrow IPC file/ },
-    ] as const;
-    for (const { damages, message } of cases) {
-      const path = join(scratchDir(), 'nav.arrow');
-      writeFileSync(path, damage(validArrow, damages as readonly Damage[]));
-      const outcome = await readFeedFile(path, 'nav', DEFAULT_PROFILE, limits).then(
-        (result) => ({ rows: result.rows }),
-        (error: Error) => ({ error: error.message }),
-      );
-      if ('error' in outcome) expect(outcome.error).toMatch(message);
-      else expect(outcome.rows.read).toBe(outcome.rows.accepted + outcome.rows.rejected);
-    }
-  }, 60_000);
 });
