@@ -1,6 +1,7 @@
 import { realpathSync, statSync } from 'node:fs';
 import { isAbsolute, join, relative, resolve } from 'node:path';
 import { ConfigError } from '../ingest/errors.js';
+import { onPseudoFileSystem } from '../ingest/input-file.js';
 import type { OutputFormat } from '../report/render.js';
 
 /**
@@ -46,6 +47,11 @@ export function checkOutputsApart(
   outputs: readonly NamedPath[],
   replacedDirs: readonly NamedPath[] = [],
 ): void {
+  for (const output of [...outputs, ...replacedDirs]) {
+    if (onPseudoFileSystem(output.path)) {
+      throw new ConfigError(`${where}: ${output.key} (${output.path}) is on a system pseudo file system (/proc, /sys or /dev); point it at an ordinary directory.`);
+    }
+  }
   for (const output of outputs) {
     for (const input of inputs) {
       if (sameFile(output.path, input.path)) {

@@ -1,4 +1,5 @@
 import { closeSync, constants, fstatSync, openSync, readSync, realpathSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
 import { InputError } from './errors.js';
 
 /**
@@ -41,14 +42,23 @@ function openInput(path: string, what: string): number {
   }
 }
 
-function onPseudoFileSystem(path: string): boolean {
-  let real: string;
-  try {
-    real = realpathSync(path);
-  } catch {
-    return false;
+/**
+ * True when a path, or the nearest part of it that exists, lies under /proc, /sys or /dev. Such
+ * a place is never read as an input nor written as a store or report: Node's recursive mkdir
+ * loops forever under /proc, and its files report sizes that are not what reading gives.
+ */
+export function onPseudoFileSystem(path: string): boolean {
+  let current = resolve(path);
+  for (;;) {
+    try {
+      const real = realpathSync(current);
+      return PSEUDO_FILE_SYSTEMS.some((prefix) => `${real}/`.startsWith(prefix));
+    } catch {
+      const parent = dirname(current);
+      if (parent === current) return false;
+      current = parent;
+    }
   }
-  return PSEUDO_FILE_SYSTEMS.some((prefix) => real.startsWith(prefix));
 }
 
 function kindOf(stat: { isDirectory(): boolean; isFIFO(): boolean; isCharacterDevice(): boolean; isBlockDevice(): boolean; isSocket(): boolean }): string {

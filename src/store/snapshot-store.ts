@@ -4,6 +4,7 @@ import { join } from 'node:path';
 import { parseIsoDate } from '../calendar/days.js';
 import { arrowIpcToCanonical, canonicalToArrowIpc } from '../ingest/arrow-table.js';
 import { ConfigError, cutInput, InputError, NavassayError } from '../ingest/errors.js';
+import { onPseudoFileSystem } from '../ingest/input-file.js';
 import type { RejectedRow } from '../ingest/records.js';
 import type { FileKind } from '../ingest/schema.js';
 import type { CanonicalTable, IngestResult } from '../ingest/table.js';
@@ -88,6 +89,9 @@ export function writeSnapshot(storeDir: string, input: SnapshotInput, options: W
   checkAsOf(input.asOf);
   const sourceOf = matchSources(input);
   const feedDir = join(storeDir, input.feed);
+  if (onPseudoFileSystem(storeDir)) {
+    throw new ConfigError(`The store ${storeDir} is on a system pseudo file system (/proc, /sys or /dev); point store at an ordinary directory.`);
+  }
   storeStep(storeDir, () => mkdirSync(feedDir, { recursive: true }));
   const lock = lockFeed(feedDir, options.lockWaitMs ?? DEFAULT_LOCK_WAIT_MS);
   try {
