@@ -2,7 +2,7 @@ import { formatIsoDate } from '../calendar/days.js';
 import { InputError, quoteInput } from './errors.js';
 import { DateOrderEvidence } from './date-order.js';
 import { cleanIdentifier, type IdentifierMode } from './identifiers.js';
-import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
+import { DEFAULT_READ_LIMITS, limitsForKind, type ReadLimits } from './limits.js';
 import type { DateFormat, FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
 import { numberStyle, parseBooleanWord, parseDateText, parseNumberText, type NumberStyle } from './scalars.js';
@@ -99,8 +99,9 @@ export function ingestColumnarFile(
   file: ColumnarFile,
   kind: FileKind,
   profile: FeedProfile,
-  limits: ReadLimits = DEFAULT_READ_LIMITS,
+  allLimits: ReadLimits = DEFAULT_READ_LIMITS,
 ): IngestResult {
+  const limits = limitsForKind(kind, allLimits);
   const found = matchColumns(file.fileName, file.columnNames, kind, profile).map(({ spec, sourceName }): FoundColumn => {
     const source = file.readColumn(sourceName);
     const converted = toCanonicalColumn(spec, source, profile, { fileName: file.fileName, sourceName });

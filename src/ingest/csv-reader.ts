@@ -5,7 +5,7 @@ import { resolveDateFormat } from './date-order.js';
 import { InputError, quoteInput } from './errors.js';
 import { cleanIdentifier, type IdentifierMode } from './identifiers.js';
 import { readInputFile } from './input-file.js';
-import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
+import { DEFAULT_READ_LIMITS, limitsForKind, type ReadLimits } from './limits.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
 import { INVALID_DAY, isoDateAt, parseBooleanWord, parseNumberInto, parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
@@ -50,8 +50,9 @@ export function readCsvBuffer(
   fileName: string,
   kind: FileKind,
   profile: FeedProfile,
-  limits: ReadLimits = DEFAULT_READ_LIMITS,
+  allLimits: ReadLimits = DEFAULT_READ_LIMITS,
 ): IngestResult {
+  const limits = limitsForKind(kind, allLimits);
   const bytes = Buffer.from(input.buffer, input.byteOffset, input.byteLength);
   const begin = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
   const quote = profile.quote.charCodeAt(0);

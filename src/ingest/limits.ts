@@ -75,6 +75,14 @@ export function oneYearAfter(day: number): number {
 
 export const DEFAULT_READ_LIMITS: ReadLimits = readLimits();
 
+/**
+ * The limits as one file kind applies them. A holiday calendar is published years ahead, so a
+ * holidays file keeps only the lower bound of the plausible range; every other kind keeps both.
+ */
+export function limitsForKind(kind: string, limits: ReadLimits): ReadLimits {
+  return kind === 'holidays' ? { ...limits, lastDay: 2147483647 } : limits;
+}
+
 /** Size of the largest run configuration read; it cannot be raised from inside the file it limits. */
 export const DEFAULT_MAX_CONFIG_BYTES = 1024 * 1024;
 export const MAX_CONFIG_BYTES_VARIABLE = 'NAVASSAY_MAX_CONFIG_BYTES';

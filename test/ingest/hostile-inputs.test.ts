@@ -160,3 +160,12 @@ describe('readFeedFile', () => {
     await expect(readFeedFile(join(dir, 'nav.csv'), 'nav', FeedProfileSchema.parse({}))).rejects.toMatchObject({ exitCode: 3 });
   });
 });
+
+describe('holiday calendars are published ahead', () => {
+  it('a holidays file keeps only the lower bound of the plausible range', () => {
+    const limits = readLimits({}, epochDay(2026, 10, 14));
+    const result = readText('calendar,date\nXCAL,2028-12-25\nXCAL,1899-12-25\n', 'holidays', {}, limits);
+    expect(result.rows).toEqual({ read: 2, accepted: 1, rejected: 1 });
+    expect(result.rejected[0].reason).toContain('1899-12-25 is outside the plausible range');
+  });
+});
