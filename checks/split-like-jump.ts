@@ -1,7 +1,8 @@
 import type { SeriesCheck, SeriesContext } from '../src/checks/check.js';
 import type { CorporateActionRecord } from '../src/ingest/records.js';
 import type { SeriesSlice } from '../src/series/frame.js';
-import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { movesOf } from '../src/checks/move-analysis.js';
+import type { ResidualMoves } from '../src/checks/residual-moves.js';
 import { isoDate, makeFinding, round } from '../src/checks/support.js';
 
 export interface SplitParams {
@@ -30,8 +31,9 @@ export const splitLikeJump: SeriesCheck<SplitParams> = {
   scope: 'series',
   purpose: 'A one-day move by a simple ratio (2, 10, 100 … or inverses) that persists and the benchmark did not make.',
   defaults: SPLIT_DEFAULTS,
+  readsMoves: true,
   run(series, context, params) {
-    const returns = seriesReturns(series, context);
+    const returns = movesOf(series, context).model;
     const findings = [];
     for (let k = 0; k < returns.count; k++) {
       const ratio = splitLikeRatio(returns, k, params);
@@ -42,7 +44,7 @@ export const splitLikeJump: SeriesCheck<SplitParams> = {
 };
 
 /** The simple ratio step `k` resembles, or null when it is not a persisting split-like jump. */
-export function splitLikeRatio(returns: SeriesReturns, k: number, params: SplitParams): number | null {
+export function splitLikeRatio(returns: ResidualMoves, k: number, params: SplitParams): number | null {
   const bench = returns.bench[k];
   const market = Number.isFinite(bench) && Math.abs(bench) < PLAUSIBLE_BENCHMARK_DAY ? returns.beta * bench : 0;
   const ratio = nearestSimpleRatio(returns.raw[k] - market, params.ratio_tolerance);
@@ -52,7 +54,7 @@ export function splitLikeRatio(returns: SeriesReturns, k: number, params: SplitP
 }
 
 /** The step brings the level back to where it was before the previous step: the end of a spike. */
-function undoesPrevious(returns: SeriesReturns, k: number): boolean {
+function undoesPrevious(returns: ResidualMoves, k: number): boolean {
   return k > 0 && returns.to[k - 1] === returns.from[k] && Math.abs(returns.raw[k - 1] + returns.raw[k]) < Math.abs(returns.raw[k]) / 2;
 }
 
@@ -66,7 +68,7 @@ function nearestSimpleRatio(logMove: number, tolerance: number): number | null {
 }
 
 /** The level stays nearer the new level than the old one for the next `days` steps. */
-function persists(returns: SeriesReturns, k: number, jump: number, days: number): boolean {
+function persists(returns: ResidualMoves, k: number, jump: number, days: number): boolean {
   let cumulative = 0;
   for (let j = k; j < Math.min(returns.count, k + 1 + days); j++) {
     cumulative += returns.raw[j];
@@ -75,7 +77,7 @@ function persists(returns: SeriesReturns, k: number, jump: number, days: number)
   return true;
 }
 
-function describe(series: SeriesSlice, context: SeriesContext, returns: SeriesReturns, k: number, ratio: number, params: SplitParams) {
+function describe(series: SeriesSlice, context: SeriesContext, returns: ResidualMoves, k: number, ratio: number, params: SplitParams) {
   const before = returns.from[k];
   const after = returns.to[k];
   const actions = context.actions.filter((a) => a.ex_date > series.dates[before] && a.ex_date <= series.dates[after]);

@@ -1,7 +1,7 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
-import { seriesReturns } from '../src/checks/returns.js';
+import { movesOf } from '../src/checks/move-analysis.js';
 import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
@@ -27,6 +27,7 @@ export const staleValue: SeriesCheck<StaleParams> = {
   scope: 'series',
   purpose: 'The same NAV repeated on several consecutive business days.',
   defaults: { min_days: 3, max_chance: 0.01, accrual_max_daily: 0.0005 },
+  readsMoves: true,
   run(series, context, params) {
     if (context.master?.stable_value) return [];
     const rows = firstRowOfEachDate(series, context.asOf).filter((i) => series.values[i] > 0);
@@ -142,7 +143,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const changes = new Float64Array(n - 1);
   for (let k = 1; k < n; k++) changes[k - 1] = Math.log(series.values[rows[k]] / series.values[rows[k - 1]]);
   const alone = robustScale(changes, 0);
-  const returns = seriesReturns(series, context);
+  const returns = movesOf(series, context).model;
   const fitted = returns.hasBenchmark && returns.count >= 20 && returns.scale > 0;
   const benchmark = context.benchmark;
   const calendar = calendarOf(context);
