@@ -78,8 +78,13 @@ function fractionalBand(returns: ResidualMoves, k: number, tolerance: number): n
   // The step's own standard unit: the fit's residual scale, or the series' own spread on a
   // step the benchmark cannot price.
   const spread = 3 * Math.abs(returns.residual[k] / returns.z[k]);
-  return Math.min(Math.log(1 + tolerance), spread);
+  // Even a perfect tracker's split leaves a few basis points: the NAV's rounding and the
+  // estimated beta times the benchmark's day.
+  return Math.min(Math.log(1 + tolerance), Math.max(MIN_FRACTIONAL_BAND, spread));
 }
+
+/** 0.2 % in log terms: the narrowest band a fractional ratio is matched within. */
+const MIN_FRACTIONAL_BAND = 0.002;
 
 const LOG_FRACTIONAL = FRACTIONAL_RATIOS.map(Math.log);
 

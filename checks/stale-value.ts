@@ -100,46 +100,16 @@ function runChance(model: ChanceModel | undefined, at: number, length: number, o
     if (j >= at) observed--;
   }
   const factor = Math.max(1, (observed + 1) / (expected + 1));
+  // The series' plain repeat rate is a floor: when its values sit on a grid the tick estimate
+  // does not see (a 2-decimal NAV rescaled by a distribution), the model's shape is wrong too.
+  let pairs = 0;
+  for (let j = 0; j < model.counted.length; j++) if (model.counted[j] && (j < at - 1 || j >= at + length - 1)) pairs++;
+  const plain = pairs > 0 ? observed / pairs : 0;
   let logChance = 0;
-  for (let j = at; j < at + length - 1; j++) logChance += Math.log(Math.min(1, Math.max(alikeRepeatShare(model, j, at - 1, at + length - 1), factor * model.chance[j])));
+  for (let j = at; j < at + length - 1; j++) logChance += Math.log(Math.min(1, Math.max(plain, factor * model.chance[j])));
   const perStep = Math.exp(logChance / (length - 1));
   const required = perStep >= 1 ? Infinity : Math.ceil(Math.log(params.max_chance / observations) / Math.log(perStep)) + 1;
   return { chance: Math.exp(logChance), required };
-}
-
-/** Steps of the series' own history that a run's step is compared with (see `alikeRepeatShare`). */
-const ALIKE_STEPS = 40;
-
-/**
- * The floor of a step's chance: how often the series repeated on the `ALIKE_STEPS` other days
- * the model rated most alike (nearest in modelled chance, outside the steps from `skipFrom` to
- * `skipTo` − 1, the run judged and the step into it). When the series' values sit on a grid
- * the tick estimate does not see (a 2-decimal NAV rescaled by a distribution), it repeats even
- * on days the model calls unlikely, and this floor says so; an honest 2-decimal fund repeats
- * often on days its benchmark barely moved and almost never on days it implied several ticks
- * of move, so a repeat on such a day is judged by the benchmark, not by the fund's overall
- * repeat rate.
- */
-function alikeRepeatShare(model: ChanceModel, j: number, skipFrom: number, skipTo: number): number {
-  const order = model.byChance;
-  const target = model.chance[j];
-  // First position whose chance is ≥ the step's own, then widen both ways, nearest first.
-  let lo = 0, hi = order.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >>> 1;
-    if (model.chance[order[mid]] < target) lo = mid + 1;
-    else hi = mid;
-  }
-  let left = lo - 1, right = lo, taken = 0, repeats = 0;
-  const distance = (k: number) => Math.abs(Math.log((model.chance[order[k]] + 1e-300) / (target + 1e-300)));
-  while (taken < ALIKE_STEPS && (left >= 0 || right < order.length)) {
-    const useLeft = right >= order.length || (left >= 0 && distance(left) <= distance(right));
-    const step = order[useLeft ? left-- : right++];
-    if (step >= skipFrom && step < skipTo) continue;
-    taken++;
-    repeats += model.repeated[step];
-  }
-  return taken > 0 ? repeats / taken : 0;
 }
 
 /** Runs of this many equal values or more are left out when measuring how often a series repeats by rounding. */
@@ -163,10 +133,6 @@ interface ChanceModel {
   readonly expected: number;
   /** Steps counted in `observed` and `expected` (outside suspect runs). */
   readonly counted: Uint8Array;
-  /** 1 for a counted step that repeats the value. */
-  readonly repeated: Uint8Array;
-  /** The counted steps, by ascending chance. */
-  readonly byChance: Int32Array;
 }
 
 function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], context: SeriesContext, params: StaleParams): ChanceModel | undefined {
@@ -209,7 +175,6 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
     chance[k] = sameBinChance(level * mean, level * sd, tickOf(k));
   }
   const counted = new Uint8Array(n - 1);
-  const repeated = new Uint8Array(n - 1);
   let observed = 0;
   let expected = 0;
   let position = 0;
@@ -220,7 +185,6 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
     for (let j = position; j < position + run.length - 1; j++) {
       if (suspect) continue;
       counted[j] = 1;
-      repeated[j] = 1;
       observed++;
       expected += chance[j];
     }
@@ -231,10 +195,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
     }
     position += run.length;
   }
-  const steps: number[] = [];
-  for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
-  const byChance = Int32Array.from(steps.sort((a, b) => chance[a] - chance[b]));
-  return { chance, observed, expected, counted, repeated, byChance };
+  return { chance, observed, expected, counted };
 }
 
 /**
