@@ -36,6 +36,7 @@ export const staleValue: SeriesCheck<StaleParams> = {
     const model = chanceModel(series, rows, runs, context, params);
     const calendar = calendarOf(context);
     const judged: Array<{ run: number[]; days: number; chance: number; required: number }> = [];
+    const shiftStarts = shiftStartDays(series, context);
     let position = 0;
     for (const run of runs) {
       const at = position;
@@ -43,6 +44,8 @@ export const staleValue: SeriesCheck<StaleParams> = {
       if (run.length < 2) continue;
       const days = context.calendars.businessDayDistance(calendar, series.dates[run[0]], series.dates[run[run.length - 1]]) + 1;
       if (days < params.min_days) continue;
+      // Stamping a day late from some date on repeats that date's value once: the shift is the cause.
+      if (shiftStarts.some((day) => Math.abs(day - series.dates[run[run.length - 1]]) <= 7)) continue;
       const { chance, required } = runChance(model, at, run.length, rows.length, params);
       if (rows.length * chance > params.max_chance) continue;
       judged.push({ run, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
@@ -73,6 +76,12 @@ export const staleValue: SeriesCheck<StaleParams> = {
   },
 };
 
+/** Dates where a span the run's date_shift finds shifted begins. */
+function shiftStartDays(series: SeriesSlice, context: SeriesContext): number[] {
+  const moves = context.moves;
+  return moves ? moves.shifts.map((shift) => series.dates[moves.model.from[shift.firstStep]]) : [];
+}
+
 function equalValueRuns(series: SeriesSlice, rows: number[]): number[][] {
   const runs: number[][] = [];
   for (const row of rows) {
@@ -100,16 +109,47 @@ function runChance(model: ChanceModel | undefined, at: number, length: number, o
     if (j >= at) observed--;
   }
   const factor = Math.max(1, (observed + 1) / (expected + 1));
-  // The series' plain repeat rate is a floor: when its values sit on a grid the tick estimate
-  // does not see (a 2-decimal NAV rescaled by a distribution), the model's shape is wrong too.
-  let pairs = 0;
-  for (let j = 0; j < model.counted.length; j++) if (model.counted[j] && (j < at - 1 || j >= at + length - 1)) pairs++;
-  const plain = pairs > 0 ? observed / pairs : 0;
   let logChance = 0;
-  for (let j = at; j < at + length - 1; j++) logChance += Math.log(Math.min(1, Math.max(plain, factor * model.chance[j])));
+  for (let j = at; j < at + length - 1; j++) logChance += Math.log(Math.min(1, Math.max(alikeRepeatShare(model, j, at - 1, at + length - 1), factor * model.chance[j])));
   const perStep = Math.exp(logChance / (length - 1));
   const required = perStep >= 1 ? Infinity : Math.ceil(Math.log(params.max_chance / observations) / Math.log(perStep)) + 1;
   return { chance: Math.exp(logChance), required };
+}
+
+/** Steps of the series' own history that a run's step is compared with (see `alikeRepeatShare`). */
+const ALIKE_STEPS = 40;
+
+/**
+ * The floor of a step's chance: how often the series repeated on the `ALIKE_STEPS` other days
+ * the model rated most alike (nearest in modelled chance, outside the steps from `skipFrom` to
+ * `skipTo` − 1, the run judged and the step into it). When the series' values sit on a grid
+ * the tick estimate does not see (a 2-decimal NAV rescaled by a distribution), it repeats even
+ * on days the model calls unlikely, and this floor says so; an honest 2-decimal fund repeats
+ * often on days its benchmark barely moved and almost never on days it implied several ticks
+ * of move, so a repeat on such a day is judged by the benchmark, not by the fund's overall
+ * repeat rate.
+ */
+function alikeRepeatShare(model: ChanceModel, j: number, skipFrom: number, skipTo: number): number {
+  const order = model.byChance;
+  const target = model.chance[j];
+  // First position whose chance is ≥ the step's own, then widen both ways, nearest first.
+  let lo = 0, hi = order.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (model.chance[order[mid]] < target) lo = mid + 1;
+    else hi = mid;
+  }
+  let left = lo - 1, right = lo, taken = 0, repeats = 0;
+  const distance = (k: number) => Math.abs(Math.log((model.chance[order[k]] + 1e-300) / (target + 1e-300)));
+  while (taken < ALIKE_STEPS && (left >= 0 || right < order.length)) {
+    const useLeft = right >= order.length || (left >= 0 && distance(left) <= distance(right));
+    const step = order[useLeft ? left-- : right++];
+    if (step >= skipFrom && step < skipTo) continue;
+    taken++;
+    repeats += model.repeated[step];
+  }
+  // One coincidence among the alike days is not evidence of a hidden grid; two or more are.
+  return taken > 0 && repeats >= 2 ? repeats / taken : 0;
 }
 
 /** Runs of this many equal values or more are left out when measuring how often a series repeats by rounding. */
@@ -117,6 +157,9 @@ const SUSPECT_RUN = 4;
 
 /** Observations on each side of a run whose values give the printed tick near it. */
 const TICK_WINDOW = 32;
+
+/** Observations on each side of a step whose values give the grid right around it. */
+const NEAR_TICK = 8;
 
 /**
  * The chance model of a series: for each step between consecutive observations, the chance
@@ -133,6 +176,10 @@ interface ChanceModel {
   readonly expected: number;
   /** Steps counted in `observed` and `expected` (outside suspect runs). */
   readonly counted: Uint8Array;
+  /** 1 for a counted step that repeats the value. */
+  readonly repeated: Uint8Array;
+  /** The counted steps, by ascending chance. */
+  readonly byChance: Int32Array;
 }
 
 function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], context: SeriesContext, params: StaleParams): ChanceModel | undefined {
@@ -148,6 +195,9 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const benchmark = context.benchmark;
   const calendar = calendarOf(context);
   const tickOf = blockTicks(series, rows);
+  // The grid right around a step: a 2-decimal stretch next to values re-rounded to 4 decimals
+  // (after a mispricing or a rescaling) keeps its own coarser tick.
+  const nearTick = (k: number) => printedTick(series, rows, Math.max(0, k - NEAR_TICK), Math.min(rows.length, k + NEAR_TICK + 2));
   const chance = new Float64Array(n - 1);
   let cursor = 0;
   for (let k = 0; k < n - 1; k++) {
@@ -172,9 +222,10 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
       }
     }
     const level = series.values[a];
-    chance[k] = sameBinChance(level * mean, level * sd, tickOf(k));
+    chance[k] = sameBinChance(level * mean, level * sd, Math.max(tickOf(k), nearTick(k)));
   }
   const counted = new Uint8Array(n - 1);
+  const repeated = new Uint8Array(n - 1);
   let observed = 0;
   let expected = 0;
   let position = 0;
@@ -185,6 +236,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
     for (let j = position; j < position + run.length - 1; j++) {
       if (suspect) continue;
       counted[j] = 1;
+      repeated[j] = 1;
       observed++;
       expected += chance[j];
     }
@@ -195,7 +247,10 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
     }
     position += run.length;
   }
-  return { chance, observed, expected, counted };
+  const steps: number[] = [];
+  for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
+  const byChance = Int32Array.from(steps.sort((a, b) => chance[a] - chance[b]));
+  return { chance, observed, expected, counted, repeated, byChance };
 }
 
 /**
