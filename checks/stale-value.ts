@@ -109,12 +109,28 @@ function runChance(model: ChanceModel | undefined, at: number, length: number, o
     if (j >= at) observed--;
   }
   const factor = Math.max(1, (observed + 1) / (expected + 1));
+  // The series' plain repeat rate is the floor on days the benchmark implied less than
+  // IMPLIED_TICKS ticks of move: there a repeat is ordinary for a coarsely printed fund. On
+  // days it implied more, the floor is the repeat share of the days most alike (see there).
+  let pairs = 0;
+  for (let j = 0; j < model.counted.length; j++) if (model.counted[j] && (j < at - 1 || j >= at + length - 1)) pairs++;
+  const plain = pairs > 0 ? observed / pairs : 0;
   let logChance = 0;
-  for (let j = at; j < at + length - 1; j++) logChance += Math.log(Math.min(1, Math.max(alikeRepeatShare(model, j, at - 1, at + length - 1), factor * model.chance[j])));
+  for (let j = at; j < at + length - 1; j++) {
+    const floor = model.implied[j] >= IMPLIED_TICKS ? alikeRepeatShare(model, j, at - 1, at + length - 1) : plain;
+    logChance += Math.log(Math.min(1, Math.max(floor, factor * model.chance[j])));
+  }
   const perStep = Math.exp(logChance / (length - 1));
   const required = perStep >= 1 ? Infinity : Math.ceil(Math.log(params.max_chance / observations) / Math.log(perStep)) + 1;
   return { chance: Math.exp(logChance), required };
 }
+
+/**
+ * A day on which the benchmark implied a move of this many printed ticks or more should have
+ * moved the NAV: 4 ticks is where a careful reader of a 2-decimal fund's history starts to call
+ * an unchanged price a defect (common practice, from memory).
+ */
+const IMPLIED_TICKS = 4;
 
 /** Steps of the series' own history that a run's step is compared with (see `alikeRepeatShare`). */
 const ALIKE_STEPS = 40;
@@ -172,6 +188,8 @@ const NEAR_TICK = 8;
 interface ChanceModel {
   /** chance[k]: the step from rows[k] to rows[k + 1] repeats the value by rounding alone. */
   readonly chance: Float64Array;
+  /** The move the benchmark implied for the step, in printed ticks (0 without a benchmark price). */
+  readonly implied: Float64Array;
   readonly observed: number;
   readonly expected: number;
   /** Steps counted in `observed` and `expected` (outside suspect runs). */
@@ -199,6 +217,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   // (after a mispricing or a rescaling) keeps its own coarser tick.
   const nearTick = (k: number) => printedTick(series, rows, Math.max(0, k - NEAR_TICK), Math.min(rows.length, k + NEAR_TICK + 2));
   const chance = new Float64Array(n - 1);
+  const implied = new Float64Array(n - 1);
   let cursor = 0;
   for (let k = 0; k < n - 1; k++) {
     const a = rows[k];
@@ -222,7 +241,9 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
       }
     }
     const level = series.values[a];
-    chance[k] = sameBinChance(level * mean, level * sd, Math.max(tickOf(k), nearTick(k)));
+    const tick = Math.max(tickOf(k), nearTick(k));
+    chance[k] = sameBinChance(level * mean, level * sd, tick);
+    implied[k] = Math.abs(level * mean) / tick;
   }
   const counted = new Uint8Array(n - 1);
   const repeated = new Uint8Array(n - 1);
@@ -250,7 +271,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const steps: number[] = [];
   for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
   const byChance = Int32Array.from(steps.sort((a, b) => chance[a] - chance[b]));
-  return { chance, observed, expected, counted, repeated, byChance };
+  return { chance, implied, observed, expected, counted, repeated, byChance };
 }
 
 /**
@@ -296,15 +317,28 @@ function blockTicks(series: SeriesSlice, rows: number[]): (k: number) => number 
 }
 
 function printedTick(series: SeriesSlice, rows: number[], from: number, to: number): number {
+  // Decimals shown, as most of the values show them: one odd value (a keying error re-rounded
+  // to 4 decimals) does not make a 2-decimal fund's grid finer.
+  const byDecimals = new Int32Array(9);
+  for (let k = from; k < to; k++) byDecimals[decimalsOf(series.values[rows[k]])]++;
   let decimals = 0;
-  for (let k = from; k < to; k++) {
-    const value = series.values[rows[k]];
-    let scaled = value * 10 ** decimals;
-    while (decimals < 8 && Math.abs(scaled - Math.round(scaled)) > 1e-6 * Math.max(1, scaled * 1e-9)) scaled = value * 10 ** ++decimals;
-  }
+  for (let seen = byDecimals[0]; decimals < 8 && seen < GRID_SHARE * (to - from); seen += byDecimals[++decimals]);
   let divisor = 0;
-  for (let k = from; k < to && divisor !== 1; k++) divisor = gcd(divisor, Math.round(series.values[rows[k]] * 10 ** decimals));
+  for (let k = from; k < to && divisor !== 1; k++) {
+    const value = series.values[rows[k]];
+    if (decimalsOf(value) <= decimals) divisor = gcd(divisor, Math.round(value * 10 ** decimals));
+  }
   return Math.max(1, divisor) * 10 ** -decimals;
+}
+
+/** Share of a window's values whose printed decimals set its grid. */
+const GRID_SHARE = 0.9;
+
+function decimalsOf(value: number): number {
+  let decimals = 0;
+  let scaled = value;
+  while (decimals < 8 && Math.abs(scaled - Math.round(scaled)) > 1e-6 * Math.max(1, scaled * 1e-9)) scaled = value * 10 ** ++decimals;
+  return decimals;
 }
 
 function gcd(a: number, b: number): number {
