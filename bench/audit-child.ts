@@ -57,7 +57,7 @@ async function stage<T>(name: string, work: () => T | Promise<T>): Promise<T> {
   return result;
 }
 
-const feed = await stage('ingest', () => loadFeed(config.paths, loadOptionsOf(config)));
+const feed = await stage('ingest', () => loadFeed(config.paths, loadOptionsOf(config, asOf)));
 const findings = await stage('checks', () => runChecksInParallel({ ...feed, asOf }, config.checks, { threads }));
 const check = checkAnswer(asOf, feed.rows, findings);
 const metrics = await stage('metrics', () =>

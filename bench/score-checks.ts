@@ -6,6 +6,7 @@
  *   npx tsx bench/score-checks.ts                      # seeds 2001–2020 and 3001–3020
  *   npx tsx bench/score-checks.ts --seeds 20 --verbose # also list every miss and false alarm
  *   npx tsx bench/score-checks.ts --check return_outlier --verbose
+ *   npx tsx bench/score-checks.ts --subtle             # with the subtle kinds planted too
  *
  * Options: `--seeds N` (seeds per generator, default 20), `--first A,B` (first seed of the
  * first and of the alternative generator, default 2001,3001), `--check ID` (only list misses
@@ -26,10 +27,11 @@ const [firstMain, firstAlt] = (option('--first') ?? '2001,3001').split(',').map(
 const only = option('--check');
 const verbose = args.includes('--verbose');
 const asJson = args.includes('--json');
+const subtle = args.includes('--subtle');
 
 const generators = [
-  { name: 'universe', seeds: Array.from({ length: perGenerator }, (_, i) => firstMain + i), make: (seed: number) => generateUniverse({ seed }) },
-  { name: 'universe-alt', seeds: Array.from({ length: perGenerator }, (_, i) => firstAlt + i), make: (seed: number) => generateAltUniverse({ seed }) },
+  { name: 'universe', seeds: Array.from({ length: perGenerator }, (_, i) => firstMain + i), make: (seed: number) => generateUniverse({ seed, subtle }) },
+  { name: 'universe-alt', seeds: Array.from({ length: perGenerator }, (_, i) => firstAlt + i), make: (seed: number) => generateAltUniverse({ seed, subtle }) },
 ];
 
 const tables: Record<string, Map<string, Pooled>> = {};

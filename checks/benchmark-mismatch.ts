@@ -2,7 +2,8 @@ import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesFrame, SeriesSlice } from '../src/series/frame.js';
 import { isoWeekStart } from '../src/calendar/days.js';
 import { seriesAt } from '../src/series/frame.js';
-import { GROSS_Z, seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { movesOf } from '../src/checks/move-analysis.js';
+import { GROSS_Z, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { correlation, exactPosition, isoDate, makeFinding, round } from '../src/checks/support.js';
 
 interface MismatchParams {
@@ -40,10 +41,11 @@ export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
   scope: 'series',
   purpose: 'The fund fits its assigned benchmark poorly while another benchmark fits it well.',
   defaults: { index_r2: 0.99, poor_r2: 0.6, good_r2: 0.7, min_gain: 0.2, window_weeks: 156, min_weeks: 26 },
+  readsMoves: true,
   run(series, context, params) {
     const { benchmark, benchmarks, master } = context;
     if (!benchmark || !benchmarks) return [];
-    const weeks = weeklyReturns(series, seriesReturns(series, context)).slice(-params.window_weeks);
+    const weeks = weeklyReturns(series, movesOf(series, context).model).slice(-params.window_weeks);
     const assigned = rSquared(weeks, benchmark, params.min_weeks);
     const isIndexFund = INDEX_CATEGORY.test(master?.category ?? '');
     const expected = isIndexFund ? params.index_r2 : params.poor_r2;
@@ -80,7 +82,7 @@ export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
 };
 
 /** Sums of the steps ending in each ISO week; weeks holding a gross error are left out. */
-function weeklyReturns(series: SeriesSlice, returns: SeriesReturns): Week[] {
+function weeklyReturns(series: SeriesSlice, returns: ResidualMoves): Week[] {
   const weeks: Week[] = [];
   let currentWeek = NaN;
   let gross = false;

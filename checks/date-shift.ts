@@ -1,7 +1,8 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import { monthIndex } from '../src/calendar/days.js';
-import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { movesOf } from '../src/checks/move-analysis.js';
+import type { ResidualMoves } from '../src/checks/residual-moves.js';
 import { correlation, isoDate, makeFinding, median, robustScale, round } from '../src/checks/support.js';
 
 export interface ShiftParams {
@@ -33,11 +34,15 @@ export const dateShift: SeriesCheck<ShiftParams> = {
   scope: 'series',
   purpose: 'Returns line up with the benchmark’s some business days earlier or later than stamped.',
   defaults: { max_lag: 3, min_correlation: 0.5, min_gain: 0.3, min_steps: 40 },
+  readsMoves: true,
   run(series, context, params) {
     const benchmark = context.benchmark;
     if (!benchmark) return [];
-    const returns = seriesReturns(series, context);
-    return findShifts(series, returns, benchmark, params).map((shift) => describe(series, returns, shift, context.master?.benchmark_id ?? benchmark.id));
+    const analysis = movesOf(series, context);
+    const returns = analysis.model;
+    // The runner already found the spans with these very parameters.
+    const shifts = analysis.shiftParams === params ? analysis.shifts : findShifts(series, returns, benchmark, params);
+    return shifts.map((shift) => describe(series, returns, shift, context.master?.benchmark_id ?? benchmark.id));
   },
 };
 
@@ -55,7 +60,7 @@ export interface Shift {
 }
 
 /** Shifted spans of the series, their edges placed where the lagged fit starts and stops winning. */
-export function findShifts(series: SeriesSlice, returns: SeriesReturns, benchmark: SeriesSlice, params: ShiftParams): Shift[] {
+export function findShifts(series: SeriesSlice, returns: ResidualMoves, benchmark: SeriesSlice, params: ShiftParams): Shift[] {
   const verdicts = quarterSteps(series, returns).map((steps) => judgeQuarter(series, returns, benchmark, steps, params));
   return shiftedSpans(verdicts).map((span) => {
     const lag = span[0].lag;
@@ -74,7 +79,7 @@ export function findShifts(series: SeriesSlice, returns: SeriesReturns, benchmar
 }
 
 /** How much better lag `lag` explains step k than the dates as stamped (positive: lag wins). */
-function lagGain(returns: SeriesReturns, benchmark: SeriesSlice, k: number, lag: number): number {
+function lagGain(returns: ResidualMoves, benchmark: SeriesSlice, k: number, lag: number): number {
   const p = returns.benchFrom[k];
   const q = returns.benchTo[k];
   if (p + lag < 0 || q + lag >= benchmark.values.length) return 0;
@@ -103,7 +108,7 @@ function bestEnd(steps: number[], gain: (k: number) => number): number {
   return at;
 }
 
-function quarterSteps(series: SeriesSlice, returns: SeriesReturns): number[][] {
+function quarterSteps(series: SeriesSlice, returns: ResidualMoves): number[][] {
   const quarters: number[][] = [];
   let current = NaN;
   for (let k = 0; k < returns.count; k++) {
@@ -117,7 +122,7 @@ function quarterSteps(series: SeriesSlice, returns: SeriesReturns): number[][] {
   return quarters;
 }
 
-function judgeQuarter(series: SeriesSlice, returns: SeriesReturns, benchmark: SeriesSlice, steps: number[], params: ShiftParams): QuarterVerdict {
+function judgeQuarter(series: SeriesSlice, returns: ResidualMoves, benchmark: SeriesSlice, steps: number[], params: ShiftParams): QuarterVerdict {
   const quarter = Math.floor(monthIndex(series.dates[returns.to[steps[0]]]) / 3);
   const correlations = new Map<number, number>();
   if (steps.length < params.min_steps) return { quarter, steps, lag: 0, correlations };
@@ -190,7 +195,7 @@ function shiftedSpans(verdicts: QuarterVerdict[]): QuarterVerdict[][] {
   return spans;
 }
 
-function describe(series: SeriesSlice, returns: SeriesReturns, shift: Shift, benchmarkId: string) {
+function describe(series: SeriesSlice, returns: ResidualMoves, shift: Shift, benchmarkId: string) {
   const first = returns.to[shift.firstStep];
   const last = returns.to[shift.lastStep];
   const lateBy = -shift.lag;
@@ -218,18 +223,4 @@ function describe(series: SeriesSlice, returns: SeriesReturns, shift: Shift, ben
     },
     identity: [lateBy, isoDate(series.dates[first])],
   });
-}
-
-const shiftCache = new WeakMap<SeriesReturns, Shift[]>();
-
-/**
- * True when step `k` lies in a span that looks date-shifted (judged with this check's
- * defaults). Move-based checks leave such steps alone: against a misdated benchmark every
- * day of the span looks odd, and one date_shift finding says why.
- */
-export function inShiftedSpan(series: SeriesSlice, returns: SeriesReturns, benchmark: SeriesSlice | undefined, k: number): boolean {
-  if (!benchmark) return false;
-  let shifts = shiftCache.get(returns);
-  if (!shifts) shiftCache.set(returns, (shifts = findShifts(series, returns, benchmark, DATE_SHIFT_DEFAULTS)));
-  return shifts.some((shift) => k >= shift.firstStep && k <= shift.lastStep);
 }

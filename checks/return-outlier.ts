@@ -1,10 +1,10 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
-import { bridgedStep, endsOnConflict, ordinaryExtreme, tailBar, seriesReturns, sharedWithMarket, type Bridge, type SeriesReturns } from '../src/checks/returns.js';
+import { inShiftedSpan, movesOf, type MoveAnalysis } from '../src/checks/move-analysis.js';
+import { bridgedStep, endsOnConflict, tailBar, sharedWithMarket, type Bridge, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
-import { inShiftedSpan } from './date-shift.js';
-import { SPIKE_DEFAULTS, isSpikeReversal } from './spike-reversal.js';
-import { SPLIT_DEFAULTS, splitLikeRatio } from './split-like-jump.js';
+import { isSpikeReversal } from './spike-reversal.js';
+import { splitLikeRatio } from './split-like-jump.js';
 
 interface OutlierParams {
   threshold: number;
@@ -36,15 +36,17 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
   scope: 'series',
   purpose: 'A one-day move far outside the series’ usual behaviour relative to its benchmark.',
   defaults: { threshold: 8, tail_multiple: 3.5, min_move: 0.005, tail_chance: 0.02 },
+  readsMoves: true,
   run(series, context, params) {
-    const returns = seriesReturns(series, context);
+    const analysis = movesOf(series, context);
+    const returns = analysis.model;
     const findings = [];
     for (let k = 0; k < returns.count; k++) {
       if (!clearsBar(returns, returns.z[k], returns.residual[k], k, params)) continue;
       const bridge = bridgedStep(returns, context.benchmark, k);
       if (bridge && !clearsBar(returns, bridge.z, bridge.residual, k, params)) continue;
-      if (explainedElsewhere(returns, k)) continue;
-      if (inShiftedSpan(series, returns, context.benchmark, k)) continue;
+      if (explainedElsewhere(analysis, k)) continue;
+      if (inShiftedSpan(analysis, k)) continue;
       if (endsOnConflict(series, returns, k) || sharedWithMarket(series, returns, context.benchmarks, [k])) continue;
       const before = returns.from[k];
       const day = returns.to[k];
@@ -84,12 +86,12 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
  * bar: the floor, `tail_multiple` × the 99th-percentile |z|, `min_move`, and the extrapolated
  * tail of the series' other days (step `k` left out of the estimate).
  */
-function clearsBar(returns: SeriesReturns, z: number, residual: number, k: number, params: OutlierParams): boolean {
+function clearsBar(returns: ResidualMoves, z: number, residual: number, k: number, params: OutlierParams): boolean {
   if (!(Math.abs(z) >= params.threshold) || Math.abs(residual) < params.min_move) return false;
-  return Math.abs(z) >= params.tail_multiple * ordinaryExtreme(returns) && Math.abs(z) >= tailBar(returns, params.tail_chance, k);
+  return Math.abs(z) >= params.tail_multiple * returns.extreme && Math.abs(z) >= tailBar(returns, params.tail_chance, k);
 }
 
-function bridgeEvidence(series: SeriesSlice, returns: SeriesReturns, bridge: Bridge) {
+function bridgeEvidence(series: SeriesSlice, returns: ResidualMoves, bridge: Bridge) {
   return {
     from: isoDate(series.dates[returns.from[bridge.first]]),
     to: isoDate(series.dates[returns.to[bridge.last]]),
@@ -99,10 +101,11 @@ function bridgeEvidence(series: SeriesSlice, returns: SeriesReturns, bridge: Bri
   };
 }
 
-function explainedElsewhere(returns: SeriesReturns, k: number): boolean {
+/** Step `k` is a split-like jump or part of a spike reversal, judged with the run's parameters of those checks (when they are on). */
+function explainedElsewhere(analysis: MoveAnalysis, k: number): boolean {
+  const { model, split, spike } = analysis;
   return (
-    splitLikeRatio(returns, k, SPLIT_DEFAULTS) !== null ||
-    isSpikeReversal(returns, k, SPIKE_DEFAULTS) ||
-    (k > 0 && isSpikeReversal(returns, k - 1, SPIKE_DEFAULTS))
+    (split !== undefined && splitLikeRatio(model, k, split) !== null) ||
+    (spike !== undefined && (isSpikeReversal(model, k, spike) || (k > 0 && isSpikeReversal(model, k - 1, spike))))
   );
 }

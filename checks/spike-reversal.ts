@@ -1,7 +1,7 @@
 import type { SeriesCheck } from '../src/checks/check.js';
-import { endsOnConflict, ordinaryExtreme, seriesReturns, sharedWithMarket, type SeriesReturns } from '../src/checks/returns.js';
+import { inShiftedSpan, movesOf } from '../src/checks/move-analysis.js';
+import { endsOnConflict, sharedWithMarket, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
-import { inShiftedSpan } from './date-shift.js';
 
 export interface SpikeParams {
   min_move: number;
@@ -29,11 +29,13 @@ export const spikeReversal: SeriesCheck<SpikeParams> = {
   scope: 'series',
   purpose: 'A large one-day move that reverses the next day, as a keying error does.',
   defaults: SPIKE_DEFAULTS,
+  readsMoves: true,
   run(series, context, params) {
-    const returns = seriesReturns(series, context);
+    const analysis = movesOf(series, context);
+    const returns = analysis.model;
     const findings = [];
     for (let k = 0; k + 1 < returns.count; k++) {
-      if (!isSpikeReversal(returns, k, params) || inShiftedSpan(series, returns, context.benchmark, k)) continue;
+      if (!isSpikeReversal(returns, k, params) || inShiftedSpan(analysis, k)) continue;
       // Two rows disagree on the spike's date: one finding (duplicate_conflict) for one cause.
       if (endsOnConflict(series, returns, k)) continue;
       // A crash and rebound that some benchmark in the feed made too, on both days.
@@ -68,13 +70,13 @@ export const spikeReversal: SeriesCheck<SpikeParams> = {
 };
 
 /** Step `k` is a large move and step `k + 1` takes it back. */
-export function isSpikeReversal(returns: SeriesReturns, k: number, params: SpikeParams): boolean {
+export function isSpikeReversal(returns: ResidualMoves, k: number, params: SpikeParams): boolean {
   if (k + 1 >= returns.count || returns.to[k] !== returns.from[k + 1]) return false;
   const out = returns.residual[k];
   const back = returns.residual[k + 1];
   // A series whose ordinary days are wild needs a wilder spike: 1.9 × its 99th-percentile |z|
   // is about 5 for normal residuals (the floor) and 7–9 for Student-t(4–5) ones.
-  const bar = Math.max(params.min_z, params.tail_multiple * ordinaryExtreme(returns));
+  const bar = Math.max(params.min_z, params.tail_multiple * returns.extreme);
   return (
     Math.abs(out) >= params.min_move &&
     Math.abs(returns.z[k]) >= bar &&

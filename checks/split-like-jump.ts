@@ -1,7 +1,8 @@
 import type { SeriesCheck, SeriesContext } from '../src/checks/check.js';
 import type { CorporateActionRecord } from '../src/ingest/records.js';
 import type { SeriesSlice } from '../src/series/frame.js';
-import { seriesReturns, type SeriesReturns } from '../src/checks/returns.js';
+import { movesOf } from '../src/checks/move-analysis.js';
+import { GROSS_Z, sharedWithMarket, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { isoDate, makeFinding, round } from '../src/checks/support.js';
 
 export interface SplitParams {
@@ -12,6 +13,13 @@ export interface SplitParams {
 
 /** Split, consolidation and quoting-unit ratios seen in practice (cents ↔ units is 100). */
 export const SIMPLE_RATIOS = [2, 3, 4, 5, 10, 100].flatMap((r) => [r, 1 / r]);
+
+/**
+ * Splits of a few units for a few, also common practice: 3-for-2 (a NAV ×2/3), 2-for-3 (×1.5),
+ * 4-for-3, 5-for-4 and their consolidations. Their moves (12–41 %) are within reach of a real
+ * day or a lasting mispricing, so they are matched more tightly (see `fractionalBand`).
+ */
+export const FRACTIONAL_RATIOS = [3 / 2, 4 / 3, 5 / 4].flatMap((r) => [r, 1 / r]);
 
 export const SPLIT_DEFAULTS: SplitParams = { ratio_tolerance: 0.02, persist_days: 3 };
 
@@ -28,31 +36,65 @@ const PLAUSIBLE_BENCHMARK_DAY = 0.15;
 export const splitLikeJump: SeriesCheck<SplitParams> = {
   id: 'split_like_jump',
   scope: 'series',
-  purpose: 'A one-day move by a simple ratio (2, 10, 100 … or inverses) that persists and the benchmark did not make.',
+  purpose: 'A one-day move by a split ratio (2, 10, 100, 3:2, 4:3, 5:4 … or inverses) that persists and the benchmark did not make.',
   defaults: SPLIT_DEFAULTS,
+  readsMoves: true,
   run(series, context, params) {
-    const returns = seriesReturns(series, context);
+    const returns = movesOf(series, context).model;
     const findings = [];
     for (let k = 0; k < returns.count; k++) {
       const ratio = splitLikeRatio(returns, k, params);
-      if (ratio !== null) findings.push(describe(series, context, returns, k, ratio, params));
+      if (ratio === null) continue;
+      // A fall of a fifth or a third that some benchmark in the feed made too is a market day
+      // seen by a fund whose own benchmark is missing or wrong, not a split.
+      if (FRACTIONAL_RATIOS.includes(ratio) && sharedWithMarket(series, returns, context.benchmarks, [k])) continue;
+      findings.push(describe(series, context, returns, k, ratio, params));
     }
     return findings;
   },
 };
 
 /** The simple ratio step `k` resembles, or null when it is not a persisting split-like jump. */
-export function splitLikeRatio(returns: SeriesReturns, k: number, params: SplitParams): number | null {
+export function splitLikeRatio(returns: ResidualMoves, k: number, params: SplitParams): number | null {
   const bench = returns.bench[k];
   const market = Number.isFinite(bench) && Math.abs(bench) < PLAUSIBLE_BENCHMARK_DAY ? returns.beta * bench : 0;
-  const ratio = nearestSimpleRatio(returns.raw[k] - market, params.ratio_tolerance);
+  const move = returns.raw[k] - market;
+  const ratio = nearestSimpleRatio(move, params.ratio_tolerance) ?? (Math.abs(returns.z[k]) >= GROSS_Z ? nearestFractionalRatio(move, fractionalBand(returns, k, params.ratio_tolerance)) : null);
   if (ratio === null) return null;
   if (Number.isFinite(bench) && Math.abs(bench - Math.log(ratio)) < Math.log(1 + params.ratio_tolerance)) return null;
   return persists(returns, k, Math.log(ratio), params.persist_days) && !undoesPrevious(returns, k) ? ratio : null;
 }
 
+/**
+ * How close (in log terms) a move, once beta × the benchmark is taken out, must come to a
+ * fractional ratio: `ratio_tolerance`, narrowed to 3 robust standard deviations of the step's
+ * residual (of the series' own moves when the benchmark cannot price the step). A 3-for-2 split leaves only the fund's ordinary residual around ln(2/3); a genuine
+ * −33 % day or a lasting mispricing lands there only by coincidence, and 3 standard deviations
+ * keep that coincidence rare while still taking in nearly every real split. The step must also
+ * be a gross error against the benchmark (|z| ≥ 8): a fractional move the benchmark made too
+ * (a wild market day, even one too wild to be used to explain the fund) is no split.
+ */
+function fractionalBand(returns: ResidualMoves, k: number, tolerance: number): number {
+  // The step's own standard unit: the fit's residual scale, or the series' own spread on a
+  // step the benchmark cannot price.
+  const spread = 3 * Math.abs(returns.residual[k] / returns.z[k]);
+  // Even a perfect tracker's split leaves a few basis points: the NAV's rounding and the
+  // estimated beta times the benchmark's day.
+  return Math.min(Math.log(1 + tolerance), Math.max(MIN_FRACTIONAL_BAND, spread));
+}
+
+/** 0.2 % in log terms: the narrowest band a fractional ratio is matched within. */
+const MIN_FRACTIONAL_BAND = 0.002;
+
+const LOG_FRACTIONAL = FRACTIONAL_RATIOS.map(Math.log);
+
+function nearestFractionalRatio(logMove: number, band: number): number | null {
+  for (let i = 0; i < LOG_FRACTIONAL.length; i++) if (Math.abs(logMove - LOG_FRACTIONAL[i]) < band) return FRACTIONAL_RATIOS[i];
+  return null;
+}
+
 /** The step brings the level back to where it was before the previous step: the end of a spike. */
-function undoesPrevious(returns: SeriesReturns, k: number): boolean {
+function undoesPrevious(returns: ResidualMoves, k: number): boolean {
   return k > 0 && returns.to[k - 1] === returns.from[k] && Math.abs(returns.raw[k - 1] + returns.raw[k]) < Math.abs(returns.raw[k]) / 2;
 }
 
@@ -66,7 +108,7 @@ function nearestSimpleRatio(logMove: number, tolerance: number): number | null {
 }
 
 /** The level stays nearer the new level than the old one for the next `days` steps. */
-function persists(returns: SeriesReturns, k: number, jump: number, days: number): boolean {
+function persists(returns: ResidualMoves, k: number, jump: number, days: number): boolean {
   let cumulative = 0;
   for (let j = k; j < Math.min(returns.count, k + 1 + days); j++) {
     cumulative += returns.raw[j];
@@ -75,14 +117,14 @@ function persists(returns: SeriesReturns, k: number, jump: number, days: number)
   return true;
 }
 
-function describe(series: SeriesSlice, context: SeriesContext, returns: SeriesReturns, k: number, ratio: number, params: SplitParams) {
+function describe(series: SeriesSlice, context: SeriesContext, returns: ResidualMoves, k: number, ratio: number, params: SplitParams) {
   const before = returns.from[k];
   const after = returns.to[k];
   const actions = context.actions.filter((a) => a.ex_date > series.dates[before] && a.ex_date <= series.dates[after]);
-  const explained = actions.length > 0 && nearestSimpleRatio(returns.fund[k], params.ratio_tolerance) === null;
+  const explained = actions.length > 0 && nearestSimpleRatio(returns.fund[k], params.ratio_tolerance) === null && nearestFractionalRatio(returns.fund[k], fractionalBand(returns, k, params.ratio_tolerance)) === null;
   const day = series.dates[after];
   const move = `from ${series.values[before]} on ${isoDate(series.dates[before])} to ${series.values[after]} on ${isoDate(day)}`;
-  const ratioText = ratio >= 1 ? `×${round(ratio, 4)}` : `÷${round(1 / ratio, 4)}`;
+  const ratioText = ratioName(ratio);
   return makeFinding({
     check: 'split_like_jump',
     severity: explained ? 'info' : 'error',
@@ -108,4 +150,13 @@ function actionText(action: CorporateActionRecord): string {
   return action.kind === 'split'
     ? `split of ${action.value} new units per old unit (ex-date ${isoDate(action.ex_date)})`
     : `distribution of ${action.value} per unit (ex-date ${isoDate(action.ex_date)})`;
+}
+
+/** ×2, ÷10, or for a fractional ratio its split terms: ×3/2 (a 2-for-3 consolidation), ×2/3 (a 3-for-2 split). */
+function ratioName(ratio: number): string {
+  for (const [a, b] of [[3, 2], [4, 3], [5, 4]]) {
+    if (Math.abs(ratio - a / b) < 1e-9) return `×${a}/${b} (a ${b}-for-${a} consolidation)`;
+    if (Math.abs(ratio - b / a) < 1e-9) return `×${b}/${a} (a ${a}-for-${b} split)`;
+  }
+  return ratio >= 1 ? `×${round(ratio, 4)}` : `÷${round(1 / ratio, 4)}`;
 }

@@ -1,7 +1,7 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
-import { seriesReturns } from '../src/checks/returns.js';
+import { movesOf } from '../src/checks/move-analysis.js';
 import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
@@ -27,6 +27,7 @@ export const staleValue: SeriesCheck<StaleParams> = {
   scope: 'series',
   purpose: 'The same NAV repeated on several consecutive business days.',
   defaults: { min_days: 3, max_chance: 0.01, accrual_max_daily: 0.0005 },
+  readsMoves: true,
   run(series, context, params) {
     if (context.master?.stable_value) return [];
     const rows = firstRowOfEachDate(series, context.asOf).filter((i) => series.values[i] > 0);
@@ -35,6 +36,7 @@ export const staleValue: SeriesCheck<StaleParams> = {
     const model = chanceModel(series, rows, runs, context, params);
     const calendar = calendarOf(context);
     const judged: Array<{ run: number[]; days: number; chance: number; required: number }> = [];
+    const shiftStarts = shiftStartDays(series, context);
     let position = 0;
     for (const run of runs) {
       const at = position;
@@ -42,6 +44,8 @@ export const staleValue: SeriesCheck<StaleParams> = {
       if (run.length < 2) continue;
       const days = context.calendars.businessDayDistance(calendar, series.dates[run[0]], series.dates[run[run.length - 1]]) + 1;
       if (days < params.min_days) continue;
+      // Stamping a day late from some date on repeats that date's value once: the shift is the cause.
+      if (shiftStarts.some((day) => Math.abs(day - series.dates[run[run.length - 1]]) <= 7)) continue;
       const { chance, required } = runChance(model, at, run.length, rows.length, params);
       if (rows.length * chance > params.max_chance) continue;
       judged.push({ run, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
@@ -72,6 +76,12 @@ export const staleValue: SeriesCheck<StaleParams> = {
   },
 };
 
+/** Dates where a span the run's date_shift finds shifted begins. */
+function shiftStartDays(series: SeriesSlice, context: SeriesContext): number[] {
+  const moves = context.moves;
+  return moves ? moves.shifts.map((shift) => series.dates[moves.model.from[shift.firstStep]]) : [];
+}
+
 function equalValueRuns(series: SeriesSlice, rows: number[]): number[][] {
   const runs: number[][] = [];
   for (const row of rows) {
@@ -99,16 +109,63 @@ function runChance(model: ChanceModel | undefined, at: number, length: number, o
     if (j >= at) observed--;
   }
   const factor = Math.max(1, (observed + 1) / (expected + 1));
-  // The series' plain repeat rate is a floor: when its values sit on a grid the tick estimate
-  // does not see (a 2-decimal NAV rescaled by a distribution), the model's shape is wrong too.
+  // The series' plain repeat rate is the floor on days the benchmark implied less than
+  // IMPLIED_TICKS ticks of move: there a repeat is ordinary for a coarsely printed fund. On
+  // days it implied more, the floor is the repeat share of the days most alike (see there).
   let pairs = 0;
   for (let j = 0; j < model.counted.length; j++) if (model.counted[j] && (j < at - 1 || j >= at + length - 1)) pairs++;
   const plain = pairs > 0 ? observed / pairs : 0;
   let logChance = 0;
-  for (let j = at; j < at + length - 1; j++) logChance += Math.log(Math.min(1, Math.max(plain, factor * model.chance[j])));
+  for (let j = at; j < at + length - 1; j++) {
+    const floor = model.implied[j] >= IMPLIED_TICKS ? alikeRepeatShare(model, j, at - 1, at + length - 1) : plain;
+    logChance += Math.log(Math.min(1, Math.max(floor, factor * model.chance[j])));
+  }
   const perStep = Math.exp(logChance / (length - 1));
   const required = perStep >= 1 ? Infinity : Math.ceil(Math.log(params.max_chance / observations) / Math.log(perStep)) + 1;
   return { chance: Math.exp(logChance), required };
+}
+
+/**
+ * A day on which the benchmark implied a move of this many printed ticks or more should have
+ * moved the NAV: 4 ticks is where a careful reader of a 2-decimal fund's history starts to call
+ * an unchanged price a defect (common practice, from memory).
+ */
+const IMPLIED_TICKS = 4;
+
+/** Steps of the series' own history that a run's step is compared with (see `alikeRepeatShare`). */
+const ALIKE_STEPS = 40;
+
+/**
+ * The floor of a step's chance: how often the series repeated on the `ALIKE_STEPS` other days
+ * the model rated most alike (nearest in modelled chance, outside the steps from `skipFrom` to
+ * `skipTo` − 1, the run judged and the step into it). When the series' values sit on a grid
+ * the tick estimate does not see (a 2-decimal NAV rescaled by a distribution), it repeats even
+ * on days the model calls unlikely, and this floor says so; an honest 2-decimal fund repeats
+ * often on days its benchmark barely moved and almost never on days it implied several ticks
+ * of move, so a repeat on such a day is judged by the benchmark, not by the fund's overall
+ * repeat rate.
+ */
+function alikeRepeatShare(model: ChanceModel, j: number, skipFrom: number, skipTo: number): number {
+  const order = model.byChance;
+  const target = model.chance[j];
+  // First position whose chance is ≥ the step's own, then widen both ways, nearest first.
+  let lo = 0, hi = order.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (model.chance[order[mid]] < target) lo = mid + 1;
+    else hi = mid;
+  }
+  let left = lo - 1, right = lo, taken = 0, repeats = 0;
+  const distance = (k: number) => Math.abs(Math.log((model.chance[order[k]] + 1e-300) / (target + 1e-300)));
+  while (taken < ALIKE_STEPS && (left >= 0 || right < order.length)) {
+    const useLeft = right >= order.length || (left >= 0 && distance(left) <= distance(right));
+    const step = order[useLeft ? left-- : right++];
+    if (step >= skipFrom && step < skipTo) continue;
+    taken++;
+    repeats += model.repeated[step];
+  }
+  // One coincidence among the alike days is not evidence of a hidden grid; two or more are.
+  return taken > 0 && repeats >= 2 ? repeats / taken : 0;
 }
 
 /** Runs of this many equal values or more are left out when measuring how often a series repeats by rounding. */
@@ -116,6 +173,9 @@ const SUSPECT_RUN = 4;
 
 /** Observations on each side of a run whose values give the printed tick near it. */
 const TICK_WINDOW = 32;
+
+/** Observations on each side of a step whose values give the grid right around it. */
+const NEAR_TICK = 8;
 
 /**
  * The chance model of a series: for each step between consecutive observations, the chance
@@ -128,10 +188,16 @@ const TICK_WINDOW = 32;
 interface ChanceModel {
   /** chance[k]: the step from rows[k] to rows[k + 1] repeats the value by rounding alone. */
   readonly chance: Float64Array;
+  /** The move the benchmark implied for the step, in printed ticks (0 without a benchmark price). */
+  readonly implied: Float64Array;
   readonly observed: number;
   readonly expected: number;
   /** Steps counted in `observed` and `expected` (outside suspect runs). */
   readonly counted: Uint8Array;
+  /** 1 for a counted step that repeats the value. */
+  readonly repeated: Uint8Array;
+  /** The counted steps, by ascending chance. */
+  readonly byChance: Int32Array;
 }
 
 function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], context: SeriesContext, params: StaleParams): ChanceModel | undefined {
@@ -142,12 +208,16 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const changes = new Float64Array(n - 1);
   for (let k = 1; k < n; k++) changes[k - 1] = Math.log(series.values[rows[k]] / series.values[rows[k - 1]]);
   const alone = robustScale(changes, 0);
-  const returns = seriesReturns(series, context);
+  const returns = movesOf(series, context).model;
   const fitted = returns.hasBenchmark && returns.count >= 20 && returns.scale > 0;
   const benchmark = context.benchmark;
   const calendar = calendarOf(context);
   const tickOf = blockTicks(series, rows);
+  // The grid right around a step: a 2-decimal stretch next to values re-rounded to 4 decimals
+  // (after a mispricing or a rescaling) keeps its own coarser tick.
+  const nearTick = (k: number) => printedTick(series, rows, Math.max(0, k - NEAR_TICK), Math.min(rows.length, k + NEAR_TICK + 2));
   const chance = new Float64Array(n - 1);
+  const implied = new Float64Array(n - 1);
   let cursor = 0;
   for (let k = 0; k < n - 1; k++) {
     const a = rows[k];
@@ -171,9 +241,12 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
       }
     }
     const level = series.values[a];
-    chance[k] = sameBinChance(level * mean, level * sd, tickOf(k));
+    const tick = Math.max(tickOf(k), nearTick(k));
+    chance[k] = sameBinChance(level * mean, level * sd, tick);
+    implied[k] = Math.abs(level * mean) / tick;
   }
   const counted = new Uint8Array(n - 1);
+  const repeated = new Uint8Array(n - 1);
   let observed = 0;
   let expected = 0;
   let position = 0;
@@ -184,6 +257,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
     for (let j = position; j < position + run.length - 1; j++) {
       if (suspect) continue;
       counted[j] = 1;
+      repeated[j] = 1;
       observed++;
       expected += chance[j];
     }
@@ -194,7 +268,10 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
     }
     position += run.length;
   }
-  return { chance, observed, expected, counted };
+  const steps: number[] = [];
+  for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
+  const byChance = Int32Array.from(steps.sort((a, b) => chance[a] - chance[b]));
+  return { chance, implied, observed, expected, counted, repeated, byChance };
 }
 
 /**
@@ -244,15 +321,28 @@ const POWERS_OF_TEN = Array.from({ length: 9 }, (_, k) => 10 ** k);
 const INVERSE_POWERS_OF_TEN = Array.from({ length: 9 }, (_, k) => 10 ** -k);
 
 function printedTick(series: SeriesSlice, rows: number[], from: number, to: number): number {
+  // Decimals shown, as most of the values show them: one odd value (a keying error re-rounded
+  // to 4 decimals) does not make a 2-decimal fund's grid finer.
+  const byDecimals = new Int32Array(9);
+  for (let k = from; k < to; k++) byDecimals[decimalsOf(series.values[rows[k]])]++;
   let decimals = 0;
-  for (let k = from; k < to; k++) {
-    const value = series.values[rows[k]];
-    let scaled = value * POWERS_OF_TEN[decimals];
-    while (decimals < 8 && Math.abs(scaled - Math.round(scaled)) > 1e-6 * Math.max(1, scaled * 1e-9)) scaled = value * POWERS_OF_TEN[++decimals];
-  }
+  for (let seen = byDecimals[0]; decimals < 8 && seen < GRID_SHARE * (to - from); seen += byDecimals[++decimals]);
   let divisor = 0;
-  for (let k = from; k < to && divisor !== 1; k++) divisor = gcd(divisor, Math.round(series.values[rows[k]] * POWERS_OF_TEN[decimals]));
+  for (let k = from; k < to && divisor !== 1; k++) {
+    const value = series.values[rows[k]];
+    if (decimalsOf(value) <= decimals) divisor = gcd(divisor, Math.round(value * POWERS_OF_TEN[decimals]));
+  }
   return Math.max(1, divisor) * INVERSE_POWERS_OF_TEN[decimals];
+}
+
+/** Share of a window's values whose printed decimals set its grid. */
+const GRID_SHARE = 0.9;
+
+function decimalsOf(value: number): number {
+  let decimals = 0;
+  let scaled = value;
+  while (decimals < 8 && Math.abs(scaled - Math.round(scaled)) > 1e-6 * Math.max(1, scaled * 1e-9)) scaled = value * POWERS_OF_TEN[++decimals];
+  return decimals;
 }
 
 function gcd(a: number, b: number): number {

@@ -2,6 +2,7 @@ import type { BusinessCalendars } from '../calendar/business-calendar.js';
 import type { Finding, Severity } from '../findings.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
 import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
+import type { MoveAnalysis } from './move-analysis.js';
 
 /**
  * A validation check: one file in `checks/`, pure, with its parameters and their defaults.
@@ -29,6 +30,12 @@ export interface SeriesContext {
    * day or the next morning.
    */
   readonly feedLatest?: number;
+  /**
+   * The residual model of the series' moves and the steps other checks claim, built once per
+   * series by the runner (`src/checks/move-analysis.ts`). A check called on its own without it
+   * builds the bare model itself.
+   */
+  readonly moves?: MoveAnalysis;
 }
 
 export interface SeriesCheck<P extends CheckParams = CheckParams> {
@@ -36,6 +43,8 @@ export interface SeriesCheck<P extends CheckParams = CheckParams> {
   readonly scope: 'series';
   readonly purpose: string;
   readonly defaults: P;
+  /** True for checks that read the residual model of moves (`context.moves`). */
+  readonly readsMoves?: boolean;
   run(series: SeriesSlice, context: SeriesContext, params: P): Finding[];
 }
 

@@ -7,8 +7,9 @@ import { severityRank, type Finding } from '../findings.js';
 import type { CorporateActionRecord, RejectedRow, SeriesMasterRecord, VendorFigureRecord } from '../ingest/records.js';
 import { findSeries, seriesAt, type SeriesFrame } from '../series/frame.js';
 import type { FeedCheck, FeedContext, SeriesCheck, SeriesContext } from './check.js';
+import { analyseMoves, type ClaimingParams } from './move-analysis.js';
 import { CHECKS } from './registry.js';
-import { parseCheckSettings, SettingsResolver, type CheckSettings } from './settings.js';
+import { parseCheckSettings, SettingsResolver, type CheckSettings, type ResolvedCheck } from './settings.js';
 
 export interface CheckInput {
   readonly nav: SeriesFrame;
@@ -45,7 +46,7 @@ export function runSeriesChecks(input: CheckInput, resolver: SettingsResolver, f
   for (let i = first; i < end; i++) {
     const series = seriesAt(input.nav, i);
     const master = masterById.get(series.id);
-    const context: SeriesContext = {
+    const base: SeriesContext = {
       asOf: input.asOf,
       calendars: input.calendars,
       master,
@@ -55,10 +56,12 @@ export function runSeriesChecks(input: CheckInput, resolver: SettingsResolver, f
       previous: input.previous ? findSeries(input.previous, series.id) : undefined,
       feedLatest,
     };
-    for (const check of seriesChecks) {
-      const { enabled, params } = resolver.resolve(check, master?.category, series.id);
-      if (enabled) findings.push(...check.run(series, context, params));
-    }
+    const resolved = seriesChecks.map((check) => resolver.resolve(check, master?.category, series.id));
+    const readsMoves = seriesChecks.some((check, c) => check.readsMoves && resolved[c].enabled);
+    const context = readsMoves ? { ...base, moves: analyseMoves(series, base, claimingParams(seriesChecks, resolved)) } : base;
+    seriesChecks.forEach((check, c) => {
+      if (resolved[c].enabled) findings.push(...check.run(series, context, resolved[c].params));
+    });
   }
   return findings;
 }
@@ -82,6 +85,15 @@ export function runFeedChecks(input: CheckInput, resolver: SettingsResolver): Fi
     if (enabled) findings.push(...check.run(feed, params));
   }
   return findings;
+}
+
+/** The series' resolved parameters of the checks that claim steps from others, when enabled. */
+function claimingParams(checks: readonly SeriesCheck[], resolved: readonly ResolvedCheck[]): ClaimingParams {
+  const claiming: Record<string, unknown> = {};
+  checks.forEach((check, c) => {
+    if (resolved[c].enabled && (check.id === 'date_shift' || check.id === 'split_like_jump' || check.id === 'spike_reversal')) claiming[check.id] = resolved[c].params;
+  });
+  return claiming as ClaimingParams;
 }
 
 /** The latest NAV date of the whole feed on or before the as-of (what "up to date" means). */

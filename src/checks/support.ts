@@ -70,12 +70,15 @@ export function median(values: ArrayLike<number>): number {
   if (n === 0) return NaN;
   const work = new Float64Array(n); // a plain copy loop: Float64Array.from walks an iterator
   for (let i = 0; i < n; i++) work[i] = values[i];
-  const upper = selectKth(work, n >> 1);
+  const upper = kthSmallest(work, n >> 1);
   return n % 2 === 1 ? upper : (maxBelow(work, n >> 1) + upper) / 2;
 }
 
-/** Rearranges `work` so that position k holds the k-th smallest value, and returns it. */
-function selectKth(work: Float64Array, k: number): number {
+/**
+ * Rearranges `work` in place so that position k holds the k-th smallest value (0-based), every
+ * value before it is no larger and every value after it no smaller; returns it. Linear time.
+ */
+export function kthSmallest(work: Float64Array, k: number): number {
   let low = 0;
   let high = work.length - 1;
   while (high > low) {
@@ -98,7 +101,7 @@ function selectKth(work: Float64Array, k: number): number {
   return work[k];
 }
 
-/** After selectKth(work, k): the largest value left of k, the (k − 1)-th smallest. */
+/** After kthSmallest(work, k): the largest value left of k, the (k − 1)-th smallest. */
 function maxBelow(work: Float64Array, k: number): number {
   let max = -Infinity;
   for (let i = 0; i < k; i++) if (work[i] > max) max = work[i];

@@ -5,6 +5,7 @@ import { ConfigError } from '../ingest/errors.js';
 import { OUTPUT_FORMATS, type OutputFormat } from '../report/render.js';
 import { loadRunConfig, type RunConfig } from '../config/run-config.js';
 import type { LoadOptions } from '../ingest/feed.js';
+import { readLimits } from '../ingest/limits.js';
 
 /** Options several commands share, with one parser each so every command reads them alike. */
 export const formatOption = () =>
@@ -30,13 +31,15 @@ export function parseThreads(text: string | undefined): number | undefined {
 export const profilesOption = () =>
   new Option('--config <file>', "read each file with the feed profile its kind has in this run configuration (and the configuration's weekend)");
 
-/** Feed profiles and weekend from a run configuration, for commands given files one by one. */
-export function loadOptionsFrom(configPath: string | undefined): LoadOptions {
-  return loadOptionsOf(configPath === undefined ? undefined : loadRunConfig(configPath));
+/** Feed profiles, weekend and limits from a run configuration, for commands given files one by one. */
+export function loadOptionsFrom(configPath: string | undefined, asOf?: number): LoadOptions {
+  return loadOptionsOf(configPath === undefined ? undefined : loadRunConfig(configPath), asOf);
 }
 
-export function loadOptionsOf(config: RunConfig | undefined): LoadOptions {
-  return config ? { profiles: config.profiles, weekendDays: config.weekend } : {};
+/** The limits' plausible date range ends a year after `asOf` (default: today) unless the configuration says otherwise. */
+export function loadOptionsOf(config: RunConfig | undefined, asOf?: number): LoadOptions {
+  const limits = readLimits(config?.limits, asOf);
+  return config ? { profiles: config.profiles, weekendDays: config.weekend, limits } : { limits };
 }
 
 export function chosenFormat(format: string | undefined): OutputFormat {

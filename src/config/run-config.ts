@@ -1,15 +1,18 @@
-import { readFileSync } from 'node:fs';
+import { statSync } from 'node:fs';
 import { dirname, relative, resolve } from 'node:path';
 import { z } from 'zod';
 import { parseIsoDate } from '../calendar/days.js';
-import { ConfigError, InputError } from '../ingest/errors.js';
+import { ConfigError, quoteInput } from '../ingest/errors.js';
+import { readInputFile } from '../ingest/input-file.js';
+import { LimitsSchema, MAX_CONFIG_BYTES_VARIABLE, maxConfigBytes } from '../ingest/limits.js';
 import type { FeedPaths, FeedProfiles } from '../ingest/feed.js';
 import { FeedProfileSchema, type FeedProfile } from '../ingest/profile.js';
 import { FILE_KINDS, type FileKind } from '../ingest/schema.js';
 import { CheckSettingsSchema, type CheckSettings } from '../checks/settings.js';
 import { MethodologySchema } from '../metrics/methodology.js';
 import { OUTPUT_FORMATS } from '../report/render.js';
-import { parseYaml, validateYaml } from './yaml-errors.js';
+import { checkOutputsApart, runOutputFiles, type NamedPath } from './output-paths.js';
+import { parseYaml, validateYaml, type LocatedYaml } from './yaml-errors.js';
 
 /**
  * The run configuration: one YAML file that says where a feed's files are, how each vendor
@@ -60,6 +63,8 @@ export const RunConfigSchema = z
     fail_on: z.enum(['info', 'warning', 'error', 'critical', 'none']).default('error'),
     /** Worker threads for the checks; by default one per available core (at most 8). */
     threads: z.number().int().min(1).max(64).optional(),
+    /** Sizes, widths and the plausible date range the readers hold inputs to (docs/ingestion.md). */
+    limits: LimitsSchema.default(LimitsSchema.parse({})),
   })
   .strict();
 
@@ -74,13 +79,9 @@ export interface RunConfig extends Omit<RunConfigFile, 'files' | 'profiles' | 'c
 }
 
 export function loadRunConfig(path: string): RunConfig {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch {
-    throw new InputError(`${path}: cannot open the run configuration; check the path.`);
-  }
+  const text = readConfigText(path);
   const yaml = parseYaml(text, path);
+  checkProfileNames(yaml);
   const file = validateYaml(yaml, RunConfigSchema);
   const base = dirname(resolve(path));
   // Paths are kept relative to the working directory when they can be, so reports name files as a person would.
@@ -93,17 +94,17 @@ export function loadRunConfig(path: string): RunConfig {
     const { path: filePath, profile } = typeof entry === 'string' ? { path: entry, profile: undefined } : entry;
     paths[kind] = at(filePath);
     if (profile !== undefined) {
-      const chosen = file.profiles[profile];
+      const chosen = Object.hasOwn(file.profiles, profile) ? file.profiles[profile] : undefined;
       if (!chosen) {
-        const known = Object.keys(file.profiles).join(', ') || 'none';
+        const known = Object.keys(file.profiles).map((name) => quoteInput(name, 40)).join(', ') || 'none';
         throw new ConfigError(
-          `${path}, line ${yaml.lineOf(['files', kind, 'profile'])}: files.${kind}.profile names "${profile}", which is not under profiles (defined: ${known}); define it or fix the name.`,
+          `${path}, line ${yaml.lineOf(['files', kind, 'profile'])}: files.${kind}.profile names ${quoteInput(profile)}, which is not under profiles (defined: ${known}); define it or fix the name.`,
         );
       }
       profiles[kind] = chosen;
     }
   }
-  return {
+  const config: RunConfig = {
     ...file,
     checks: file.checks as CheckSettings,
     path,
@@ -113,4 +114,54 @@ export function loadRunConfig(path: string): RunConfig {
     previous: file.previous === undefined ? undefined : at(file.previous),
     output: { ...file.output, dir: at(file.output.dir) },
   };
+  checkOutputsApart(path, runInputs(config), runOutputFiles(config.output.dir, config.output.formats), [{ key: 'store', path: config.store }]);
+  return config;
+}
+
+/** Every file a run reads, each named by its configuration key. */
+export function runInputs(config: Pick<RunConfig, 'paths' | 'previous'>): NamedPath[] {
+  const inputs: NamedPath[] = FILE_KINDS.flatMap((kind) => {
+    const path = config.paths[kind];
+    return path === undefined ? [] : [{ key: `files.${kind}`, path }];
+  });
+  return config.previous === undefined ? inputs : [...inputs, { key: 'previous', path: config.previous }];
+}
+
+/**
+ * The configuration's text, read only from a regular file and only up to its size limit: a
+ * 56 MB YAML file would take gigabytes to parse. The limit cannot be raised from inside the file
+ * it limits, so it is set by an environment variable.
+ */
+function readConfigText(path: string): string {
+  const limit = maxConfigBytes();
+  let size = 0;
+  try {
+    size = statSync(path).size;
+  } catch {
+    // readInputFile below explains a missing or unreadable file
+  }
+  if (size > limit) {
+    throw new ConfigError(
+      `${path}: the run configuration is ${size} bytes, more than the limit of ${limit}; a configuration is a few kilobytes, so check that this is the right file (set ${MAX_CONFIG_BYTES_VARIABLE} to raise the limit).`,
+    );
+  }
+  return readInputFile(path, limit, 'the run configuration').toString('utf8');
+}
+
+/**
+ * Profile names become keys of a plain object; names that plain objects already carry
+ * (`__proto__`, `constructor`, `toString` …) would change the object itself or be found where no
+ * profile was defined, so they are refused with the line.
+ */
+function checkProfileNames(yaml: LocatedYaml): void {
+  const value = yaml.value as { profiles?: unknown } | null;
+  const profiles = value && typeof value === 'object' ? value.profiles : undefined;
+  if (!profiles || typeof profiles !== 'object') return;
+  for (const name of Object.getOwnPropertyNames(profiles)) {
+    if (name in Object.prototype) {
+      throw new ConfigError(
+        `${yaml.file}, line ${yaml.lineOf(['profiles', name])}: profiles.${name}: the name ${quoteInput(name)} is reserved; give the profile another name.`,
+      );
+    }
+  }
 }

@@ -1,6 +1,7 @@
-import { LineCounter, parseDocument, type Document } from 'yaml';
+import { isAlias, isCollection, isPair, isScalar, LineCounter, parseDocument, type Document } from 'yaml';
 import type { z } from 'zod';
-import { ConfigError } from '../ingest/errors.js';
+import { ConfigError, cutInput } from '../ingest/errors.js';
+import { LIMIT_DEFAULTS } from '../ingest/limits.js';
 
 /** A parsed YAML document that can say on which line a key path stands. */
 export interface LocatedYaml {
@@ -9,13 +10,19 @@ export interface LocatedYaml {
   lineOf(path: ReadonlyArray<PropertyKey>): number;
 }
 
+/**
+ * Parses YAML from a file nobody vetted. Two limits, which the document's own `limits:` section
+ * may raise, keep it bounded: the nesting depth of its collections (a thousand nested brackets
+ * would overflow the stack) and the alias expansions (`*name`; nine aliases to nine aliases,
+ * ten levels deep, would expand to billions of nodes).
+ */
 export function parseYaml(text: string, file: string): LocatedYaml {
   const lineCounter = new LineCounter();
-  const document: Document = parseDocument(text, { lineCounter, prettyErrors: false });
+  const document: Document = guarded(file, () => parseDocument(text, { lineCounter, prettyErrors: false }));
   if (document.errors.length > 0) {
     const error = document.errors[0];
     const line = lineCounter.linePos(error.pos[0]).line;
-    throw new ConfigError(`${file}, line ${line}: the YAML cannot be read (${error.message.split('\n')[0]}); fix the syntax.`);
+    throw new ConfigError(`${file}, line ${line}: the YAML cannot be read (${cutInput(error.message)}); fix the syntax.`);
   }
   const lineOf = (path: ReadonlyArray<PropertyKey>): number => {
     for (let depth = path.length; depth >= 0; depth--) {
@@ -24,7 +31,68 @@ export function parseYaml(text: string, file: string): LocatedYaml {
     }
     return 1;
   };
-  return { file, value: document.toJS() ?? {}, lineOf };
+  const maxDepth = documentLimit(document, 'yaml_max_depth', LIMIT_DEFAULTS.yaml_max_depth);
+  const tooDeep = deepestNode(document.contents, maxDepth);
+  if (tooDeep) {
+    const line = tooDeep.range ? lineCounter.linePos(tooDeep.range[0]).line : 1;
+    throw new ConfigError(`${file}, line ${line}: the YAML nests deeper than ${maxDepth} levels; flatten it, or raise limits.yaml_max_depth if it is genuine.`);
+  }
+  const maxAliasCount = documentLimit(document, 'yaml_max_aliases', LIMIT_DEFAULTS.yaml_max_aliases);
+  const value = guarded(file, () => {
+    try {
+      return document.toJS({ maxAliasCount });
+    } catch (error) {
+      if (error instanceof ReferenceError && /alias/i.test(error.message)) {
+        throw new ConfigError(`${file}: the YAML expands its aliases (*name) more than ${maxAliasCount} times; write the values out, or raise limits.yaml_max_aliases if it is genuine.`);
+      }
+      throw error;
+    }
+  });
+  return { file, value: value ?? {}, lineOf };
+}
+
+/** Runs a step of the YAML library; a stack overflow on a malformed nesting becomes a ConfigError. */
+function guarded<T>(file: string, step: () => T): T {
+  try {
+    return step();
+  } catch (error) {
+    if (error instanceof ConfigError) throw error;
+    if (error instanceof RangeError) {
+      throw new ConfigError(`${file}: the YAML nests too deeply to be read; flatten it.`);
+    }
+    throw new ConfigError(`${file}: the YAML cannot be read (${cutInput(String((error as Error)?.message ?? error))}); fix the syntax.`);
+  }
+}
+
+/** A limit the document sets for itself under `limits:`, when it is a plain whole number. */
+function documentLimit(document: Document, key: string, fallback: number): number {
+  let node: unknown;
+  try {
+    node = document.getIn(['limits', key], true);
+  } catch {
+    return fallback; // `limits` is not a mapping; validation reports it
+  }
+  const value = isScalar(node) ? node.value : undefined;
+  return typeof value === 'number' && Number.isInteger(value) && value >= 0 ? value : fallback;
+}
+
+type RangedNode = { range?: [number, number, number] | null };
+
+/** The first collection nested deeper than `maxDepth`, found without recursion, or null. */
+function deepestNode(root: unknown, maxDepth: number): RangedNode | null {
+  const stack: Array<{ node: unknown; depth: number }> = [{ node: root, depth: 0 }];
+  while (stack.length > 0) {
+    const { node, depth } = stack.pop()!;
+    if (isPair(node)) {
+      stack.push({ node: node.key, depth }, { node: node.value, depth });
+    } else if (isCollection(node)) {
+      if (depth + 1 > maxDepth) return node as RangedNode;
+      for (const item of node.items) stack.push({ node: item, depth: depth + 1 });
+    } else if (isAlias(node) || isScalar(node)) {
+      continue;
+    }
+  }
+  return null;
 }
 
 /** Validates a located YAML value; the first problem becomes one sentence with file, line and key path. */

@@ -1,6 +1,8 @@
 import { DataType, makeVector, tableFromIPC, TimeUnit, util, type Data, type Table, type Vector } from 'apache-arrow';
 import { ingestColumnarFile, TextDictionaryBuilder, type SourceColumn } from './columnar-ingest.js';
-import { InputError } from './errors.js';
+import { checkFooterCoversFile, validateArrowTable } from './arrow-validate.js';
+import { cutInput, InputError } from './errors.js';
+import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import type { FeedProfile } from './profile.js';
 import type { FileKind } from './schema.js';
 import { NULL_BOOLEAN, NULL_DATE, type IngestResult } from './table.js';
@@ -11,8 +13,15 @@ const MILLIS_PER_DAY = 86_400_000;
  * Reads a canonical file held as Arrow IPC (file or stream format, `.arrow` / `.feather` v2).
  * Typed columns are taken as typed; text columns are parsed with the profile's rules.
  */
-export function readArrowBuffer(bytes: Uint8Array, fileName: string, kind: FileKind, profile: FeedProfile): IngestResult {
+export function readArrowBuffer(
+  bytes: Uint8Array,
+  fileName: string,
+  kind: FileKind,
+  profile: FeedProfile,
+  limits: ReadLimits = DEFAULT_READ_LIMITS,
+): IngestResult {
   const table = openArrowTable(bytes, fileName);
+  validateArrowTable(table, fileName, limits.maxHeaderColumns);
   const columnNames = table.schema.fields.map((field) => field.name);
   return ingestColumnarFile(
     {
@@ -23,15 +32,19 @@ export function readArrowBuffer(bytes: Uint8Array, fileName: string, kind: FileK
     },
     kind,
     profile,
+    limits,
   );
 }
 
 function openArrowTable(bytes: Uint8Array, fileName: string): Table {
   try {
-    return tableFromIPC(bytes);
+    const table = tableFromIPC(bytes);
+    checkFooterCoversFile(bytes, fileName);
+    return table;
   } catch (error) {
+    if (error instanceof InputError) throw error;
     throw new InputError(
-      `${fileName} cannot be read as an Arrow IPC file (${(error as Error).message}); check that it is an uncompressed Arrow file or stream, or export it as CSV or Parquet.`,
+      `${fileName} cannot be read as an Arrow IPC file (${cutInput(String((error as Error)?.message ?? error))}); check that it is an uncompressed Arrow file or stream, or export it as CSV or Parquet.`,
     );
   }
 }

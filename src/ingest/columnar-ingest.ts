@@ -1,6 +1,8 @@
 import { formatIsoDate } from '../calendar/days.js';
-import { InputError } from './errors.js';
+import { InputError, quoteInput } from './errors.js';
 import { DateOrderEvidence } from './date-order.js';
+import { cleanIdentifier, type IdentifierMode } from './identifiers.js';
+import { DEFAULT_READ_LIMITS, limitsForKind, type ReadLimits } from './limits.js';
 import type { DateFormat, FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
 import { numberStyle, parseBooleanWord, parseDateText, parseNumberText, type NumberStyle } from './scalars.js';
@@ -80,20 +82,36 @@ function missingColumnError(
 ): InputError {
   const mapped = profile.columns[spec.name];
   const looked = mapped && mapped !== spec.name ? `"${mapped}" (mapped to ${spec.name})` : `"${spec.name}"`;
-  const found = columnNames.length > 0 ? columnNames.join(', ') : 'none';
+  const found = columnNames.length > 0 ? shownColumnNames(columnNames) : 'none';
   return new InputError(
     `${fileName} has no column ${looked}, which a ${kind} file needs (columns found: ${found}); rename the column or map it in the feed profile's columns.`,
   );
 }
 
+/** The file's column names for an error message: the first few, each cut short, and how many there are. */
+export function shownColumnNames(names: readonly string[], count = 20): string {
+  const shown = names.slice(0, count).map((name) => (name.length > 40 ? `${name.slice(0, 40)}…` : name)).join(', ');
+  return names.length > count ? `${shown} and ${names.length - count} more` : shown;
+}
+
 /** Reads every canonical column of a kind from a columnar file and applies the row rules. */
-export function ingestColumnarFile(file: ColumnarFile, kind: FileKind, profile: FeedProfile): IngestResult {
-  const found = matchColumns(file.fileName, file.columnNames, kind, profile).map(({ spec, sourceName }) => {
+export function ingestColumnarFile(
+  file: ColumnarFile,
+  kind: FileKind,
+  profile: FeedProfile,
+  allLimits: ReadLimits = DEFAULT_READ_LIMITS,
+): IngestResult {
+  const limits = limitsForKind(kind, allLimits);
+  const found = matchColumns(file.fileName, file.columnNames, kind, profile).map(({ spec, sourceName }): FoundColumn => {
     const source = file.readColumn(sourceName);
     const converted = toCanonicalColumn(spec, source, profile, { fileName: file.fileName, sourceName });
-    return { spec, sourceName, source, converted };
+    if (spec.type === 'id' && converted.type === 'text') {
+      const cleaned = cleanIdColumn(spec.name, converted, profile.identifiers ?? 'strict');
+      return { spec, sourceName, source, converted: cleaned.column, complaints: cleaned.complaints };
+    }
+    return { spec, sourceName, source, converted, complaints: textComplaints(spec, converted) };
   });
-  return assembleResult(file, kind, found);
+  return assembleResult(file, kind, found, limits);
 }
 
 interface FoundColumn {
@@ -101,6 +119,34 @@ interface FoundColumn {
   readonly sourceName: string;
   readonly source: SourceColumn;
   readonly converted: Column;
+  /** For text columns with a rule: the complaint about each dictionary entry, or null. */
+  readonly complaints: (string | null)[] | null;
+}
+
+/**
+ * Applies the identifier rule once per distinct id. Entries that clean to the same id share one
+ * code; a refused entry keeps a code of its own with its complaint, so its rows are rejected.
+ */
+function cleanIdColumn(name: string, column: TextColumn, mode: IdentifierMode): { column: TextColumn; complaints: (string | null)[] } {
+  const dictionary: string[] = [];
+  const complaints: (string | null)[] = [];
+  const codeOfValue = new Map<string, number>();
+  const newCode = Int32Array.from(column.dictionary, (entry) => {
+    const cleaned = cleanIdentifier(name, entry, mode);
+    if (cleaned.problem !== null) {
+      complaints.push(cleaned.problem);
+      return dictionary.push(entry) - 1;
+    }
+    let code = codeOfValue.get(cleaned.value);
+    if (code === undefined) {
+      code = dictionary.push(cleaned.value) - 1;
+      complaints.push(null);
+      codeOfValue.set(cleaned.value, code);
+    }
+    return code;
+  });
+  const codes = column.codes.map((code) => (code < 0 ? code : newCode[code]));
+  return { column: { type: 'text', codes, dictionary }, complaints };
 }
 
 interface ConversionContext {
@@ -255,13 +301,18 @@ const NO_PROBLEM = -1;
  * that column's complaint. A value that is missing where the column is not nullable, a value that
  * is present but does not convert, and a text value its column does not allow all reject the row.
  */
-function findProblems(found: readonly FoundColumn[], rowCount: number) {
+function findProblems(found: readonly FoundColumn[], rowCount: number, limits: ReadLimits) {
   const problemOf = new Int16Array(rowCount).fill(NO_PROBLEM);
-  found.forEach(({ spec, source, converted }, index) => {
+  found.forEach(({ spec, source, converted, complaints }, index) => {
     forEachMissing(converted, (row) => {
       if (problemOf[row] === NO_PROBLEM && (!spec.nullable || isPresent(source, row))) problemOf[row] = index;
     });
-    const complaintOfCode = textComplaints(spec, converted);
+    if (converted.type === 'date') {
+      for (let row = 0; row < rowCount; row++) {
+        if (problemOf[row] === NO_PROBLEM && outsideRange(converted.values[row], limits)) problemOf[row] = index;
+      }
+    }
+    const complaintOfCode = complaints;
     if (!complaintOfCode || converted.type !== 'text') return;
     for (let row = 0; row < rowCount; row++) {
       const code = converted.codes[row];
@@ -277,11 +328,21 @@ function textComplaints(spec: ColumnSpec, column: Column): (string | null)[] | n
   return column.dictionary.map(spec.validate);
 }
 
-function assembleResult(file: ColumnarFile, kind: FileKind, found: readonly FoundColumn[]): IngestResult {
-  const problemOf = findProblems(found, file.rowCount);
+/** True for a date present but outside the plausible range of the limits. */
+export function outsideRange(day: number, limits: ReadLimits): boolean {
+  return day !== NULL_DATE && (day < limits.firstDay || day > limits.lastDay);
+}
+
+/** The rejection reason of a date outside the plausible range, the same for every reader. */
+export function rangeReason(label: string, day: number, limits: ReadLimits): string {
+  return `${label} ${formatIsoDate(day)} is outside the plausible range ${formatIsoDate(limits.firstDay)} to ${formatIsoDate(limits.lastDay)} (limits.earliest_date and limits.latest_date in the run configuration)`;
+}
+
+function assembleResult(file: ColumnarFile, kind: FileKind, found: readonly FoundColumn[], limits: ReadLimits): IngestResult {
+  const problemOf = findProblems(found, file.rowCount, limits);
   const rejected: RejectedRow[] = [];
   for (let row = 0; row < file.rowCount; row++) {
-    if (problemOf[row] !== NO_PROBLEM) rejected.push(rejectedRow(file.fileName, found, row, found[problemOf[row]]));
+    if (problemOf[row] !== NO_PROBLEM) rejected.push(rejectedRow(file.fileName, found, row, found[problemOf[row]], limits));
   }
   const keep = acceptedRows(problemOf, file.rowCount - rejected.length);
   const columns: Record<string, Column> = {};
@@ -314,10 +375,10 @@ function acceptedRows(problemOf: Int16Array, acceptedCount: number): Int32Array 
   return keep;
 }
 
-function rejectedRow(fileName: string, found: readonly FoundColumn[], row: number, culprit: FoundColumn): RejectedRow {
+function rejectedRow(fileName: string, found: readonly FoundColumn[], row: number, culprit: FoundColumn, limits: ReadLimits): RejectedRow {
   const record: Record<string, string | number | boolean | null> = {};
   for (const { sourceName, source } of found) record[sourceName] = rawValue(source, row);
-  return { file: fileName, line: lineOfRecord(row), raw: JSON.stringify(record), reason: problemReason(culprit, row) };
+  return { file: fileName, line: lineOfRecord(row), raw: JSON.stringify(record), reason: problemReason(culprit, row, limits) };
 }
 
 function rawValue(source: SourceColumn, row: number): string | number | boolean | null {
@@ -328,14 +389,15 @@ function rawValue(source: SourceColumn, row: number): string | number | boolean 
 
 const TYPE_WORDS = { id: 'an id', text: 'text', date: 'a date', number: 'a number', boolean: 'true or false' } as const;
 
-function problemReason({ spec, sourceName, source, converted }: FoundColumn, row: number): string {
+function problemReason({ spec, sourceName, source, converted, complaints }: FoundColumn, row: number, limits: ReadLimits): string {
   const label = sourceName === spec.name ? spec.name : `${sourceName} (${spec.name})`;
   const shown = displayValue(source, row);
   if (shown === null) return `${label} is missing.`;
-  if (!isMissing(converted, row) && converted.type === 'text' && spec.validate) {
-    return `${spec.validate(converted.dictionary[converted.codes[row]])}.`;
+  if (!isMissing(converted, row) && converted.type === 'text' && complaints) {
+    return `${complaints[converted.codes[row]]}.`;
   }
-  return `${label} ${JSON.stringify(shown)} is not ${TYPE_WORDS[spec.type]}.`;
+  if (converted.type === 'date' && outsideRange(converted.values[row], limits)) return `${rangeReason(label, converted.values[row], limits)}.`;
+  return `${label} ${quoteInput(shown)} is not ${TYPE_WORDS[spec.type]}.`;
 }
 
 function gatherColumn(column: Column, keep: Int32Array): Column {

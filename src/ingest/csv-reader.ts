@@ -1,8 +1,11 @@
-import { readFileSync } from 'node:fs';
 import { BooleanBuilder, DateBuilder, NumberBuilder, TextBuilder, type ColumnBuilder } from './column-builders.js';
 import { CsvRowScanner } from './csv-rows.js';
+import { outsideRange, rangeReason, shownColumnNames } from './columnar-ingest.js';
 import { resolveDateFormat } from './date-order.js';
-import { InputError } from './errors.js';
+import { InputError, quoteInput } from './errors.js';
+import { cleanIdentifier, type IdentifierMode } from './identifiers.js';
+import { readInputFile } from './input-file.js';
+import { DEFAULT_READ_LIMITS, limitsForKind, type ReadLimits } from './limits.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
 import { INVALID_DAY, isoDateAt, parseBooleanWord, parseNumberInto, parseDateText, parseIsoDateBytes, parseNumberBytes, numberStyle, type NumberStyle } from './scalars.js';
@@ -14,6 +17,10 @@ const CR = 13;
 const QUOTE_ESCAPE = /""/g;
 /** textCode's answer for an id holding a quote in an unquoted field. */
 const STRAY_QUOTE = -2;
+/** textCode's answer for an id the identifier rule refuses. */
+const REFUSED_ID = -3;
+/** Longest field text decoded to be quoted in a rejection reason. */
+const SHOWN_BYTES = 320;
 
 /** One canonical column being filled from one field of the file. */
 interface ColumnPlan {
@@ -26,34 +33,35 @@ interface ColumnPlan {
   lastStart: number;
   lastEnd: number;
   lastCode: number;
+  /** For id columns: the code of each distinct id as written, or REFUSED_ID (the rule runs once per id). */
+  readonly idCodes: Map<string, number> | null;
 }
 
-export function readCsvFile(path: string, kind: FileKind, profile: FeedProfile): IngestResult {
-  return readCsvBuffer(readInput(path), path, kind, profile);
-}
-
-export function readInput(path: string): Buffer {
-  try {
-    return readFileSync(path);
-  } catch (error) {
-    const reason = (error as NodeJS.ErrnoException).code === 'ENOENT' ? 'it does not exist' : (error as Error).message;
-    throw new InputError(`${path}: cannot open the file because ${reason}; check the path and permissions.`);
-  }
+export function readCsvFile(path: string, kind: FileKind, profile: FeedProfile, limits: ReadLimits = DEFAULT_READ_LIMITS): IngestResult {
+  return readCsvBuffer(readInputFile(path, limits.maxInputBytes), path, kind, profile, limits);
 }
 
 /**
  * Reads one canonical CSV file. Every data row is either accepted into the typed columns or
  * rejected with its line, its raw text and the reason; blank lines are not data rows.
  */
-export function readCsvBuffer(input: Uint8Array, fileName: string, kind: FileKind, profile: FeedProfile): IngestResult {
+export function readCsvBuffer(
+  input: Uint8Array,
+  fileName: string,
+  kind: FileKind,
+  profile: FeedProfile,
+  allLimits: ReadLimits = DEFAULT_READ_LIMITS,
+): IngestResult {
+  const limits = limitsForKind(kind, allLimits);
   const bytes = Buffer.from(input.buffer, input.byteOffset, input.byteLength);
   const begin = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
   const quote = profile.quote.charCodeAt(0);
   const delimiter = chooseDelimiter(bytes, begin, profile, fileName);
-  const header = readHeader(bytes, begin, delimiter, quote, fileName, kind);
+  const header = readHeader(bytes, begin, delimiter, quote, fileName, kind, limits.maxHeaderColumns);
   const plans = planColumns(header.names, kind, profile, fileName);
   const dateFormat = resolveDateFormat(bytes, header.headerStart, header.names.length, delimiter, quote, plans, profile, fileName);
-  const reader = new RowReader(bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands), quote);
+  const rules = { limits, identifiers: profile.identifiers ?? 'strict' };
+  const reader = new RowReader(bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands), quote, rules);
   reader.reserve(estimateRows(bytes, header.headerStart));
   const scanner = new CsvRowScanner(bytes, header.headerStart, delimiter, quote, header.names.length + 1);
   scanner.next(); // the header row itself
@@ -98,8 +106,8 @@ function chooseDelimiter(bytes: Buffer, begin: number, profile: FeedProfile, fil
   return best.d.charCodeAt(0);
 }
 
-function readHeader(bytes: Buffer, begin: number, delimiter: number, quote: number, fileName: string, kind: FileKind) {
-  const scanner = new CsvRowScanner(bytes, begin, delimiter, quote, 4096);
+function readHeader(bytes: Buffer, begin: number, delimiter: number, quote: number, fileName: string, kind: FileKind, maxColumns: number) {
+  const scanner = new CsvRowScanner(bytes, begin, delimiter, quote, maxColumns + 1);
   const expected = CANONICAL_COLUMNS[kind].filter((c) => c.required).map((c) => c.name).join(', ');
   if (!scanner.next()) {
     throw new InputError(`${fileName}, line 1: the file is empty; send a header row with the columns ${expected}.`);
@@ -108,6 +116,11 @@ function readHeader(bytes: Buffer, begin: number, delimiter: number, quote: numb
     throw new InputError(`${fileName}, line 1: the first line is blank, so the file has no header row; put the header with the columns ${expected} on line 1.`);
   }
   if (scanner.error) throw new InputError(`${fileName}, line 1: the header cannot be read because ${scanner.error}; fix the header row.`);
+  if (scanner.fieldCount > maxColumns) {
+    throw new InputError(
+      `${fileName}, line 1: the header has ${scanner.fieldCount} columns, more than the limit of ${maxColumns}; raise limits.max_header_columns in the run configuration if the file is genuine.`,
+    );
+  }
   const names: string[] = [];
   for (let k = 0; k < Math.min(scanner.fieldCount, scanner.starts.length); k++) {
     names.push(decodeQuoted(bytes, scanner.starts[k], scanner.ends[k], scanner.quoted[k], quote).trim());
@@ -124,11 +137,12 @@ function planColumns(names: readonly string[], kind: FileKind, profile: FeedProf
       if (!spec.required) continue;
       const mapped = sourceName === spec.name ? '' : ` (mapped from "${sourceName}")`;
       throw new InputError(
-        `${fileName}, line 1: the header has no column "${spec.name}"${mapped} (found: ${names.join(', ')}); add the column or map it in the feed profile's columns.`,
+        `${fileName}, line 1: the header has no column "${spec.name}"${mapped} (found: ${shownColumnNames(names)}); add the column or map it in the feed profile's columns.`,
       );
     }
     const textCopy = spec.keepsText ? new TextBuilder() : null;
-    plans.push({ spec, field, builder: builderFor(spec), textCopy, lastStart: -1, lastEnd: -1, lastCode: -1 });
+    const idCodes = spec.type === 'id' ? new Map<string, number>() : null;
+    plans.push({ spec, field, builder: builderFor(spec), textCopy, lastStart: -1, lastEnd: -1, lastCode: -1, idCodes });
   }
   return plans;
 }
@@ -177,6 +191,7 @@ class RowReader {
     private readonly dateFormat: DateFormat,
     private readonly numbers: NumberStyle,
     private readonly quote: number,
+    private readonly rules: { readonly limits: ReadLimits; readonly identifiers: IdentifierMode },
   ) {}
 
   /** The plain-row lane serves files whose columns are all ids, ISO dates and numbers. */
@@ -245,12 +260,13 @@ class RowReader {
 
   /** Stores one plain field; false sends the row to the general path. */
   private storePlain(plan: ColumnPlan, start: number, end: number, row: number): boolean {
+    if (end - start > this.rules.limits.maxFieldBytes) return false;
     const type = plan.spec.type;
     if (type === 'number') return parseNumberInto(this.bytes, start, end, this.numbers, (plan.builder as NumberBuilder).values, row);
     if (type === 'date') {
       if (end - start !== 10) return false;
       const day = isoDateAt(this.bytes, start);
-      if (day === INVALID_DAY) return false;
+      if (day === INVALID_DAY || day < this.rules.limits.firstDay || day > this.rules.limits.lastDay) return false;
       (plan.builder as DateBuilder).values[row] = day;
       return true;
     }
@@ -261,7 +277,8 @@ class RowReader {
     }
     const text = this.text(start, end).trim();
     if (text === '') return false;
-    const code = (plan.builder as TextBuilder).codeOf(text);
+    const code = this.idCode(plan, text);
+    if (code === REFUSED_ID) return false;
     plan.lastStart = start;
     plan.lastEnd = end;
     plan.lastCode = code;
@@ -286,6 +303,8 @@ class RowReader {
       scanner.failOnPhysicalLine('a quoted field runs past the end of the line (unbalanced quote)');
       return this.reject(scanner, scanner.error!);
     }
+    const oversized = this.oversizedField(scanner);
+    if (oversized !== null) return this.reject(scanner, oversized);
     const row = this.accepted;
     if (row >= this.lines.length) this.growTo(row + 1);
     for (const plan of this.plans) {
@@ -294,6 +313,18 @@ class RowReader {
     }
     this.lines[row] = scanner.line;
     this.accepted++;
+  }
+
+  /** Why a field of the row is longer than the limit, or null when none is. */
+  private oversizedField(scanner: CsvRowScanner): string | null {
+    const limit = this.rules.limits.maxFieldBytes;
+    for (let k = 0; k < Math.min(scanner.fieldCount, scanner.starts.length); k++) {
+      const length = scanner.ends[k] - scanner.starts[k];
+      if (length > limit) {
+        return `field ${k + 1} is ${length} bytes long, more than the limit of ${limit} (limits.max_field_bytes in the run configuration)`;
+      }
+    }
+    return null;
   }
 
   /** True when a field of a column other than free text holds a line break. */
@@ -325,7 +356,10 @@ class RowReader {
       case 'text': {
         const code = this.textCode(plan, start, end, quoted);
         if (code === STRAY_QUOTE) {
-          return `${plan.spec.name} "${this.text(start, end).trim()}" has a quote inside an unquoted field (unbalanced quote)`;
+          return `${plan.spec.name} ${this.shown(start, end)} has a quote inside an unquoted field (unbalanced quote)`;
+        }
+        if (code === REFUSED_ID) {
+          return cleanIdentifier(plan.spec.name, decodeQuoted(this.bytes, start, end, quoted, this.quote).trim(), this.rules.identifiers).problem;
         }
         if ((builder as TextBuilder).dictionary[code] === '') {
           // Only space-like characters beyond space and tab (such as U+00A0): empty once trimmed.
@@ -339,20 +373,21 @@ class RowReader {
       }
       case 'date': {
         const day = this.parseDate(start, end);
-        if (day === null) return `${plan.spec.name} "${this.text(start, end)}" is not a valid date${this.dateHint()}`;
+        if (day === null) return `${plan.spec.name} ${this.shown(start, end)} is not a valid date${this.dateHint()}`;
+        if (outsideRange(day, this.rules.limits)) return rangeReason(plan.spec.name, day, this.rules.limits);
         (builder as DateBuilder).values[row] = day;
         return null;
       }
       case 'number': {
         const value = parseNumberBytes(this.bytes, start, end, this.numbers);
-        if (Number.isNaN(value)) return `${plan.spec.name} "${this.text(start, end)}" is not a number`;
+        if (Number.isNaN(value)) return `${plan.spec.name} ${this.shown(start, end)} is not a number`;
         (builder as NumberBuilder).values[row] = value;
         if (plan.textCopy) plan.textCopy.codes[row] = plan.textCopy.codeOf(this.text(start, end).trim());
         return null;
       }
       case 'boolean': {
         const flag = parseBooleanWord(this.text(start, end));
-        if (flag === null) return `${plan.spec.name} "${this.text(start, end)}" is not true/false, yes/no or 1/0`;
+        if (flag === null) return `${plan.spec.name} ${this.shown(start, end)} is not true/false, yes/no or 1/0`;
         (builder as BooleanBuilder).values[row] = flag;
         return null;
       }
@@ -367,11 +402,23 @@ class RowReader {
     if (!quoted && plan.spec.type === 'id' && this.holdsByte(start, end, this.quote)) {
       return STRAY_QUOTE;
     }
-    const code = (plan.builder as TextBuilder).codeOf(decodeQuoted(this.bytes, start, end, quoted, this.quote).trim());
-    if (!quoted) {
+    const text = decodeQuoted(this.bytes, start, end, quoted, this.quote).trim();
+    const code = plan.idCodes ? this.idCode(plan, text) : (plan.builder as TextBuilder).codeOf(text);
+    if (!quoted && code !== REFUSED_ID) {
       plan.lastStart = start;
       plan.lastEnd = end;
       plan.lastCode = code;
+    }
+    return code;
+  }
+
+  /** The code of an id (cleaned under the profile's identifiers rule), or REFUSED_ID. */
+  private idCode(plan: ColumnPlan, text: string): number {
+    let code = plan.idCodes!.get(text);
+    if (code === undefined) {
+      const cleaned = cleanIdentifier(plan.spec.name, text, this.rules.identifiers);
+      code = cleaned.problem === null ? (plan.builder as TextBuilder).codeOf(cleaned.value) : REFUSED_ID;
+      plan.idCodes!.set(text, code);
     }
     return code;
   }
@@ -404,8 +451,18 @@ class RowReader {
     return this.bytes.toString('utf8', start, end);
   }
 
+  /** A field as a reason quotes it: JSON-quoted and cut, so a huge field never fills the report. */
+  private shown(start: number, end: number): string {
+    if (end - start <= SHOWN_BYTES) return quoteInput(this.text(start, end));
+    return `${quoteInput(this.text(start, start + SHOWN_BYTES))} (${end - start} bytes)`;
+  }
+
+  /** The row as the quarantine keeps it: its text, cut at the field limit so one row stays bounded. */
   private reject(scanner: CsvRowScanner, reason: string): void {
-    this.rejected.push({ file: this.fileName, line: scanner.line, raw: this.text(scanner.rowStart, scanner.rowEnd), reason });
+    const limit = this.rules.limits.maxFieldBytes;
+    const end = Math.min(scanner.rowEnd, scanner.rowStart + limit);
+    const raw = this.text(scanner.rowStart, end) + (end < scanner.rowEnd ? `… (${scanner.rowEnd - scanner.rowStart} bytes in all)` : '');
+    this.rejected.push({ file: this.fileName, line: scanner.line, raw, reason });
   }
 
   reserve(rows: number): void {

@@ -54,6 +54,8 @@ export class DateOrderEvidence {
   }
 }
 
+const LONGEST_DATE = 64;
+
 export function resolveDateFormat(
   bytes: Buffer,
   headerStart: number,
@@ -84,6 +86,8 @@ function gatherEvidence(scanner: CsvRowScanner, bytes: Buffer, dateFields: reado
   while (scanner.next()) {
     if (scanner.isBlank() || scanner.error !== null || scanner.fieldCount !== fieldCount) continue;
     for (const field of dateFields) {
+      // No written date is longer; a huge field is rejected by the row reader, not decoded here.
+      if (scanner.ends[field] - scanner.starts[field] > LONGEST_DATE) continue;
       const text = bytes.toString('utf8', scanner.starts[field], scanner.ends[field]).trim();
       if (text === '' || evidence.record(text, () => scanner.line)) continue;
       if (!evidence.sawNumeric && parseDateText(text, 'auto') !== null) return null;

@@ -1,6 +1,7 @@
 import type { BusinessCalendars } from '../calendar/business-calendar.js';
 import type { SeriesFrame } from '../series/frame.js';
 import { toCalendars, toCorporateActions, toMasterRecords, toSeriesFrame, toVendorFigures } from './convert.js';
+import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import { DEFAULT_PROFILE, type FeedProfile } from './profile.js';
 import { readFeedFile } from './read.js';
 import type {
@@ -37,12 +38,14 @@ export interface LoadOptions {
   readonly profiles?: FeedProfiles;
   /** ISO weekdays (1 = Monday … 7 = Sunday) that are never business days; Saturday and Sunday by default. */
   readonly weekendDays?: readonly number[];
+  /** Field, header and file sizes, and the plausible date range (default: limits.ts, as of today). */
+  readonly limits?: ReadLimits;
 }
 
 export async function loadFeed(paths: FeedPaths, options: LoadOptions = {}): Promise<LoadedFeed> {
   const read = async (kind: FileKind) => {
     const path = paths[kind];
-    return path === undefined ? undefined : readFeedFile(path, kind, options.profiles?.[kind] ?? DEFAULT_PROFILE);
+    return path === undefined ? undefined : readFeedFile(path, kind, options.profiles?.[kind] ?? DEFAULT_PROFILE, options.limits ?? DEFAULT_READ_LIMITS);
   };
   const nav = (await read('nav'))!;
   const [benchmarks, master, rates, holidays, actions, vendor] = await Promise.all(
@@ -74,6 +77,10 @@ export function totalRows(results: readonly IngestResult[]): RowAccounting {
 }
 
 /** Reads the NAV file of an earlier snapshot, for restatement checks. */
-export async function loadPreviousNav(path: string, profile: FeedProfile = DEFAULT_PROFILE): Promise<SeriesFrame> {
-  return toSeriesFrame((await readFeedFile(path, 'nav', profile)).table, 'nav');
+export async function loadPreviousNav(
+  path: string,
+  profile: FeedProfile = DEFAULT_PROFILE,
+  limits: ReadLimits = DEFAULT_READ_LIMITS,
+): Promise<SeriesFrame> {
+  return toSeriesFrame((await readFeedFile(path, 'nav', profile, limits)).table, 'nav');
 }

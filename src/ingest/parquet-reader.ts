@@ -8,7 +8,8 @@ import {
   type SchemaElement,
 } from 'hyparquet';
 import { ingestColumnarFile, matchColumns, TextDictionaryBuilder, type SourceColumn } from './columnar-ingest.js';
-import { InputError } from './errors.js';
+import { cutInput, InputError } from './errors.js';
+import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import type { FeedProfile } from './profile.js';
 import type { FileKind } from './schema.js';
 import { NULL_BOOLEAN, NULL_DATE, type IngestResult } from './table.js';
@@ -41,19 +42,50 @@ export async function readParquetBuffer(
   fileName: string,
   kind: FileKind,
   profile: FeedProfile,
+  limits: ReadLimits = DEFAULT_READ_LIMITS,
 ): Promise<IngestResult> {
   const file = exactArrayBuffer(bytes);
   const metadata = openParquetMetadata(file, fileName);
   const elements = topLevelColumns(metadata);
   const columnNames = [...elements.keys()];
+  if (columnNames.length > limits.maxHeaderColumns) {
+    throw new InputError(`${fileName} has ${columnNames.length} columns, more than the limit of ${limits.maxHeaderColumns}; raise limits.max_header_columns in the run configuration if it is genuine.`);
+  }
+  const rowCount = checkedRowCount(metadata, bytes.length, fileName);
   const wanted = matchColumns(fileName, columnNames, kind, profile).map((match) => match.sourceName);
   const chunks = await readColumnChunks(file, metadata, [...new Set(wanted)]);
-  const rowCount = Number(metadata.num_rows);
+  checkChunks(chunks, rowCount, fileName);
   const sources = new Map<string, SourceColumn>();
   for (const [name, columnChunks] of chunks) {
     sources.set(name, parquetSourceColumn(columnChunks, rowCount, elements.get(name)!, fileName));
   }
-  return ingestColumnarFile({ fileName, rowCount, columnNames, readColumn: (name) => sources.get(name)! }, kind, profile);
+  return ingestColumnarFile({ fileName, rowCount, columnNames, readColumn: (name) => sources.get(name)! }, kind, profile, limits);
+}
+
+/**
+ * Rows a file can really hold. The count in the footer is what the columns are sized by, so a
+ * damaged count of a trillion would allocate terabytes; it must agree with the row groups and
+ * stay within what the file's bytes can encode (generously: 64 rows a byte, at least a million).
+ */
+function checkedRowCount(metadata: FileMetaData, fileBytes: number, fileName: string): number {
+  const rows = Number(metadata.num_rows);
+  const groupRows = metadata.row_groups.reduce((sum, group) => sum + Number(group.num_rows), 0);
+  const plausible = Math.max(1_000_000, fileBytes * 64);
+  if (!Number.isSafeInteger(rows) || rows < 0 || rows !== groupRows || rows > plausible) {
+    throw new InputError(`${fileName} is a damaged Parquet file: its footer states ${cutInput(String(metadata.num_rows))} rows, which its row groups (${groupRows}) and size do not bear out; export the file again.`);
+  }
+  return rows;
+}
+
+/** Every decoded chunk must lie inside the stated rows, or values would land outside the columns. */
+function checkChunks(chunks: Map<string, ColumnData[]>, rowCount: number, fileName: string): void {
+  for (const [name, columnChunks] of chunks) {
+    for (const { rowStart, columnData } of columnChunks) {
+      if (!(rowStart >= 0 && rowStart + columnData.length <= rowCount)) {
+        throw new InputError(`${fileName} is a damaged Parquet file: column ${JSON.stringify(name.slice(0, 80))} holds values past its ${rowCount} rows; export the file again.`);
+      }
+    }
+  }
 }
 
 /** Column name → its decoded chunks (one or more per row group), each placed by its first row. */
@@ -85,7 +117,7 @@ function openParquetMetadata(file: ArrayBuffer, fileName: string): FileMetaData 
     return parquetMetadata(file, { parsers: EPOCH_DAY_PARSERS });
   } catch (error) {
     throw new InputError(
-      `${fileName} cannot be read as a Parquet file (${(error as Error).message}); check that the file is complete, or export it as CSV or Arrow.`,
+      `${fileName} cannot be read as a Parquet file (${cutInput(String((error as Error)?.message ?? error))}); check that the file is complete, or export it as CSV or Arrow.`,
     );
   }
 }

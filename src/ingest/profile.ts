@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { IDENTIFIER_MODES } from './identifiers.js';
 import { FILE_KINDS } from './schema.js';
 
 /**
@@ -21,7 +22,9 @@ export const FeedProfileSchema = z
     thousands: z.enum(['', ',', '.', ' ', "'", '_']).default(''),
     /** A single character, `\t` for tabs, or `auto` to detect `,` `;` tab or `|` from the header. */
     delimiter: z.string().default(','),
-    quote: z.string().length(1).default('"'),
+    quote: z.string().default('"'),
+    /** `strict` rejects ids with invisible characters; `strip-invisible` removes them (docs/ingestion.md). */
+    identifiers: z.enum(IDENTIFIER_MODES).default('strict'),
   })
   .strict()
   .superRefine((profile, context) => {
@@ -29,13 +32,32 @@ export const FeedProfileSchema = z
       context.addIssue({ code: 'custom', path: ['thousands'], message: 'must differ from decimal' });
     }
     const delimiter = profile.delimiter === '\\t' ? '\t' : profile.delimiter;
-    if (delimiter !== 'auto' && delimiter.length !== 1) {
-      context.addIssue({ code: 'custom', path: ['delimiter'], message: 'must be one character, \\t or auto' });
+    if (delimiter !== 'auto' && !isSingleByteMark(delimiter)) {
+      context.addIssue({ code: 'custom', path: ['delimiter'], message: `must be one ASCII character other than a line break (such as , ; | or \\t) or auto, not ${describeMark(delimiter)}` });
+    }
+    if (!isSingleByteMark(profile.quote)) {
+      context.addIssue({ code: 'custom', path: ['quote'], message: `must be one ASCII character other than a line break, not ${describeMark(profile.quote)}` });
+    } else if (delimiter === profile.quote) {
+      context.addIssue({ code: 'custom', path: ['delimiter'], message: 'must differ from the quote character' });
     }
     if (delimiter === profile.decimal) {
       context.addIssue({ code: 'custom', path: ['delimiter'], message: 'must differ from the decimal mark' });
     }
   });
+
+/**
+ * The CSV reader works on bytes, so a delimiter or quote must be one byte: an ASCII character.
+ * A line break cannot be one either, since it ends the row.
+ */
+function isSingleByteMark(mark: string): boolean {
+  return mark.length === 1 && mark.charCodeAt(0) < 0x80 && mark !== '\n' && mark !== '\r';
+}
+
+function describeMark(mark: string): string {
+  const shown = JSON.stringify(mark.length > 10 ? `${mark.slice(0, 10)}…` : mark);
+  const bytes = Buffer.byteLength(mark, 'utf8');
+  return `${shown} (${bytes} byte${bytes === 1 ? '' : 's'}${/[\r\n]/.test(mark) ? ', a line break' : ''})`;
+}
 
 export type FeedProfile = z.output<typeof FeedProfileSchema>;
 

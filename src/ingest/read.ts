@@ -1,6 +1,10 @@
 import { extname } from 'node:path';
 import { readArrowBuffer } from './arrow-reader.js';
-import { readCsvBuffer, readInput } from './csv-reader.js';
+import { decodeArrowUnderWatchdog } from './arrow-watchdog.js';
+import { readCsvBuffer } from './csv-reader.js';
+import { cutInput, InputError, NavassayError } from './errors.js';
+import { readInputFile } from './input-file.js';
+import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import { readParquetBuffer } from './parquet-reader.js';
 import type { FeedProfile } from './profile.js';
 import type { FileKind } from './schema.js';
@@ -16,16 +20,37 @@ export function formatOf(path: string): FileFormat {
   return 'csv';
 }
 
-/** Reads one canonical file in whatever format its extension names. */
-export async function readFeedFile(path: string, kind: FileKind, profile: FeedProfile): Promise<IngestResult> {
-  const bytes = readInput(path);
-  switch (formatOf(path)) {
-    case 'csv':
-      return readCsvBuffer(bytes, path, kind, profile);
-    case 'arrow':
-      return readArrowBuffer(bytes, path, kind, profile);
-    case 'parquet':
-      return readParquetBuffer(bytes, path, kind, profile);
+/** Reads one canonical file in whatever format its extension names, within the limits. */
+export async function readFeedFile(
+  path: string,
+  kind: FileKind,
+  profile: FeedProfile,
+  limits: ReadLimits = DEFAULT_READ_LIMITS,
+): Promise<IngestResult> {
+  const bytes = readInputFile(path, limits.maxInputBytes);
+  const format = formatOf(path);
+  try {
+    switch (format) {
+      case 'csv':
+        return readCsvBuffer(bytes, path, kind, profile, limits);
+      case 'arrow':
+        await decodeArrowUnderWatchdog(bytes, path, limits.decodeTimeoutMs);
+        return readArrowBuffer(bytes, path, kind, profile, limits);
+      case 'parquet':
+        return await readParquetBuffer(bytes, path, kind, profile, limits);
+    }
+  } catch (error) {
+    throw asInputError(error, path, format);
   }
 }
 
+/**
+ * A decoder's own exception (a corrupted page, a length past the end, a stack overflow on a
+ * malformed nesting) becomes the one-sentence input error every bad file gets, never a crash.
+ */
+export function asInputError(error: unknown, path: string, format: FileFormat): NavassayError {
+  if (error instanceof NavassayError) return error;
+  const detail = error instanceof Error ? error.message : String(error);
+  const name = format === 'csv' ? 'a CSV file' : format === 'arrow' ? 'an Arrow IPC file' : 'a Parquet file';
+  return new InputError(`${path} cannot be read as ${name} (${cutInput(detail)}); check that the file is complete and not damaged, or export it again.`);
+}

@@ -9,6 +9,8 @@ export interface CheckAnswer {
   readonly rows: RowAccounting;
   readonly findings: readonly Finding[];
   readonly summary: FindingSummary;
+  /** `run` only, when earlier store snapshots could not be read: each date and why, oldest first. */
+  readonly skipped_snapshots?: ReadonlyArray<{ readonly as_of: string; readonly reason: string }>;
 }
 
 export function checkAnswer(asOf: number, rows: RowAccounting, findings: readonly Finding[]): CheckAnswer {

@@ -2,7 +2,9 @@ export {
   findSnapshot,
   listFeeds,
   listSnapshots,
+  previousReadableSnapshot,
   previousSnapshot,
+  scanSnapshots,
   readManifest,
   readSnapshot,
   writeSnapshot,
@@ -10,6 +12,7 @@ export {
   type SnapshotInput,
   type SnapshotRef,
   type SnapshotSource,
+  type UnreadableSnapshot,
   type WriteOptions,
   type WriteStep,
 } from './snapshot-store.js';

@@ -20,7 +20,7 @@ export const SnapshotFileSchema = z.object({
   source_sha256: z.string().regex(/^[0-9a-f]{64}$/),
   rows: rowCounts,
   /** The canonical table in this snapshot's directory, an Arrow IPC file. */
-  stored_file: z.string(),
+  stored_file: z.string().regex(/^[a-z]+\.arrow$/, 'must be <kind>.arrow inside the snapshot directory'),
   /** SHA-256 (hex) of the stored file, checked when the snapshot is read. */
   stored_sha256: z.string().regex(/^[0-9a-f]{64}$/),
 });

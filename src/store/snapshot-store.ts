@@ -3,11 +3,13 @@ import { existsSync, mkdirSync, readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { parseIsoDate } from '../calendar/days.js';
 import { arrowIpcToCanonical, canonicalToArrowIpc } from '../ingest/arrow-table.js';
-import { ConfigError, InputError } from '../ingest/errors.js';
+import { ConfigError, cutInput, InputError, NavassayError } from '../ingest/errors.js';
+import { onPseudoFileSystem } from '../ingest/input-file.js';
 import type { RejectedRow } from '../ingest/records.js';
 import type { FileKind } from '../ingest/schema.js';
 import type { CanonicalTable, IngestResult } from '../ingest/table.js';
 import { removeTree, renameDurably, sha256Bytes, syncDirectory, writeFileDurably } from './durable-files.js';
+import { DEFAULT_LOCK_WAIT_MS, lockFeed, processIsAlive } from './feed-lock.js';
 import {
   MANIFEST_FILE,
   MANIFEST_FORMAT,
@@ -50,6 +52,18 @@ export interface WriteOptions {
   readonly afterStep?: (step: WriteStep) => void;
   /** The write time recorded in the manifest (default: now). */
   readonly now?: Date;
+  /** How long to wait for another writer of the same feed (default 30 s). */
+  readonly lockWaitMs?: number;
+  /** Writes one file durably; tests replace it to make a write fail as a full disk would. */
+  readonly writeFile?: (path: string, data: Uint8Array | string) => void;
+}
+
+/** A snapshot directory that cannot be read, and why; it is skipped, never the whole store. */
+export interface UnreadableSnapshot {
+  readonly feed: string;
+  readonly asOf: string;
+  readonly dir: string;
+  readonly reason: string;
 }
 
 export interface SnapshotRef {
@@ -75,15 +89,41 @@ export function writeSnapshot(storeDir: string, input: SnapshotInput, options: W
   checkAsOf(input.asOf);
   const sourceOf = matchSources(input);
   const feedDir = join(storeDir, input.feed);
-  mkdirSync(feedDir, { recursive: true });
-  recoverFeed(feedDir);
+  if (onPseudoFileSystem(storeDir)) {
+    throw new ConfigError(`The store ${storeDir} is on a system pseudo file system (/proc, /sys or /dev); point store at an ordinary directory.`);
+  }
+  storeStep(storeDir, () => mkdirSync(feedDir, { recursive: true }));
+  const lock = lockFeed(feedDir, options.lockWaitMs ?? DEFAULT_LOCK_WAIT_MS);
+  try {
+    return writeLocked(storeDir, feedDir, input, sourceOf, options);
+  } finally {
+    lock.release();
+  }
+}
 
+/** The write itself, while this process alone holds the feed. */
+function writeLocked(
+  storeDir: string,
+  feedDir: string,
+  input: SnapshotInput,
+  sourceOf: Map<FileKind, SnapshotSource>,
+  options: WriteOptions,
+): SnapshotRef {
+  storeStep(storeDir, () => recoverFeed(feedDir));
   const nonce = `${process.pid}-${randomBytes(4).toString('hex')}`;
   const staging = join(feedDir, `${STAGING_PREFIX}${input.asOf}-${nonce}`);
-  mkdirSync(staging);
-  const manifest = stageSnapshot(staging, input, sourceOf, options.now ?? new Date());
-  syncDirectory(staging);
-  syncDirectory(feedDir);
+  const manifest = storeStep(storeDir, () => {
+    try {
+      mkdirSync(staging);
+      const staged = stageSnapshot(staging, input, sourceOf, options.now ?? new Date(), options.writeFile ?? writeFileDurably);
+      syncDirectory(staging);
+      syncDirectory(feedDir);
+      return staged;
+    } catch (error) {
+      removeTree(staging); // our own staging only: a full disk must not stay full of it
+      throw error;
+    }
+  });
   options.afterStep?.('staged');
 
   const target = join(feedDir, input.asOf);
@@ -127,16 +167,34 @@ function matchSources(input: SnapshotInput): Map<FileKind, SnapshotSource> {
   return sourceOf;
 }
 
+/**
+ * Runs a file-system step of a write; a failure of the disk (full, read-only, no permission)
+ * becomes one sentence naming the store, exit 2, since the fix is where the store points.
+ */
+function storeStep<T>(storeDir: string, step: () => T): T {
+  try {
+    return step();
+  } catch (error) {
+    if (error instanceof NavassayError) throw error;
+    const code = (error as NodeJS.ErrnoException).code;
+    if (code === undefined) throw error;
+    throw new ConfigError(
+      `Cannot write the snapshot into the store ${storeDir} (${cutInput((error as Error).message)}); free space, fix the permissions or point store elsewhere, then run again.`,
+    );
+  }
+}
+
 function stageSnapshot(
   staging: string,
   input: SnapshotInput,
   sourceOf: Map<FileKind, SnapshotSource>,
   now: Date,
+  writeFile: (path: string, data: Uint8Array | string) => void,
 ): SnapshotManifest {
   const files: SnapshotFile[] = input.results.map((result) => {
     const storedFile = `${result.kind}.arrow`;
     const bytes = canonicalToArrowIpc(result.table);
-    writeFileDurably(join(staging, storedFile), bytes);
+    writeFile(join(staging, storedFile), bytes);
     const source = sourceOf.get(result.kind)!;
     return {
       kind: result.kind,
@@ -148,7 +206,7 @@ function stageSnapshot(
     };
   });
   const rejected = input.results.flatMap((result) => result.rejected);
-  writeFileDurably(join(staging, REJECTED_FILE), rejectedRowsToCsv(rejected));
+  writeFile(join(staging, REJECTED_FILE), rejectedRowsToCsv(rejected));
   const manifest: SnapshotManifest = {
     format: MANIFEST_FORMAT,
     version: 1,
@@ -160,18 +218,22 @@ function stageSnapshot(
     rejected_rows: rejected.length,
   };
   // The manifest goes last: a directory without one was never finished.
-  writeFileDurably(join(staging, MANIFEST_FILE), `${JSON.stringify(manifest, null, 2)}\n`);
+  writeFile(join(staging, MANIFEST_FILE), `${JSON.stringify(manifest, null, 2)}\n`);
   return manifest;
 }
 
 /**
  * Puts a feed directory back in order after a write that stopped half-way: a retired snapshot
  * whose replacement never arrived goes back in place; staging and other retired directories go.
+ * It runs under the feed's lock, and a staging directory goes only when the process named in it
+ * is gone, so a writer never deletes another live writer's work.
  */
 function recoverFeed(feedDir: string): void {
   for (const entry of readdirSync(feedDir)) {
     const path = join(feedDir, entry);
-    if (entry.startsWith(STAGING_PREFIX)) removeTree(path);
+    if (entry.startsWith(STAGING_PREFIX)) {
+      if (!processIsAlive(pidOfHidden(entry, STAGING_PREFIX)) || pidOfHidden(entry, STAGING_PREFIX) === process.pid) removeTree(path);
+    }
     else if (entry.startsWith(RETIRED_PREFIX)) {
       const asOf = asOfOfHidden(entry, RETIRED_PREFIX);
       const target = join(feedDir, asOf);
@@ -184,6 +246,12 @@ function recoverFeed(feedDir: string): void {
 
 function asOfOfHidden(entry: string, prefix: string): string {
   return entry.slice(prefix.length, prefix.length + 10);
+}
+
+/** The writer's pid in `.staging-<as_of>-<pid>-<random>`, or 0. */
+function pidOfHidden(entry: string, prefix: string): number {
+  const pid = Number(entry.slice(prefix.length + 11).split('-')[0]);
+  return Number.isInteger(pid) ? pid : 0;
 }
 
 /** The feeds the store holds, by name. */
@@ -200,6 +268,30 @@ export function listFeeds(storeDir: string): string[] {
  * between being retired and being replaced still counts, from its retired directory.
  */
 export function listSnapshots(storeDir: string, feed: string): SnapshotRef[] {
+  return scanSnapshots(storeDir, feed).snapshots;
+}
+
+/**
+ * A feed's snapshots whose manifest reads, oldest first, and those whose manifest does not
+ * (truncated, not JSON, not a manifest), each with the reason: one damaged snapshot is set
+ * aside, never the whole store.
+ */
+export function scanSnapshots(storeDir: string, feed: string): { snapshots: SnapshotRef[]; unreadable: UnreadableSnapshot[] } {
+  const snapshots: SnapshotRef[] = [];
+  const unreadable: UnreadableSnapshot[] = [];
+  for (const [asOf, dir] of snapshotDirs(storeDir, feed)) {
+    try {
+      snapshots.push({ feed, asOf, dir, manifest: readManifest(dir) });
+    } catch (error) {
+      if (!(error instanceof NavassayError)) throw error;
+      unreadable.push({ feed, asOf, dir, reason: error.message });
+    }
+  }
+  return { snapshots, unreadable };
+}
+
+/** Date → directory of each snapshot with a manifest file, oldest first. */
+function snapshotDirs(storeDir: string, feed: string): Array<[string, string]> {
   checkFeedName(feed);
   const feedDir = join(storeDir, feed);
   if (!existsSync(feedDir)) return [];
@@ -213,8 +305,7 @@ export function listSnapshots(storeDir: string, feed: string): SnapshotRef[] {
   }
   return [...dirOf.entries()]
     .filter(([, dir]) => existsSync(join(dir, MANIFEST_FILE)))
-    .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))
-    .map(([asOf, dir]) => ({ feed, asOf, dir, manifest: readManifest(dir) }));
+    .sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
 }
 
 export function findSnapshot(storeDir: string, feed: string, asOf: string): SnapshotRef | undefined {
@@ -231,7 +322,13 @@ export function previousSnapshot(storeDir: string, feed: string, asOfExclusive: 
 
 export function readManifest(dir: string): SnapshotManifest {
   const path = join(dir, MANIFEST_FILE);
-  const parsed = SnapshotManifestSchema.safeParse(JSON.parse(readFileSync(path, 'utf8')));
+  let json: unknown;
+  try {
+    json = JSON.parse(readFileSync(path, 'utf8'));
+  } catch (error) {
+    throw new InputError(`${path} cannot be read as a snapshot manifest (${cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
+  }
+  const parsed = SnapshotManifestSchema.safeParse(json);
   if (!parsed.success) {
     throw new InputError(`${path} is not a navassay snapshot manifest (${parsed.error.issues[0].message}); remove the snapshot directory and write it again.`);
   }
@@ -244,17 +341,76 @@ export function readSnapshot(storeDir: string, feed: string, asOf: string): Load
   if (!ref) {
     throw new InputError(`The store ${storeDir} has no snapshot of ${feed} for ${asOf}; run that day first or pick another date.`);
   }
+  return loadSnapshot(ref);
+}
+
+/** The tables and rejected rows of a listed snapshot; a missing or damaged file is an InputError. */
+function loadSnapshot(ref: SnapshotRef): LoadedSnapshot {
   const tables: Partial<Record<FileKind, CanonicalTable>> = {};
   for (const file of ref.manifest.files) tables[file.kind] = readStoredTable(ref.dir, file);
-  const rejected = rejectedRowsFromCsv(readFileSync(join(ref.dir, ref.manifest.rejected_file), 'utf8'));
+  const rejectedPath = join(ref.dir, ref.manifest.rejected_file);
+  let rejected: RejectedRow[];
+  try {
+    rejected = rejectedRowsFromCsv(readStoredText(rejectedPath));
+  } catch (error) {
+    if (error instanceof NavassayError) throw error;
+    throw new InputError(`${rejectedPath} cannot be read (${cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
+  }
   return { ...ref, tables, rejected };
+}
+
+/**
+ * The latest snapshot before a date that reads completely. Earlier snapshots that cannot be read
+ * (damaged manifest, missing or altered file) are skipped and returned with their reasons, so the
+ * caller can report each once.
+ */
+export function previousReadableSnapshot(
+  storeDir: string,
+  feed: string,
+  asOfExclusive: string,
+): { snapshot: LoadedSnapshot | undefined; skipped: UnreadableSnapshot[] } {
+  checkAsOf(asOfExclusive);
+  const { snapshots, unreadable } = scanSnapshots(storeDir, feed);
+  const skipped = unreadable.filter((entry) => entry.asOf < asOfExclusive);
+  const earlier = snapshots.filter((snapshot) => snapshot.asOf < asOfExclusive);
+  for (let k = earlier.length - 1; k >= 0; k--) {
+    try {
+      return { snapshot: loadSnapshot(earlier[k]), skipped: sortByDate(skipped) };
+    } catch (error) {
+      if (!(error instanceof NavassayError)) throw error;
+      skipped.push({ feed, asOf: earlier[k].asOf, dir: earlier[k].dir, reason: error.message });
+    }
+  }
+  return { snapshot: undefined, skipped: sortByDate(skipped) };
+}
+
+function sortByDate(entries: UnreadableSnapshot[]): UnreadableSnapshot[] {
+  return entries.sort((a, b) => (a.asOf < b.asOf ? -1 : a.asOf > b.asOf ? 1 : 0));
+}
+
+function readStoredText(path: string): string {
+  return readStoredBytes(path).toString('utf8');
+}
+
+function readStoredBytes(path: string): Buffer {
+  try {
+    return readFileSync(path);
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    throw new InputError(`${path} cannot be read (${code === 'ENOENT' ? 'it is missing' : cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
+  }
 }
 
 function readStoredTable(dir: string, file: SnapshotFile): CanonicalTable {
   const path = join(dir, file.stored_file);
-  const bytes = readFileSync(path);
+  const bytes = readStoredBytes(path);
   if (sha256Bytes(bytes) !== file.stored_sha256) {
     throw new InputError(`${path} does not match the SHA-256 in its manifest; the snapshot is damaged, so write that day again.`);
   }
-  return arrowIpcToCanonical(file.kind, bytes, path);
+  try {
+    return arrowIpcToCanonical(file.kind, bytes, path);
+  } catch (error) {
+    if (error instanceof NavassayError) throw error;
+    throw new InputError(`${path} cannot be read as a stored table (${cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
+  }
 }

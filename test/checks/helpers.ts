@@ -1,6 +1,10 @@
 import { BusinessCalendars } from '../../src/calendar/business-calendar.js';
 import { formatIsoDate, isoWeekday, parseIsoDate } from '../../src/calendar/days.js';
 import type { SeriesContext } from '../../src/checks/check.js';
+import { analyseMoves } from '../../src/checks/move-analysis.js';
+import { dateShift } from '../../checks/date-shift.js';
+import { spikeReversal } from '../../checks/spike-reversal.js';
+import { splitLikeJump } from '../../checks/split-like-jump.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../../src/ingest/records.js';
 import { frameFromSeries, seriesAt, type SeriesFrame, type SeriesSlice } from '../../src/series/frame.js';
 import { SeededRandom as Random } from '../../src/random.js';
@@ -90,18 +94,21 @@ export function trackingPair(seed: number, count = 300, noise = 0.001) {
 }
 
 /**
- * Slices for a fund and its benchmark, plus a context that links them. The benchmark shares the
+ * Slices for a fund and its benchmark, plus a context that links them, with the move analysis
+ * the runner would build under default settings (every check on, default parameters). The benchmark shares the
  * fund's dates unless `benchDates` gives its own (a benchmark holiday, say).
  */
 export function linked(dates: number[], fund: number[], bench: number[], overrides: Partial<SeriesContext> = {}, benchDates: number[] = dates) {
   const benchmarks = frameOfArrays([{ id: 'BM1', dates: benchDates, values: bench }]);
   const series = seriesAt(frameOfArrays([{ id: 'F1', dates, values: fund }]), 0);
-  const context = contextFor({
+  const base = contextFor({
     asOf: dates[dates.length - 1],
     master: master('F1', { benchmark_id: 'BM1' }),
     benchmark: seriesAt(benchmarks, 0),
     benchmarks,
     ...overrides,
   });
+  const claiming = { date_shift: dateShift.defaults, split_like_jump: splitLikeJump.defaults, spike_reversal: spikeReversal.defaults };
+  const context: SeriesContext = { ...base, moves: analyseMoves(series, base, claiming) };
   return { series, context };
 }

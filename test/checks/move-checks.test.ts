@@ -3,7 +3,8 @@ import { splitLikeJump } from '../../checks/split-like-jump.js';
 import { spikeReversal } from '../../checks/spike-reversal.js';
 import { returnOutlier } from '../../checks/return-outlier.js';
 import { dateShift } from '../../checks/date-shift.js';
-import { action, day, iso, linked, trackingPair } from './helpers.js';
+import { runChecks } from '../../src/checks/run.js';
+import { action, day, frameOfArrays, iso, linked, trackingPair } from './helpers.js';
 
 const AT = 150;
 
@@ -118,5 +119,32 @@ describe('date_shift', () => {
     const shifted = linked(dates, late, bench);
     expect(returnOutlier.run(shifted.series, shifted.context, returnOutlier.defaults)).toEqual([]);
     expect(spikeReversal.run(shifted.series, shifted.context, spikeReversal.defaults)).toEqual([]);
+  });
+});
+
+describe('a date-shifted span silences spikes by the run’s own date_shift settings', () => {
+  const { dates, fund, bench } = trackingPair(14, 320);
+  const SHIFT_FROM = 190;
+  const SPIKE_AT = 260;
+  // Stamped a day late from SHIFT_FROM on, with a 6 % keying error inside the shifted span.
+  const late = fund.map((v, i) => (i >= SHIFT_FROM ? fund[i - 1] : v)).map((v, i) => (i === SPIKE_AT ? Math.round(v * 1.06 * 1e4) / 1e4 : v));
+  const feed = (settings: object) => {
+    const { series, context } = linked(dates, late, bench);
+    const nav = frameOfArrays([{ id: series.id, dates, values: late }]);
+    return runChecks({ nav, benchmarks: context.benchmarks, master: [context.master!], rejected: [], calendars: context.calendars, asOf: context.asOf }, settings)
+      .filter((f) => f.check === 'date_shift' || f.check === 'spike_reversal' || f.check === 'return_outlier')
+      .map((f) => f.check);
+  };
+
+  it('with date_shift on, one date_shift finding says why, and the spike inside its span is left to it', () => {
+    expect(feed({})).toEqual(['date_shift']);
+  });
+
+  it('with date_shift off, nothing claims the span, so the keying error is reported', () => {
+    expect(feed({ run: { date_shift: { enabled: false } } })).toContain('spike_reversal');
+  });
+
+  it('with date_shift tuned to demand a correlation no quarter reaches, the span is not claimed either', () => {
+    expect(feed({ run: { date_shift: { min_correlation: 1.01 } } })).toContain('spike_reversal');
   });
 });

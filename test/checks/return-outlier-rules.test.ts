@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { returnOutlier } from '../../checks/return-outlier.js';
-import { seriesReturns, tailBar } from '../../src/checks/returns.js';
+import { residualMoves, tailBar } from '../../src/checks/residual-moves.js';
 import { iso, linked, weekdays } from './helpers.js';
 
 /**
@@ -33,7 +33,7 @@ describe('return_outlier: the judged day is left out of its own tail estimate', 
 
   it('finds a −3.2 % mispricing that would otherwise raise its own bar above it', () => {
     const { series, context } = linked(dates, fund, bench);
-    const returns = seriesReturns(series, context);
+    const returns = residualMoves(series, context);
     const k = AT - 1;
     const z = Math.abs(returns.z[k]);
     // With the fault inside its own tail estimate the bar sits above it; without, well below.
@@ -70,7 +70,7 @@ describe('return_outlier: a benchmark holiday is bridged', () => {
 
   it('does not report a −12 % fund day that the benchmark made over the bridged window', () => {
     const { series, context } = onBenchmarkHoliday(Math.log(0.88), Math.log(0.88));
-    const returns = seriesReturns(series, context);
+    const returns = residualMoves(series, context);
     // The benchmark cannot price the day itself, and judged alone the day is far out.
     expect(Number.isNaN(returns.bench[AT - 1])).toBe(true);
     expect(Math.abs(returns.z[AT - 1])).toBeGreaterThan(10);

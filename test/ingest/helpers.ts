@@ -1,6 +1,7 @@
 import { expect } from 'vitest';
 import { formatIsoDate } from '../../src/calendar/days.js';
 import { readCsvBuffer } from '../../src/ingest/csv-reader.js';
+import { DEFAULT_READ_LIMITS, type ReadLimits } from '../../src/ingest/limits.js';
 import { FeedProfileSchema, type FeedProfile } from '../../src/ingest/profile.js';
 import type { FileKind } from '../../src/ingest/schema.js';
 import { NULL_BOOLEAN, NULL_DATE, type Column, type IngestResult } from '../../src/ingest/table.js';
@@ -11,10 +12,21 @@ export function profile(input: Record<string, unknown> = {}): FeedProfile {
   return FeedProfileSchema.parse(input);
 }
 
-/** Reads CSV text (or bytes) as one canonical file named feed.csv. */
-export function readText(text: string | Uint8Array, kind: FileKind = 'nav', profileInput: Record<string, unknown> = {}): IngestResult {
+/**
+ * The default limits with every Int32 day allowed: for tests of how a format carries dates,
+ * which generate years far outside the plausible range (that rule has tests of its own).
+ */
+export const ANY_DATE_LIMITS: ReadLimits = { ...DEFAULT_READ_LIMITS, firstDay: -2147483647, lastDay: 2147483647 };
+
+/** Reads CSV text (or bytes) as one canonical file named feed.csv (any date allowed unless limits say otherwise). */
+export function readText(
+  text: string | Uint8Array,
+  kind: FileKind = 'nav',
+  profileInput: Record<string, unknown> = {},
+  limits: ReadLimits = ANY_DATE_LIMITS,
+): IngestResult {
   const bytes = typeof text === 'string' ? Buffer.from(text, 'utf8') : text;
-  return readCsvBuffer(bytes, FILE, kind, profile(profileInput));
+  return readCsvBuffer(bytes, FILE, kind, profile(profileInput), limits);
 }
 
 /** The value of one cell as a plain JS value: ISO text for dates, null for missing. */

@@ -115,7 +115,59 @@ function checkAccounting(original: Buffer, mutated: Buffer, kind: FileKind, layo
     expect(starts).toEqual(dataLines);
     expect(result.rows.read).toBe(dataLines.length);
     for (const row of result.rejected) expect(row.raw).toBe(physical[row.line - 1]);
+    if (kind === 'nav' && physical[0] === physicalLines(original)[0]) {
+      // An independent verdict per row: the small reference reader below decides accept or reject.
+      const accepted = new Set(result.table.lines);
+      for (const line of dataLines) {
+        const verdict = referenceVerdict(physical[0], physical[line - 1], layout);
+        if (verdict === 'either') continue;
+        expect({ line, text: physical[line - 1], accepted: accepted.has(line) }).toEqual({ line, text: physical[line - 1], accepted: verdict === 'accept' });
+      }
+    }
   }
+}
+
+/**
+ * A reference reader for one unquoted NAV line, written from docs/ingestion.md rather than from
+ * the reader's code: the line must split into the header's fields; the id, trimmed, must be
+ * non-empty and free of control, invisible and replacement characters; the date must be
+ * YYYY-MM-DD, YYYYMMDD or year-first with one- to four-digit parts, and a real day (checked with
+ * the platform's Date); the NAV a plain decimal with the layout's mark, an optional exponent and
+ * an optional percent sign. 'either' where the rules leave the reader to the file's evidence
+ * (day–month orders).
+ */
+function referenceVerdict(header: string, text: string, layout: Layout): 'accept' | 'reject' | 'either' {
+  const names = header.split(layout.delimiter).map((name) => name.trim().toLowerCase());
+  const fields = text.split(layout.delimiter);
+  if (fields.length !== names.length) return 'reject';
+  const field = (name: string) => fields[names.indexOf(name)];
+  const id = field('series_id').trim();
+  if (id === '' || /[\p{Cc}\p{Cf}\uFFFD]/u.test(id)) return 'reject';
+  const date = referenceDate(field('date').replace(/^[ \t]+|[ \t]+$/g, ''));
+  if (date !== 'accept') return date;
+  return referenceNumber(field('nav'), layout.decimal) ? 'accept' : 'reject';
+}
+
+function referenceDate(text: string): 'accept' | 'reject' | 'either' {
+  if (/^\d{8}$/.test(text)) return realDay(+text.slice(0, 4), +text.slice(4, 6), +text.slice(6, 8)) ? 'accept' : 'reject';
+  const parts = text.split(/[-/. ]/);
+  if (parts.length !== 3 || !parts.every((part) => /^\d{1,4}$/.test(part))) return 'reject';
+  if (parts[0].length === 4) return realDay(+parts[0], +parts[1], +parts[2]) ? 'accept' : 'reject';
+  return parts[2].length === 4 ? 'either' : 'reject';
+}
+
+function realDay(year: number, month: number, day: number): boolean {
+  const date = new Date(Date.UTC(2000, 0, 1));
+  date.setUTCFullYear(year, month - 1, day);
+  return date.getUTCFullYear() === year && date.getUTCMonth() === month - 1 && date.getUTCDate() === day;
+}
+
+function referenceNumber(raw: string, decimal: string): boolean {
+  let text = raw.replace(/^[ \t]+|[ \t]+$/g, '');
+  if (text.endsWith('%')) text = text.slice(0, -1).replace(/[ \t]+$/, '');
+  const mark = decimal === ',' ? ',' : '\\.';
+  if (!new RegExp(`^[+-]?(\\d+(${mark}\\d*)?|${mark}\\d+)([eE][+-]?\\d+)?$`).test(text)) return false;
+  return Number.isFinite(Number(text.replace(',', '.')));
 }
 
 const plainIds = fc.constantFrom('NVA0001', 'NVA0002', 'Fonds-É1', '基金7', 'NVA😀9');
@@ -161,5 +213,15 @@ describe('mutated files keep the row accounting exact', () => {
     const swapped = readText(mutate(base, { kind: 'swapFields', line: 1, a: 1, b: 2 }, 44));
     expect(swapped.rejected).toEqual([{ file: 'feed.csv', line: 2, raw: 'NVA0001,1,2026-01-02', reason: 'date "1" is not a valid date (expected YYYY-MM-DD)' }]);
     checkAccounting(base, mutate(base, { kind: 'insert', at: 20, byte: 0x0a }, 44), 'nav', layout);
+  });
+
+  it('the reference verdict decides: a date with a trailing letter is rejected, whatever lane reads it', () => {
+    const layout: Layout = { delimiter: ',', decimal: '.', eol: '\n', bom: false, trailingEol: true, autoDelimiter: false };
+    expect(referenceVerdict('series_id,date,nav', 'NVA0001,2026-01-02X,1', layout)).toBe('reject');
+    expect(referenceVerdict('series_id,date,nav', 'NVA0001,2026-01-02,1', layout)).toBe('accept');
+    const base = Buffer.from('series_id,date,nav\nNVA0001,2026-01-02,1\nNVA0001,2026-01-05,2\n');
+    const result = readText(mutate(base, { kind: 'insert', at: 37, byte: 0x58 }, 44));
+    expect(result.rejected.map((row) => row.raw)).toEqual(['NVA0001,2026-01-02X,1']);
+    checkAccounting(base, mutate(base, { kind: 'insert', at: 37, byte: 0x58 }, 44), 'nav', layout);
   });
 });

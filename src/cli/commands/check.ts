@@ -1,5 +1,6 @@
 import { Command } from 'commander';
 import { runChecks } from '../../checks/run.js';
+import { checkOutputsApart } from '../../config/output-paths.js';
 import { loadFeed, loadPreviousNav, type FeedPaths } from '../../ingest/feed.js';
 import { checkAnswer, checkView, failsOn } from '../../report/check-answer.js';
 import { render } from '../../report/render.js';
@@ -52,9 +53,16 @@ async function runCheckCommand(options: CheckOptions): Promise<number> {
     actions: options.actions,
     vendor: options.vendor,
   };
-  const loadOptions = loadOptionsFrom(options.config);
+  if (options.out !== undefined) {
+    const inputs = Object.entries({ ...paths, previous: options.previous })
+      .filter((entry): entry is [string, string] => entry[1] !== undefined)
+      .map(([kind, path]) => ({ key: `--${kind}`, path }));
+    const outputs = [{ key: '--out', path: options.out }, { key: '--out', path: quarantinePathFor(options.out) }];
+    checkOutputsApart('--out', inputs, outputs);
+  }
+  const loadOptions = loadOptionsFrom(options.config, asOf);
   const feed = await loadFeed(paths, loadOptions);
-  const previous = options.previous === undefined ? undefined : await loadPreviousNav(options.previous, loadOptions.profiles?.nav);
+  const previous = options.previous === undefined ? undefined : await loadPreviousNav(options.previous, loadOptions.profiles?.nav, loadOptions.limits);
   const findings = runChecks({ ...feed, previous, asOf });
   const answer = checkAnswer(asOf, feed.rows, findings);
   emit(render(chosenFormat(options.format), answer, checkView(answer)), options.out);

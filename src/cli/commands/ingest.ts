@@ -1,5 +1,6 @@
 import { Command } from 'commander';
 import { formatIsoDate } from '../../calendar/days.js';
+import { checkOutputsApart } from '../../config/output-paths.js';
 import { loadRunConfig } from '../../config/run-config.js';
 import { ConfigError } from '../../ingest/errors.js';
 import { loadFeed, type FeedPaths } from '../../ingest/feed.js';
@@ -50,8 +51,14 @@ async function runIngest(options: IngestOptions): Promise<number> {
   const config = options.config === undefined ? undefined : loadRunConfig(options.config);
   const paths = config?.paths ?? pathsFromOptions(options);
   const asOf = parseAsOf(options.asOf ?? config?.as_of);
-  const feed = await loadFeed(paths, loadOptionsOf(config));
   const store = config?.store ?? options.store;
+  const inputs = Object.entries(paths)
+    .filter((entry): entry is [string, string] => entry[1] !== undefined)
+    .map(([kind, path]) => ({ key: config ? `files.${kind}` : `--${kind}`, path }));
+  checkOutputsApart(config ? config.path : '--store', inputs, options.out === undefined ? [] : [{ key: '--out', path: options.out }], [
+    { key: config ? 'store' : '--store', path: store },
+  ]);
+  const feed = await loadFeed(paths, loadOptionsOf(config, asOf));
   const feedName = config?.feed ?? options.feed;
   const snapshot = storeSnapshot({ store, feed: feedName }, asOf, feed);
   const answer = {

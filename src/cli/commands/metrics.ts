@@ -53,7 +53,7 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   const config = options.config === undefined ? undefined : loadRunConfig(options.config);
   const windows = options.windows === undefined ? (config?.windows ?? DEFAULT_WINDOWS) : parseWindowList(options.windows);
   const methodology = chosenMethodology(config?.methodology ?? DEFAULT_METHODOLOGY, options.set, options.rates !== undefined || constantRate !== undefined);
-  const loadOptions = loadOptionsOf(config);
+  const loadOptions = loadOptionsOf(config, asOf);
   const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions }, loadOptions);
   const answer = computeMetrics({
     nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),

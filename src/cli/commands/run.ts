@@ -2,18 +2,19 @@ import { Command } from 'commander';
 import { join } from 'node:path';
 import { lastMonthEndOnOrBefore } from '../../calendar/days.js';
 import { runChecksInParallel } from '../../checks/parallel.js';
-import { loadRunConfig, type RunConfig } from '../../config/run-config.js';
+import { checkOutputsApart, QUARANTINE_FILE, reportFileName } from '../../config/output-paths.js';
+import { loadRunConfig, runInputs, type RunConfig } from '../../config/run-config.js';
 import type { Finding } from '../../findings.js';
 import { loadFeed, loadPreviousNav, type LoadedFeed } from '../../ingest/feed.js';
 import { computeMetrics, type MetricsAnswer } from '../../metrics/compute.js';
 import { checkAnswer, checkView, failsOn, type CheckAnswer } from '../../report/check-answer.js';
 import { metricsView } from '../../report/metrics-answer.js';
-import { render, type OutputFormat } from '../../report/render.js';
+import { render } from '../../report/render.js';
 import { adjustForCorporateActions } from '../../series/adjust.js';
 import type { SeriesFrame } from '../../series/frame.js';
 import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn, parseThreads, threadsOption } from '../options.js';
 import { emit, writeFileAtomically, writeQuarantine } from '../output.js';
-import { previousNavFromStore, storeSnapshot } from '../snapshots.js';
+import { previousNavFromStore, storeSnapshot, type SkippedSnapshot } from '../snapshots.js';
 
 interface RunOptions {
   asOf?: string;
@@ -61,20 +62,23 @@ export async function runDailyJob(configPath: string, options: RunOptions): Prom
 export async function executeRun(configPath: string, options: RunOptions): Promise<DailyRun> {
   const threadsOption = parseThreads(options.threads); // a wrong command line fails before any file is read
   const config = loadRunConfig(configPath);
+  if (options.out !== undefined) checkOutputsApart('--out', runInputs(config), [{ key: '--out', path: options.out }]);
   const asOf = parseAsOf(options.asOf ?? config.as_of);
-  const feed = await loadFeed(config.paths, loadOptionsOf(config));
-  const previous = await previousNav(config, asOf);
+  const feed = await loadFeed(config.paths, loadOptionsOf(config, asOf));
+  const { nav: previous, skipped } = await previousNav(config, asOf);
   const threads = threadsOption ?? config.threads;
   const findings: Finding[] = await runChecksInParallel({ ...feed, previous, asOf }, config.checks, { threads });
-  const check = checkAnswer(asOf, feed.rows, findings);
+  const check = { ...checkAnswer(asOf, feed.rows, findings), ...(skipped.length > 0 ? { skipped_snapshots: skipped } : {}) };
   const metrics = feed.benchmarks && feed.master ? runMetrics(config, feed, asOf) : null;
   storeSnapshot(config, asOf, feed);
   const reportFiles = writeReports(config, check, metrics, feed);
   return { config, asOf, feed, check, metrics, reportFiles };
 }
 
-async function previousNav(config: RunConfig, asOf: number): Promise<SeriesFrame | undefined> {
-  if (config.previous !== undefined) return loadPreviousNav(config.previous, config.profiles.nav);
+async function previousNav(config: RunConfig, asOf: number): Promise<{ nav: SeriesFrame | undefined; skipped: SkippedSnapshot[] }> {
+  if (config.previous !== undefined) {
+    return { nav: await loadPreviousNav(config.previous, config.profiles.nav, loadOptionsOf(config, asOf).limits), skipped: [] };
+  }
   return previousNavFromStore(config, asOf);
 }
 
@@ -91,8 +95,6 @@ function runMetrics(config: RunConfig, feed: LoadedFeed, asOf: number): MetricsA
   });
 }
 
-const EXTENSIONS: Record<OutputFormat, string> = { json: 'json', html: 'html', markdown: 'md', csv: 'csv', table: 'txt' };
-
 function writeReports(config: RunConfig, check: CheckAnswer, metrics: MetricsAnswer | null, feed: LoadedFeed): string[] {
   const written: string[] = [];
   const write = (name: string, text: string) => {
@@ -101,10 +103,10 @@ function writeReports(config: RunConfig, check: CheckAnswer, metrics: MetricsAns
     written.push(path);
   };
   for (const format of config.output.formats) {
-    write(`check.${EXTENSIONS[format]}`, render(format, check, checkView(check)));
-    if (metrics) write(`metrics.${EXTENSIONS[format]}`, render(format, metrics, metricsView(metrics)));
+    write(reportFileName('check', format), render(format, check, checkView(check)));
+    if (metrics) write(reportFileName('metrics', format), render(format, metrics, metricsView(metrics)));
   }
-  const quarantine = join(config.output.dir, 'quarantine.csv');
+  const quarantine = join(config.output.dir, QUARANTINE_FILE);
   writeQuarantine(quarantine, feed.rejected);
   written.push(quarantine);
   return written;

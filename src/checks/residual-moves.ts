@@ -1,7 +1,8 @@
 /**
- * The return picture of one series that the move-based checks (split-like jumps, spike
- * reversals, outliers, date shifts, benchmark fit) share. Built once per series and cached
- * on the slice object, so five checks cost one pass.
+ * The residual model of one series' moves that the move-based checks (split-like jumps, spike
+ * reversals, outliers, date shifts, benchmark fit, stale values) share. The check runner builds
+ * it once per series and hands it to every check in the series' context
+ * (`src/checks/move-analysis.ts`); nothing here keeps state between calls.
  *
  * A step joins two consecutive *anchors*: usable observations (first row of a date, positive,
  * not after the as-of) whose value differs from the previous one. Repeated values are folded
@@ -14,9 +15,9 @@
 import type { SeriesContext } from './check.js';
 import type { CorporateActionRecord } from '../ingest/records.js';
 import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
-import { calendarOf, exactPosition, median, robustScale } from './support.js';
+import { calendarOf, exactPosition, kthSmallest, median, robustScale } from './support.js';
 
-export interface SeriesReturns {
+export interface ResidualMoves {
   readonly count: number;
   /** Slice rows where each step starts and ends. */
   readonly from: Int32Array;
@@ -42,19 +43,32 @@ export interface SeriesReturns {
   /** Robust standard deviation of a one-business-day residual. */
   readonly scale: number;
   readonly hasBenchmark: boolean;
+  /**
+   * The 99th percentile of |z| over the series' steps: about 2.6 for normal residuals, higher
+   * for fat-tailed ones (2.576 below 50 steps). Outlier bars scale with it, so a series whose
+   * ordinary days are wild needs a wilder day to stand out.
+   */
+  readonly extreme: number;
+  /** The largest |z| values, ascending, for the tail estimate (see `tailBar`). */
+  readonly tail: TopMagnitudes;
+}
+
+/**
+ * The upper end of the series' finite |z| values, sorted: ranks `from` … `count − 1` of all
+ * `count` of them. Found by selection, then a sort of the top few per cent only.
+ */
+export interface TopMagnitudes {
+  readonly count: number;
+  readonly from: number;
+  readonly values: Float64Array;
 }
 
 /** Steps whose robust z exceeds this are gross errors, left out of every fitted statistic. */
 export const GROSS_Z = 8;
 
-const cache = new WeakMap<SeriesSlice, { context: SeriesContext; returns: SeriesReturns }>();
-
-export function seriesReturns(series: SeriesSlice, context: SeriesContext): SeriesReturns {
-  const hit = cache.get(series);
-  if (hit && hit.context === context) return hit.returns;
-  const returns = computeReturns(series, context);
-  cache.set(series, { context, returns });
-  return returns;
+/** The residual model of the series' moves, built from scratch (the runner calls it once per series). */
+export function residualMoves(series: SeriesSlice, context: SeriesContext): ResidualMoves {
+  return computeMoves(series, context);
 }
 
 function anchorRows(series: SeriesSlice, asOf: number): number[] {
@@ -72,7 +86,7 @@ function anchorRows(series: SeriesSlice, asOf: number): number[] {
   return anchors;
 }
 
-function computeReturns(series: SeriesSlice, context: SeriesContext): SeriesReturns {
+function computeMoves(series: SeriesSlice, context: SeriesContext): ResidualMoves {
   const anchors = anchorRows(series, context.asOf);
   const count = Math.max(0, anchors.length - 1);
   const from = new Int32Array(count);
@@ -120,7 +134,9 @@ function computeReturns(series: SeriesSlice, context: SeriesContext): SeriesRetu
     residual[k] = own ? fund[k] - alone.intercept * span[k] : fund[k] - fit.intercept * span[k] - fit.beta * bench[k];
     z[k] = residual[k] / ((own ? alone.scale : fit.scale) * Math.sqrt(span[k]));
   }
-  return { count, from, to, raw, fund, bench, benchFrom, benchTo, span, residual, z, hasBenchmark, ...fit };
+  const tail = topMagnitudes(z);
+  const extreme = tail.count >= 50 ? rankOf(tail, Math.floor(0.99 * (tail.count - 1))) : 2.576;
+  return { count, from, to, raw, fund, bench, benchFrom, benchTo, span, residual, z, hasBenchmark, ...fit, extreme, tail };
 }
 
 /**
@@ -205,22 +221,25 @@ function floorScale(scale: number): number {
   return Number.isFinite(scale) && scale > 1e-7 ? scale : 1e-7;
 }
 
-const extremeCache = new WeakMap<SeriesReturns, number>();
-
 /**
- * The 99th percentile of |z| over the series' steps: about 2.6 for normal residuals, higher for
- * fat-tailed ones. Outlier bars scale with it, so a series whose ordinary days are wild needs
- * a wilder day to stand out.
+ * The top of the series' finite |z| values: enough ranks for the 99th percentile and the Hill
+ * estimate's largest 5 %, with or without one step left out (ranks from n − ⌊0.05 n⌋ − 3).
  */
-export function ordinaryExtreme(returns: SeriesReturns): number {
-  let cached = extremeCache.get(returns);
-  if (cached === undefined) {
-    // The same ascending |z| the tail estimate uses: one sort per series serves both.
-    const magnitudes = sortedMagnitudes(returns);
-    cached = magnitudes.length >= 50 ? magnitudes[Math.floor(0.99 * (magnitudes.length - 1))] : 2.576;
-    extremeCache.set(returns, cached);
+function topMagnitudes(z: Float64Array): TopMagnitudes {
+  const work = new Float64Array(z.length);
+  let count = 0;
+  for (let k = 0; k < z.length; k++) {
+    const magnitude = Math.abs(z[k]);
+    if (Number.isFinite(magnitude)) work[count++] = magnitude;
   }
-  return cached;
+  const from = Math.max(0, count - Math.floor(0.05 * count) - 3);
+  const all = work.subarray(0, count);
+  if (count > 0) kthSmallest(all, from);
+  return { count, from, values: all.subarray(from).sort() };
+}
+
+function rankOf(top: TopMagnitudes, rank: number): number {
+  return top.values[rank - top.from];
 }
 
 /**
@@ -231,7 +250,7 @@ export function ordinaryExtreme(returns: SeriesReturns): number {
  * by the move checks for steps their own benchmark could not explain (it lacks the dates, it
  * has no levels, or it is not the fund's market at all).
  */
-export function sharedWithMarket(series: SeriesSlice, returns: SeriesReturns, benchmarks: SeriesFrame | undefined, steps: readonly number[], share = 0.6, minMarketMove = 0.02): boolean {
+export function sharedWithMarket(series: SeriesSlice, returns: ResidualMoves, benchmarks: SeriesFrame | undefined, steps: readonly number[], share = 0.6, minMarketMove = 0.02): boolean {
   if (!benchmarks) return false;
   for (let b = 0; b < benchmarks.ids.length; b++) {
     const start = benchmarks.offsets[b];
@@ -257,7 +276,7 @@ export function sharedWithMarket(series: SeriesSlice, returns: SeriesReturns, be
  * or ends on: which row is right is `duplicate_conflict`'s question, and a move measured from
  * the wrong one is not a second fault.
  */
-export function endsOnConflict(series: SeriesSlice, returns: SeriesReturns, k: number): boolean {
+export function endsOnConflict(series: SeriesSlice, returns: ResidualMoves, k: number): boolean {
   return conflictAt(series, returns.to[k]) || conflictAt(series, returns.from[k]);
 }
 
@@ -266,37 +285,6 @@ function conflictAt(series: SeriesSlice, row: number): boolean {
   for (let i = row + 1; i < series.dates.length && series.dates[i] === day; i++) if (series.values[i] !== series.values[row]) return true;
   return false;
 }
-
-const magnitudeCache = new WeakMap<SeriesReturns, Float64Array>();
-
-/**
- * |z| of every step with a finite z, ascending (cached per series). A plain loop, not a mapped
- * `Float64Array.from(…, Math.abs).filter(…)`: the callback forms cost a call per element and
- * were the largest single cost of the checks at universe scale (docs/performance.md).
- */
-function sortedMagnitudes(returns: SeriesReturns): Float64Array {
-  let magnitudes = magnitudeCache.get(returns);
-  if (magnitudes === undefined) {
-    const z = returns.z;
-    const all = new Float64Array(z.length);
-    let n = 0;
-    for (let k = 0; k < z.length; k++) {
-      const magnitude = Math.abs(z[k]);
-      if (Number.isFinite(magnitude)) all[n++] = magnitude;
-    }
-    magnitudes = all.subarray(0, n).sort();
-    magnitudeCache.set(returns, magnitudes);
-  }
-  return magnitudes;
-}
-
-interface Tail {
-  p99: number;
-  alpha: number;
-  n: number;
-}
-
-const tailCache = new WeakMap<SeriesReturns, Tail>();
 
 /**
  * The |z| that the series' own ordinary days would exceed with a total chance of `chance`
@@ -311,36 +299,44 @@ const tailCache = new WeakMap<SeriesReturns, Tail>();
  * residual is: a step is judged against the behaviour of the other days, so a fault inside
  * the tail region cannot widen the bar that judges it.
  */
-export function tailBar(returns: SeriesReturns, chance: number, leaveOut?: number): number {
-  const magnitudes = sortedMagnitudes(returns);
-  let tail: Tail;
-  if (leaveOut !== undefined && Number.isFinite(returns.z[leaveOut])) {
-    const at = lowerBound(magnitudes, Math.abs(returns.z[leaveOut]));
-    const others = new Float64Array(magnitudes.length - 1);
-    others.set(magnitudes.subarray(0, at));
-    others.set(magnitudes.subarray(at + 1), at);
-    tail = hillTail(others);
-  } else {
-    const cached = tailCache.get(returns);
-    if (cached === undefined) tailCache.set(returns, (tail = hillTail(magnitudes)));
-    else tail = cached;
-  }
+export function tailBar(moves: ResidualMoves, chance: number, leaveOut?: number): number {
+  const top = leaveOut !== undefined && Number.isFinite(moves.z[leaveOut]) ? withoutOne(moves.tail, Math.abs(moves.z[leaveOut])) : moves.tail;
+  const tail = hillTail(top);
   return Number.isFinite(tail.alpha) ? tail.p99 * Math.pow(tail.n / (100 * chance), 1 / tail.alpha) : 0;
 }
 
-/** Hill estimate of the tail of ascending |z| values (see `tailBar`). */
-function hillTail(magnitudes: Float64Array): Tail {
-  const n = magnitudes.length;
+/** The same top ranks with one occurrence of `magnitude` removed from the whole set. */
+function withoutOne(top: TopMagnitudes, magnitude: number): TopMagnitudes {
+  const values = top.values;
+  // Below the stored ranks: every stored value moves down one rank.
+  if (values.length === 0 || magnitude < values[0]) return { count: top.count - 1, from: top.from - 1, values };
+  const at = lowerBound(values, magnitude);
+  const rest = new Float64Array(values.length - 1);
+  rest.set(values.subarray(0, at));
+  rest.set(values.subarray(at + 1), at);
+  return { count: top.count - 1, from: top.from, values: rest };
+}
+
+interface Tail {
+  p99: number;
+  alpha: number;
+  n: number;
+}
+
+/** Hill estimate of the tail of the |z| values (see `tailBar`). */
+function hillTail(top: TopMagnitudes): Tail {
+  const n = top.count;
   if (n < 100) return { p99: 0, alpha: Infinity, n };
   const k = Math.floor(0.05 * n);
-  const threshold = magnitudes[n - k - 1];
+  const threshold = rankOf(top, n - k - 1);
   let sum = 0, used = 0;
   for (let i = n - k; i < n; i++) {
-    if (magnitudes[i] >= 3 * GROSS_Z) continue;
-    sum += Math.log(magnitudes[i] / threshold);
+    const magnitude = rankOf(top, i);
+    if (magnitude >= 3 * GROSS_Z) continue;
+    sum += Math.log(magnitude / threshold);
     used++;
   }
-  return { p99: magnitudes[Math.floor(0.99 * (n - 1))], alpha: used >= 10 && sum > 0 ? used / sum : Infinity, n };
+  return { p99: rankOf(top, Math.floor(0.99 * (n - 1))), alpha: used >= 10 && sum > 0 ? used / sum : Infinity, n };
 }
 
 /** First index of an ascending array whose value is ≥ `x`. */
@@ -375,7 +371,7 @@ export interface Bridge {
  * independent (the back end needs a priced start date, the forward end a priced end date), so
  * the shortest window is the nearest priced date on each side.
  */
-export function bridgedStep(returns: SeriesReturns, benchmark: SeriesSlice | undefined, k: number, maxSteps = 5): Bridge | null {
+export function bridgedStep(returns: ResidualMoves, benchmark: SeriesSlice | undefined, k: number, maxSteps = 5): Bridge | null {
   if (!benchmark || !returns.hasBenchmark || Number.isFinite(returns.bench[k])) return null;
   let first = k;
   while (first > k - maxSteps && first > 0 && returns.benchFrom[first] < 0) first--;
