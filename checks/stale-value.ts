@@ -212,10 +212,11 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const fitted = returns.hasBenchmark && returns.count >= 20 && returns.scale > 0;
   const benchmark = context.benchmark;
   const calendar = calendarOf(context);
-  const tickOf = blockTicks(series, rows);
+  const shown = decimalsShown(series, rows);
+  const tickOf = blockTicks(series, rows, shown);
   // The grid right around a step: a 2-decimal stretch next to values re-rounded to 4 decimals
   // (after a mispricing or a rescaling) keeps its own coarser tick.
-  const nearTick = (k: number) => printedTick(series, rows, Math.max(0, k - NEAR_TICK), Math.min(rows.length, k + NEAR_TICK + 2));
+  const nearTick = (k: number) => printedTick(series, rows, Math.max(0, k - NEAR_TICK), Math.min(rows.length, k + NEAR_TICK + 2), shown);
   const chance = new Float64Array(n - 1);
   const implied = new Float64Array(n - 1);
   let cursor = 0;
@@ -305,13 +306,13 @@ function normalCdf(x: number): number {
  * split, have a tick of 0.005). Blocks, not the whole series, because the printed precision
  * can change within a history (a new administrator, a split printed to more decimals).
  */
-function blockTicks(series: SeriesSlice, rows: number[]): (k: number) => number {
+function blockTicks(series: SeriesSlice, rows: number[], shown: Uint8Array): (k: number) => number {
   const size = 2 * TICK_WINDOW;
   const ticks: number[] = [];
   for (let start = 0; start < rows.length; start += size) {
     const end = Math.min(rows.length, start + size);
     // A short last block borrows the values before it.
-    ticks.push(printedTick(series, rows, Math.max(0, Math.min(start, end - size)), end));
+    ticks.push(printedTick(series, rows, Math.max(0, Math.min(start, end - size)), end, shown));
   }
   return (k: number) => ticks[Math.floor(k / size)];
 }
@@ -320,17 +321,28 @@ function blockTicks(series: SeriesSlice, rows: number[]): (k: number) => number 
 const POWERS_OF_TEN = Array.from({ length: 9 }, (_, k) => 10 ** k);
 const INVERSE_POWERS_OF_TEN = Array.from({ length: 9 }, (_, k) => 10 ** -k);
 
-function printedTick(series: SeriesSlice, rows: number[], from: number, to: number): number {
+/**
+ * The decimals each observation shows (`decimalsOf`), once per series: the windows of every
+ * step overlap, and counting them again per window was the largest cost of the checks.
+ */
+function decimalsShown(series: SeriesSlice, rows: number[]): Uint8Array {
+  const shown = new Uint8Array(rows.length);
+  for (let k = 0; k < rows.length; k++) shown[k] = decimalsOf(series.values[rows[k]]);
+  return shown;
+}
+
+/** `shown[k]`: the decimals observation `rows[k]` shows (`decimalsShown`). */
+function printedTick(series: SeriesSlice, rows: number[], from: number, to: number, shown: Uint8Array): number {
   // Decimals shown, as most of the values show them: one odd value (a keying error re-rounded
   // to 4 decimals) does not make a 2-decimal fund's grid finer.
   const byDecimals = new Int32Array(9);
-  for (let k = from; k < to; k++) byDecimals[decimalsOf(series.values[rows[k]])]++;
+  for (let k = from; k < to; k++) byDecimals[shown[k]]++;
   let decimals = 0;
   for (let seen = byDecimals[0]; decimals < 8 && seen < GRID_SHARE * (to - from); seen += byDecimals[++decimals]);
   let divisor = 0;
   for (let k = from; k < to && divisor !== 1; k++) {
     const value = series.values[rows[k]];
-    if (decimalsOf(value) <= decimals) divisor = gcd(divisor, Math.round(value * POWERS_OF_TEN[decimals]));
+    if (shown[k] <= decimals) divisor = gcd(divisor, Math.round(value * POWERS_OF_TEN[decimals]));
   }
   return Math.max(1, divisor) * INVERSE_POWERS_OF_TEN[decimals];
 }

@@ -1,7 +1,7 @@
 import type { FeedCheck, FeedContext } from '../src/checks/check.js';
 import type { Finding } from '../src/findings.js';
 import { BusinessCalendars } from '../src/calendar/business-calendar.js';
-import { findSeries, seriesAt } from '../src/series/frame.js';
+import { findSeries } from '../src/series/frame.js';
 import { capped, consecutiveRuns, isoDate, makeFinding } from '../src/checks/support.js';
 
 /**
@@ -63,18 +63,43 @@ function benchmarksWithoutLevels({ master, benchmarks }: FeedContext): Finding[]
  * its funds are closed too, are therefore never gaps.
  */
 function daysFundsNeed(context: FeedContext): Map<string, Set<number>> {
-  const needed = new Map<string, Set<number>>();
+  // Flags over the feed's span of days, one array per benchmark, instead of a set insertion per
+  // NAV row (25 million at universe scale); the sets are built once at the end.
+  const { first, last } = daySpan(context.nav.dates, context.asOf);
+  const flagsById = new Map<string, Uint8Array>();
   const benchmarkOf = new Map((context.master ?? []).map((record) => [record.series_id, record.benchmark_id]));
   for (let i = 0; i < context.nav.ids.length; i++) {
     const benchmarkId = benchmarkOf.get(context.nav.ids[i]);
     if (!benchmarkId || !context.benchmarks?.indexById.has(benchmarkId)) continue;
-    let days = needed.get(benchmarkId);
-    if (!days) needed.set(benchmarkId, (days = new Set()));
-    for (const day of seriesAt(context.nav, i).dates) {
-      if (day <= context.asOf && context.calendars.isBusinessDay(BusinessCalendars.DEFAULT, day)) days.add(day);
+    let flags = flagsById.get(benchmarkId);
+    if (!flags) flagsById.set(benchmarkId, (flags = new Uint8Array(Math.max(0, last - first + 1))));
+    const dates = context.nav.dates;
+    for (let row = context.nav.offsets[i]; row < context.nav.offsets[i + 1]; row++) {
+      if (dates[row] <= context.asOf) flags[dates[row] - first] = 1;
     }
   }
+  const needed = new Map<string, Set<number>>();
+  for (const [benchmarkId, flags] of flagsById) {
+    const days = new Set<number>();
+    for (let slot = 0; slot < flags.length; slot++) {
+      if (flags[slot] === 1 && context.calendars.isBusinessDay(BusinessCalendars.DEFAULT, first + slot)) days.add(first + slot);
+    }
+    needed.set(benchmarkId, days);
+  }
   return needed;
+}
+
+/** The earliest and latest day on or before the as-of (an empty span when there is none). */
+function daySpan(dates: Int32Array, asOf: number): { first: number; last: number } {
+  let first = Infinity;
+  let last = -Infinity;
+  for (let row = 0; row < dates.length; row++) {
+    const day = dates[row];
+    if (day > asOf) continue;
+    if (day < first) first = day;
+    if (day > last) last = day;
+  }
+  return first <= last ? { first, last } : { first: 0, last: -1 };
 }
 
 function benchmarkGaps(context: FeedContext, minGapDays: number): Finding[] {
