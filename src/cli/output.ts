@@ -3,6 +3,7 @@ import { basename, dirname, extname, join } from 'node:path';
 import type { RejectedRow } from '../ingest/records.js';
 import { renameDurably, writeFileDurably } from '../store/durable-files.js';
 import { rejectedRowsToCsv } from '../store/rejected-csv.js';
+import { requireFileLocation } from './locations.js';
 
 /** Writes a report to --out (atomically: temporary file, then rename) or to standard output. */
 export function emit(text: string, out: string | undefined): void {
@@ -10,6 +11,7 @@ export function emit(text: string, out: string | undefined): void {
     process.stdout.write(text);
     return;
   }
+  requireFileLocation(out, '--out');
   writeFileAtomically(out, text);
 }
 

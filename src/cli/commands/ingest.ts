@@ -7,6 +7,7 @@ import { render } from '../../report/render.js';
 import { tableView } from '../../report/view.js';
 import { storeSnapshot } from '../snapshots.js';
 import { asOfOption, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf } from '../options.js';
+import { requireDirectoryLocation } from '../locations.js';
 import { emit } from '../output.js';
 
 interface IngestOptions {
@@ -18,8 +19,8 @@ interface IngestOptions {
   holidays?: string;
   actions?: string;
   vendor?: string;
-  store: string;
-  feed: string;
+  store?: string;
+  feed?: string;
   asOf?: string;
   format?: string;
   out?: string;
@@ -36,8 +37,8 @@ export function ingestCommand(): Command {
     .option('--holidays <file>', 'holidays')
     .option('--actions <file>', 'corporate actions')
     .option('--vendor <file>', "vendor's risk figures")
-    .option('--store <dir>', 'snapshot store directory', 'navassay-store')
-    .option('--feed <name>', "the feed's name in the store", 'feed')
+    .option('--store <dir>', "snapshot store directory (default: the configuration's store, else navassay-store)")
+    .option('--feed <name>', "the feed's name in the store (default: the configuration's feed, else feed)")
     .addOption(asOfOption("the configuration's as_of, else today"))
     .addOption(formatOption())
     .addOption(outOption())
@@ -51,8 +52,10 @@ async function runIngest(options: IngestOptions): Promise<number> {
   const paths = config?.paths ?? pathsFromOptions(options);
   const asOf = parseAsOf(options.asOf ?? config?.as_of);
   const feed = await loadFeed(paths, loadOptionsOf(config));
-  const store = config?.store ?? options.store;
-  const feedName = config?.feed ?? options.feed;
+  // What the command line says wins over the configuration, as for --as-of.
+  const store = options.store ?? config?.store ?? 'navassay-store';
+  const feedName = options.feed ?? config?.feed ?? 'feed';
+  requireDirectoryLocation(store, 'the snapshot store');
   const snapshot = storeSnapshot({ store, feed: feedName }, asOf, feed);
   const answer = {
     feed: feedName,

@@ -10,6 +10,7 @@ import { adjustForCorporateActions } from '../../series/adjust.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { render } from '../../report/render.js';
 import { asOfOption, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf, profilesOption } from '../options.js';
+import { annualizationNotices, printNotices } from '../notices.js';
 import { emit } from '../output.js';
 
 interface MetricsOptions {
@@ -53,6 +54,7 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   const config = options.config === undefined ? undefined : loadRunConfig(options.config);
   const windows = options.windows === undefined ? (config?.windows ?? DEFAULT_WINDOWS) : parseWindowList(options.windows);
   const methodology = chosenMethodology(config?.methodology ?? DEFAULT_METHODOLOGY, options.set, options.rates !== undefined || constantRate !== undefined);
+  printNotices(annualizationNotices(methodology));
   const loadOptions = loadOptionsOf(config);
   const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions }, loadOptions);
   const answer = computeMetrics({

@@ -12,6 +12,8 @@ import { render, type OutputFormat } from '../../report/render.js';
 import { adjustForCorporateActions } from '../../series/adjust.js';
 import type { SeriesFrame } from '../../series/frame.js';
 import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn } from '../options.js';
+import { requireDirectoryLocation, requireFileLocation } from '../locations.js';
+import { annualizationNotices, printNotices, unknownSeriesNotices } from '../notices.js';
 import { emit, writeFileAtomically, writeQuarantine } from '../output.js';
 import { previousNavFromStore, storeSnapshot } from '../snapshots.js';
 
@@ -59,7 +61,12 @@ export async function runDailyJob(configPath: string, options: RunOptions): Prom
 export async function executeRun(configPath: string, options: RunOptions): Promise<DailyRun> {
   const config = loadRunConfig(configPath);
   const asOf = parseAsOf(options.asOf ?? config.as_of);
+  requireDirectoryLocation(config.output.dir, 'output.dir');
+  requireDirectoryLocation(config.store, 'store');
+  if (options.out !== undefined) requireFileLocation(options.out, '--out');
+  printNotices(annualizationNotices(config.methodology));
   const feed = await loadFeed(config.paths, loadOptionsOf(config));
+  printNotices(unknownSeriesNotices(config.checks, feed));
   const previous = await previousNav(config, asOf);
   const findings: Finding[] = runChecks({ ...feed, previous, asOf }, config.checks);
   const check = checkAnswer(asOf, feed.rows, findings);
