@@ -38,7 +38,7 @@ export function parserErrorWriter(helpCommand: string): (text: string, write: (t
   };
 }
 
-/** Runs the command line and returns the exit status of interface.md. */
+/** Runs the command line and returns the exit status of docs/interface.md. */
 export async function main(argv: readonly string[]): Promise<number> {
   process.exitCode = 0;
   try {

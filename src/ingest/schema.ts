@@ -1,4 +1,4 @@
-/** The canonical files of interface.md and their columns. */
+/** The canonical files of docs/interface.md and their columns. */
 export const FILE_KINDS = ['nav', 'benchmarks', 'master', 'rates', 'holidays', 'actions', 'vendor'] as const;
 export type FileKind = (typeof FILE_KINDS)[number];
 
