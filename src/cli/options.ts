@@ -3,8 +3,9 @@ import { formatIsoDate, parseIsoDate, todayEpochDay } from '../calendar/days.js'
 import { isSeverity, type Severity } from '../findings.js';
 import { ConfigError } from '../ingest/errors.js';
 import { OUTPUT_FORMATS, type OutputFormat } from '../report/render.js';
-import { loadRunConfig, type RunConfig } from '../config/run-config.js';
+import { loadRunConfig } from '../config/run-config.js';
 import type { LoadOptions } from '../ingest/feed.js';
+import { loadOptionsOf } from '../job/daily-job.js';
 
 /** Options several commands share, with one parser each so every command reads them alike. */
 export const formatOption = () =>
@@ -19,14 +20,13 @@ export const asOfOption = (what: string) => new Option('--as-of <date>', `as-of 
 export const profilesOption = () =>
   new Option('--config <file>', "read each file with the feed profile its kind has in this run configuration (and the configuration's weekend)");
 
+export { loadOptionsOf };
+
 /** Feed profiles and weekend from a run configuration, for commands given files one by one. */
 export function loadOptionsFrom(configPath: string | undefined): LoadOptions {
   return loadOptionsOf(configPath === undefined ? undefined : loadRunConfig(configPath));
 }
 
-export function loadOptionsOf(config: RunConfig | undefined): LoadOptions {
-  return config ? { profiles: config.profiles, weekendDays: config.weekend } : {};
-}
 
 export function chosenFormat(format: string | undefined): OutputFormat {
   if (format) return format as OutputFormat;

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { extname } from 'node:path';
 import { readArrowBuffer } from './arrow-reader.js';
 import { readCsvBuffer, readInput } from './csv-reader.js';
@@ -16,9 +17,26 @@ export function formatOf(path: string): FileFormat {
   return 'csv';
 }
 
+/** One file as read: its parsed table and the SHA-256 of the very bytes that were parsed. */
+export interface SourceRead {
+  readonly result: IngestResult;
+  /** Hex SHA-256 of the bytes parsed, so a snapshot's manifest describes exactly what was checked. */
+  readonly sha256: string;
+}
+
+/** Reads one canonical file once: the bytes are hashed and parsed from the same buffer. */
+export async function readSourceFile(path: string, kind: FileKind, profile: FeedProfile): Promise<SourceRead> {
+  const bytes = readInput(path);
+  const sha256 = createHash('sha256').update(bytes).digest('hex');
+  return { result: await parseFeedBytes(bytes, path, kind, profile), sha256 };
+}
+
 /** Reads one canonical file in whatever format its extension names. */
 export async function readFeedFile(path: string, kind: FileKind, profile: FeedProfile): Promise<IngestResult> {
-  const bytes = readInput(path);
+  return parseFeedBytes(readInput(path), path, kind, profile);
+}
+
+function parseFeedBytes(bytes: Buffer, path: string, kind: FileKind, profile: FeedProfile): Promise<IngestResult> | IngestResult {
   switch (formatOf(path)) {
     case 'csv':
       return readCsvBuffer(bytes, path, kind, profile);

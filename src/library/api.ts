@@ -4,7 +4,10 @@ import type { LoadedFeed } from '../ingest/feed.js';
 import { computeMetrics, type MetricsAnswer } from '../metrics/compute.js';
 import { parseMethodology, type MethodologyInput } from '../metrics/methodology.js';
 import { checkAnswer, type CheckAnswer } from '../report/check-answer.js';
-import { adjustForCorporateActions } from '../series/adjust.js';
+import { loadRunConfig } from '../config/run-config.js';
+import { ConfigError } from '../ingest/errors.js';
+import { runDailyJob, type DailyRun, type LaterStages } from '../job/daily-job.js';
+import { figureInputs } from '../job/day.js';
 import type { SeriesFrame } from '../series/frame.js';
 import { epochDayOf, type DateInput } from './dates.js';
 
@@ -42,15 +45,30 @@ export interface ComputeFiguresOptions {
  * corporate actions. The feed must hold a benchmarks file and a master.
  */
 export function computeFigures(feed: LoadedFeed, options: ComputeFiguresOptions): MetricsAnswer {
-  if (!feed.benchmarks || !feed.master) throw new TypeError('computeFigures needs a feed loaded with benchmarks and master files.');
+  const inputs = figureInputs(feed, options.constantRate);
+  if (!inputs) throw new TypeError('computeFigures needs a feed loaded with benchmarks and master files.');
   return computeMetrics({
-    nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
-    benchmarks: feed.benchmarks,
-    master: feed.master,
-    rates: feed.rates,
-    constantRate: options.constantRate,
+    ...inputs,
     asOf: epochDayOf(options.asOf),
     windows: options.windows ?? ['1y', '3y', '5y'],
     methodology: parseMethodology(options.methodology),
   });
+}
+
+export interface RunDayOptions {
+  /** The as-of date; default the configuration's `as_of`. */
+  readonly asOf?: DateInput;
+  /** Where reconciliation and tickets will plug in (not built yet). */
+  readonly stages?: LaterStages;
+}
+
+/**
+ * The whole daily job from a run configuration, as `navassay run` does it: load, checks, risk
+ * figures, the snapshot stored and the reports written. Returns each stage's output.
+ */
+export async function runDay(configPath: string, options: RunDayOptions = {}): Promise<DailyRun> {
+  const config = loadRunConfig(configPath);
+  const asOf = options.asOf ?? config.as_of;
+  if (asOf === undefined) throw new ConfigError(`${configPath} has no as_of; pass asOf as a YYYY-MM-DD string or a Date.`);
+  return runDailyJob(config, epochDayOf(asOf), options.stages);
 }

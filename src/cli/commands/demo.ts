@@ -4,8 +4,8 @@ import { join, resolve } from 'node:path';
 import { demoConfig, demoFiles } from '../../demo/scenario.js';
 import { requireDirectoryLocation } from '../locations.js';
 import { formatOption } from '../options.js';
-import { writeFileAtomically } from '../output.js';
-import { runDailyJob } from './run.js';
+import { writeFileAtomically } from '../../report/files.js';
+import { runCommandLine } from './run.js';
 
 export function demoCommand(): Command {
   return new Command('demo')
@@ -16,7 +16,7 @@ export function demoCommand(): Command {
       requireDirectoryLocation(options.dir, '--dir');
       const configPath = writeDemo(resolve(options.dir));
       process.stderr.write(`navassay: demo feed and configuration written to ${resolve(options.dir)}\n`);
-      process.exitCode = await runDailyJob(configPath, { format: options.format });
+      process.exitCode = await runCommandLine(configPath, { format: options.format });
     });
 }
 

@@ -2,10 +2,11 @@ import { Command } from 'commander';
 import { formatIsoDate } from '../../calendar/days.js';
 import { loadRunConfig } from '../../config/run-config.js';
 import { ConfigError } from '../../ingest/errors.js';
-import { loadFeed, type FeedPaths } from '../../ingest/feed.js';
+import type { FeedPaths } from '../../ingest/feed.js';
+import { loadDay } from '../../job/day.js';
+import { snapshotStage } from '../../job/stages/snapshot.js';
 import { render } from '../../report/render.js';
 import { tableView } from '../../report/view.js';
-import { storeSnapshot } from '../snapshots.js';
 import { asOfOption, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf } from '../options.js';
 import { requireDirectoryLocation } from '../locations.js';
 import { emit } from '../output.js';
@@ -51,12 +52,13 @@ async function runIngest(options: IngestOptions): Promise<number> {
   const config = options.config === undefined ? undefined : loadRunConfig(options.config);
   const paths = config?.paths ?? pathsFromOptions(options);
   const asOf = parseAsOf(options.asOf ?? config?.as_of);
-  const feed = await loadFeed(paths, loadOptionsOf(config));
   // What the command line says wins over the configuration, as for --as-of.
   const store = options.store ?? config?.store ?? 'navassay-store';
   const feedName = options.feed ?? config?.feed ?? 'feed';
   requireDirectoryLocation(store, 'the snapshot store');
-  const snapshot = storeSnapshot({ store, feed: feedName }, asOf, feed);
+  const day = await loadDay({ paths, asOf, load: loadOptionsOf(config) });
+  const { feed } = day;
+  const snapshot = snapshotStage(day, { store, feed: feedName });
   const answer = {
     feed: feedName,
     as_of: formatIsoDate(asOf),

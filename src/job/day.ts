@@ -1,0 +1,87 @@
+import { formatIsoDate } from '../calendar/days.js';
+import { toSeriesFrame } from '../ingest/convert.js';
+import { loadFeed, loadPreviousNav, type FeedPaths, type LoadedFeed, type LoadOptions } from '../ingest/feed.js';
+import type { FeedProfile } from '../ingest/profile.js';
+import { MetricCalculator, type MetricInputs } from '../metrics/compute.js';
+import { adjustForCorporateActions } from '../series/adjust.js';
+import type { SeriesFrame } from '../series/frame.js';
+import { previousSnapshot, readSnapshot } from '../store/index.js';
+
+/**
+ * One day of a feed, loaded once and shared by every stage of the daily job. Each rule that
+ * shapes the data lives here, once: the source hashes come from the very bytes parsed, the
+ * previous snapshot is converted once, and NAVs are adjusted for corporate actions once.
+ */
+export interface Day {
+  /** Epoch day the day is judged as of. */
+  readonly asOf: number;
+  /** The files as read, with `sources` (SHA-256 of the bytes parsed). */
+  readonly feed: LoadedFeed;
+  /** The previous snapshot's NAVs, for restated and dropped rows; absent on a feed's first day. */
+  readonly previous?: SeriesFrame;
+  /** What risk figures are computed from (NAVs adjusted for corporate actions); absent without benchmarks and master. */
+  readonly figures?: FigureSource;
+}
+
+/** The inputs of the risk figures, and one calculator over them that every stage shares. */
+export interface FigureSource {
+  readonly inputs: MetricInputs;
+  readonly calculator: MetricCalculator;
+}
+
+/** Where the previous NAVs come from: a file, the store's latest earlier snapshot, or nowhere. */
+export type PreviousSource =
+  | { readonly kind: 'file'; readonly path: string; readonly profile?: FeedProfile }
+  | { readonly kind: 'store'; readonly store: string; readonly feed: string }
+  | { readonly kind: 'none' };
+
+export interface DayRequest {
+  readonly paths: FeedPaths;
+  readonly asOf: number;
+  readonly load?: LoadOptions;
+  readonly previous?: PreviousSource;
+  /** An annual risk-free rate for every series (`--rf`), instead of the methodology's source. */
+  readonly constantRate?: number;
+}
+
+/** The load stage: reads the files and shapes them once for every later stage. */
+export async function loadDay(request: DayRequest): Promise<Day> {
+  const feed = await loadFeed(request.paths, request.load);
+  const previous = await loadPrevious(request.previous ?? { kind: 'none' }, request.asOf);
+  return { asOf: request.asOf, feed, previous, figures: figureSource(feed, request.constantRate) };
+}
+
+/**
+ * The rule "risk figures use NAVs adjusted for corporate actions", in its one place: the
+ * commands, the library and the demo's vendor file all take their figures' inputs from here.
+ */
+export function figureInputs(feed: Pick<LoadedFeed, 'nav' | 'actions' | 'benchmarks' | 'master' | 'rates'>, constantRate?: number): MetricInputs | undefined {
+  if (!feed.benchmarks || !feed.master) return undefined;
+  return {
+    nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
+    benchmarks: feed.benchmarks,
+    master: feed.master,
+    rates: feed.rates,
+    constantRate,
+  };
+}
+
+function figureSource(feed: LoadedFeed, constantRate: number | undefined): FigureSource | undefined {
+  const inputs = figureInputs(feed, constantRate);
+  return inputs && { inputs, calculator: new MetricCalculator(inputs) };
+}
+
+async function loadPrevious(source: PreviousSource, asOf: number): Promise<SeriesFrame | undefined> {
+  switch (source.kind) {
+    case 'none':
+      return undefined;
+    case 'file':
+      return loadPreviousNav(source.path, source.profile);
+    case 'store': {
+      const earlier = previousSnapshot(source.store, source.feed, formatIsoDate(asOf));
+      if (!earlier) return undefined;
+      const nav = readSnapshot(source.store, source.feed, earlier.asOf).tables.nav;
+      return nav && toSeriesFrame(nav, 'nav');
+    }
+  }
+}

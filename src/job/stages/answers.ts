@@ -1,0 +1,32 @@
+import { join } from 'node:path';
+import { writeFileAtomically, writeQuarantine } from '../../report/files.js';
+import type { MetricsAnswer } from '../../metrics/compute.js';
+import { checkView, type CheckAnswer } from '../../report/check-answer.js';
+import { metricsView } from '../../report/metrics-answer.js';
+import { render, type OutputFormat } from '../../report/render.js';
+import type { Day } from '../day.js';
+
+export interface ReportPlace {
+  readonly dir: string;
+  readonly formats: readonly OutputFormat[];
+}
+
+const EXTENSIONS: Record<OutputFormat, string> = { json: 'json', html: 'html', markdown: 'md', csv: 'csv', table: 'txt' };
+
+/** The answers stage: each report in each configured format, and the quarantine; returns the paths written. */
+export function answersStage(day: Day, check: CheckAnswer, metrics: MetricsAnswer | null, place: ReportPlace): string[] {
+  const written: string[] = [];
+  const write = (name: string, text: string) => {
+    const path = join(place.dir, name);
+    writeFileAtomically(path, text);
+    written.push(path);
+  };
+  for (const format of place.formats) {
+    write(`check.${EXTENSIONS[format]}`, render(format, check, checkView(check)));
+    if (metrics) write(`metrics.${EXTENSIONS[format]}`, render(format, metrics, metricsView(metrics)));
+  }
+  const quarantine = join(place.dir, 'quarantine.csv');
+  writeQuarantine(quarantine, day.feed.rejected);
+  written.push(quarantine);
+  return written;
+}
