@@ -1,3 +1,5 @@
+import { isWindowLabel } from '../metrics/windows.js';
+
 /** The canonical files of docs/interface.md and their columns. */
 export const FILE_KINDS = ['nav', 'benchmarks', 'master', 'rates', 'holidays', 'actions', 'vendor'] as const;
 export type FileKind = (typeof FILE_KINDS)[number];
@@ -33,9 +35,8 @@ const oneOf =
   (text: string): string | null =>
     allowed.includes(text) ? null : `${name} "${text}" is not one of ${allowed.join(', ')}`;
 
-const WINDOW_LABEL = /^[1-9]\d*[my]$/;
 const windowLabel = (text: string): string | null =>
-  WINDOW_LABEL.test(text) ? null : `window "${text}" is not a number of years or months such as 3y or 6m`;
+  isWindowLabel(text) ? null : `window "${text}" is not a number of years or months such as 3y or 6m`;
 
 export const CANONICAL_COLUMNS: Readonly<Record<FileKind, readonly ColumnSpec[]>> = {
   nav: [column('series_id', 'id'), column('date', 'date'), column('nav', 'number')],

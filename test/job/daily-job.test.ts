@@ -75,3 +75,22 @@ describe('the daily job', () => {
     expect(result.stdout).toContain('bramblecourt-daily');
   });
 });
+
+describe('one window-label rule', () => {
+  it('the command line, the run configuration and the vendor file accept and refuse the same labels', async () => {
+    const { isWindowLabel } = await import('../../src/metrics/windows.js');
+    const { RunConfigSchema } = await import('../../src/config/run-config.js');
+    const { CANONICAL_COLUMNS } = await import('../../src/ingest/schema.js');
+    const { parseWindowList } = await import('../../src/cli/commands/metrics.js');
+    const vendorWindow = CANONICAL_COLUMNS.vendor.find((column) => column.name === 'window')!;
+    // Decided in docs/decisions.md: `3Y` is a window (vendors write it); spaces, leading zeros and zero are not.
+    const cases: Array<[string, boolean]> = [['1y', true], ['3Y', true], ['18m', true], ['6M', true], ['0y', false], ['03y', false], ['3 y', false], ['3w', false], ['y', false]];
+    for (const [label, accepted] of cases) {
+      expect(isWindowLabel(label), label).toBe(accepted);
+      expect(RunConfigSchema.safeParse({ files: { nav: 'n.csv' }, windows: [label] }).success, `config ${label}`).toBe(accepted);
+      expect(vendorWindow.validate?.(label) === null, `vendor ${label}`).toBe(accepted);
+      if (accepted) expect(parseWindowList(label)).toEqual([label]);
+      else expect(() => parseWindowList(label)).toThrow(/is not a list of windows/);
+    }
+  });
+});
