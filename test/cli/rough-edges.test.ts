@@ -115,12 +115,17 @@ describe('one rule for the format when standard output is not a terminal', () =>
     expect(JSON.parse(run.stdout).as_of).toBe('2026-11-30');
   });
 
-  it('npm test prints no colour codes when its output is not a terminal', () => {
+  it('npm test prints no colour codes when its output is not a terminal, tables printed by tests included', () => {
     const script = (JSON.parse(readFileSync('package.json', 'utf8')) as { scripts: { test: string } }).scripts.test;
-    const vitest = script.slice(script.indexOf('vitest run'));
-    const result = spawnSync('sh', ['-c', `PATH="node_modules/.bin:$PATH" ${vitest} test/calendar/days.test.ts`], { encoding: 'utf8', env: { ...process.env, FORCE_COLOR: undefined, CI: undefined } });
+    const vitest = script.slice(script.indexOf('&&') + 2).trim(); // the part after the type check
+    // held-out.test.ts prints a score table with console.table, whose numbers were coloured.
+    const result = spawnSync('sh', ['-c', `PATH="node_modules/.bin:$PATH"; ${vitest.replace(/vitest run/g, 'vitest run test/checks/held-out.test.ts')}`], {
+      encoding: 'utf8',
+      env: { ...process.env, FORCE_COLOR: undefined, CI: undefined, NO_COLOR: undefined },
+    });
     expect(result.status).toBe(0);
-    expect(result.stdout).toContain('days.test.ts');
+    expect(result.stdout).toContain('held-out.test.ts');
+    expect(result.stdout).toContain('│');
     expect(result.stdout + result.stderr).not.toContain('\u001b[');
   });
 });
