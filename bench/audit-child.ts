@@ -1,7 +1,7 @@
 /**
  * One whole daily audit in its own process, timed stage by stage: the audit bench
  * (`bench/audit-bench.ts`) starts this file as a child several times and reads the JSON line it
- * prints last. The stages are those of `navassay run` (src/cli/commands/run.ts): read the feed,
+ * prints last. The stages are those of `navassay run` (src/job/daily-job.ts): read the feed,
  * run every check, compute the risk figures for the configured windows, reconcile (when the
  * project has that stage), store the snapshot, write the reports.
  *
@@ -11,19 +11,16 @@
  * on a shared machine the CPU figure is the steadier one.
  */
 import { existsSync } from 'node:fs';
-import { join } from 'node:path';
 import { lastMonthEndOnOrBefore } from '../src/calendar/days.js';
-import { defaultThreads, runChecksInParallel } from '../src/checks/parallel.js';
+import { defaultThreads } from '../src/checks/parallel.js';
 import { loadRunConfig } from '../src/config/run-config.js';
-import { loadFeed } from '../src/ingest/feed.js';
-import { computeMetrics } from '../src/metrics/compute.js';
-import { checkAnswer, checkView } from '../src/report/check-answer.js';
-import { metricsView } from '../src/report/metrics-answer.js';
-import { render } from '../src/report/render.js';
-import { adjustForCorporateActions } from '../src/series/adjust.js';
-import { loadOptionsOf, parseAsOf } from '../src/cli/options.js';
-import { writeFileAtomically, writeQuarantine } from '../src/cli/output.js';
-import { storeSnapshot } from '../src/cli/snapshots.js';
+import { loadOptionsOf } from '../src/job/daily-job.js';
+import { loadDay } from '../src/job/day.js';
+import { answersStage } from '../src/job/stages/answers.js';
+import { checkStage } from '../src/job/stages/checks.js';
+import { metricsStage } from '../src/job/stages/metrics.js';
+import { snapshotStage } from '../src/job/stages/snapshot.js';
+import { parseAsOf } from '../src/cli/options.js';
 
 export interface ChildReport {
   readonly stages: Record<string, number>;
@@ -57,30 +54,14 @@ async function stage<T>(name: string, work: () => T | Promise<T>): Promise<T> {
   return result;
 }
 
-const feed = await stage('ingest', () => loadFeed(config.paths, loadOptionsOf(config, asOf)));
-const findings = await stage('checks', () => runChecksInParallel({ ...feed, asOf }, config.checks, { threads }));
-const check = checkAnswer(asOf, feed.rows, findings);
-const metrics = await stage('metrics', () =>
-  computeMetrics({
-    nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
-    benchmarks: feed.benchmarks!,
-    master: feed.master!,
-    rates: feed.rates,
-    asOf: lastMonthEndOnOrBefore(asOf),
-    windows: config.windows,
-    methodology: config.methodology,
-  }),
-);
+// The stages of the daily job (src/job/daily-job.ts), each timed on its own.
+const day = await stage('ingest', () => loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: { kind: 'store', store: config.store, feed: config.feed } }));
+const check = await stage('checks', () => checkStage(day, config.checks, { threads }));
+const metrics = await stage('metrics', () => metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology }));
 // The reconciliation stage (src/reconcile/) is timed once the project has it.
 if (!existsSync(new URL('../src/reconcile/', import.meta.url))) skipped.push('reconcile (no src/reconcile stage in this build)');
-if (config.store !== '') await stage('store', () => storeSnapshot(config, asOf, feed));
-await stage('reports', () => {
-  for (const format of config.output.formats) {
-    writeFileAtomically(join(config.output.dir, `check.${format}`), render(format, check, checkView(check)));
-    writeFileAtomically(join(config.output.dir, `metrics.${format}`), render(format, metrics, metricsView(metrics)));
-  }
-  writeQuarantine(join(config.output.dir, 'quarantine.csv'), feed.rejected);
-});
+await stage('store', () => snapshotStage(day, config));
+await stage('reports', () => answersStage(day, check, metrics, config.output));
 stages.total = Number(process.hrtime.bigint() - started) / 1e9;
 const whole = process.cpuUsage();
 cpu.total = (whole.user + whole.system) / 1e6;
@@ -90,10 +71,10 @@ const report: ChildReport = {
   cpu,
   threads,
   skipped,
-  navRows: feed.nav.dates.length,
-  rowsRead: feed.rows.read,
-  findings: findings.length,
-  figures: metrics.metrics.length,
+  navRows: day.feed.nav.dates.length,
+  rowsRead: day.feed.rows.read,
+  findings: check.findings.length,
+  figures: metrics?.metrics.length ?? 0,
   maxRssBytes: process.resourceUsage().maxRSS * 1024,
 };
 console.log(JSON.stringify(report));

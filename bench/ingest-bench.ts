@@ -4,7 +4,7 @@ import { readArrowBuffer } from '../src/ingest/arrow-reader.js';
 import { canonicalToArrowIpc } from '../src/ingest/arrow-table.js';
 import { toSeriesFrame } from '../src/ingest/convert.js';
 import { readParquetBuffer } from '../src/ingest/parquet-reader.js';
-import { canonicalToParquetBuffer } from '../src/ingest/parquet-writer.js';
+import { canonicalToParquetBuffer } from '../fixtures/parquet-writer.js';
 import { DEFAULT_PROFILE } from '../src/ingest/profile.js';
 import { benchUniverse, navCsv } from './universe.js';
 

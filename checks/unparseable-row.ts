@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import type { FeedCheck } from '../src/checks/check.js';
 import { makeFinding } from '../src/checks/support.js';
 
@@ -21,18 +22,16 @@ export const unparseableRow: FeedCheck<Record<string, never>> = {
         end: null,
         message: `Line ${row.line} of ${row.file} could not be read (${row.reason}) and was left out.`,
         evidence: { file: row.file, line: row.line, raw: row.raw, reason: row.reason },
-        identity: [fnv1a(row.raw.trim())],
+        identity: [rowDigest(row.raw.trim())],
       }),
     );
   },
 };
 
-/** 32-bit FNV-1a as 8 hex digits: short, stable, dependency-free. */
-export function fnv1a(text: string): string {
-  let hash = 0x811c9dc5;
-  for (let i = 0; i < text.length; i++) {
-    hash ^= text.charCodeAt(i);
-    hash = Math.imul(hash, 0x01000193);
-  }
-  return (hash >>> 0).toString(16).padStart(8, '0');
+/**
+ * The first 16 hex digits (64 bits) of the SHA-256 of the row's text: keys stay unique across
+ * years of tickets, where a 32-bit hash would collide among a few hundred thousand bad rows.
+ */
+export function rowDigest(text: string): string {
+  return createHash('sha256').update(text, 'utf8').digest('hex').slice(0, 16);
 }

@@ -6,6 +6,7 @@ import { formatIsoDate } from '../calendar/days.js';
 import { findingKey, type Finding, type Severity } from '../findings.js';
 import type { SeriesContext } from './check.js';
 import type { SeriesSlice } from '../series/frame.js';
+import { indexOfSorted } from '../numeric/search.js';
 
 export const isoDate = formatIsoDate;
 
@@ -115,20 +116,8 @@ export function robustScale(values: ArrayLike<number>, centre = median(values)):
   return 1.4826 * median(deviations);
 }
 
-export function correlation(x: ArrayLike<number>, y: ArrayLike<number>, n = x.length): number {
-  let sx = 0, sy = 0, sxx = 0, syy = 0, sxy = 0;
-  for (let i = 0; i < n; i++) {
-    sx += x[i];
-    sy += y[i];
-    sxx += x[i] * x[i];
-    syy += y[i] * y[i];
-    sxy += x[i] * y[i];
-  }
-  const cxx = sxx - (sx * sx) / n;
-  const cyy = syy - (sy * sy) / n;
-  const cxy = sxy - (sx * sy) / n;
-  return cxx > 0 && cyy > 0 ? cxy / Math.sqrt(cxx * cyy) : NaN;
-}
+/** Pearson's correlation, from the one helper (`src/numeric/correlation.ts`). */
+export { correlation } from '../numeric/correlation.js';
 
 export function round(value: number, digits = 6): number {
   if (!Number.isFinite(value)) return value;
@@ -138,13 +127,7 @@ export function round(value: number, digits = 6): number {
 
 /** Position of the first entry of ascending `dates` equal to `day`, or -1. */
 export function exactPosition(dates: Int32Array, day: number): number {
-  let low = 0, high = dates.length - 1;
-  while (low < high) {
-    const mid = (low + high) >> 1;
-    if (dates[mid] < day) low = mid + 1;
-    else high = mid;
-  }
-  return dates.length > 0 && dates[low] === day ? low : -1;
+  return indexOfSorted(dates, day);
 }
 
 export function percent(ratio: number, digits = 2): string {

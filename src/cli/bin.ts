@@ -1,10 +1,30 @@
 #!/usr/bin/env node
 import { main } from './main.js';
 
+/**
+ * The executable. It never calls process.exit: that would end the process while standard output,
+ * when it is a pipe, still holds unwritten data (a scheduler or `jq` would get a truncated
+ * answer). It sets the exit status and lets Node end once both streams have drained.
+ */
+const INTERNAL_ERROR = 70;
+
+for (const stream of [process.stdout, process.stderr]) stream.on('error', onStreamError);
+
 main(process.argv.slice(2)).then(
-  (status) => process.exit(status),
+  (status) => {
+    process.exitCode = status;
+  },
   (error: unknown) => {
+    process.exitCode = INTERNAL_ERROR;
     process.stderr.write(`navassay: internal error, please report it with the command you ran: ${(error as Error).stack ?? String(error)}\n`);
-    process.exit(70);
   },
 );
+
+/**
+ * A reader that closes the pipe early (`navassay … | head -1`) has read what it wanted: that is a
+ * normal end, not an error, so the rest of the output is dropped quietly.
+ */
+function onStreamError(error: NodeJS.ErrnoException): void {
+  if (error.code === 'EPIPE' || error.code === 'ERR_STREAM_DESTROYED') return;
+  process.exitCode = INTERNAL_ERROR;
+}

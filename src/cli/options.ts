@@ -3,9 +3,9 @@ import { formatIsoDate, parseIsoDate, todayEpochDay } from '../calendar/days.js'
 import { isSeverity, type Severity } from '../findings.js';
 import { ConfigError } from '../ingest/errors.js';
 import { OUTPUT_FORMATS, type OutputFormat } from '../report/render.js';
-import { loadRunConfig, type RunConfig } from '../config/run-config.js';
+import { loadRunConfig } from '../config/run-config.js';
 import type { LoadOptions } from '../ingest/feed.js';
-import { readLimits } from '../ingest/limits.js';
+import { loadOptionsOf } from '../job/daily-job.js';
 
 /** Options several commands share, with one parser each so every command reads them alike. */
 export const formatOption = () =>
@@ -31,15 +31,11 @@ export function parseThreads(text: string | undefined): number | undefined {
 export const profilesOption = () =>
   new Option('--config <file>', "read each file with the feed profile its kind has in this run configuration (and the configuration's weekend)");
 
+export { loadOptionsOf };
+
 /** Feed profiles, weekend and limits from a run configuration, for commands given files one by one. */
 export function loadOptionsFrom(configPath: string | undefined, asOf?: number): LoadOptions {
   return loadOptionsOf(configPath === undefined ? undefined : loadRunConfig(configPath), asOf);
-}
-
-/** The limits' plausible date range ends a year after `asOf` (default: today) unless the configuration says otherwise. */
-export function loadOptionsOf(config: RunConfig | undefined, asOf?: number): LoadOptions {
-  const limits = readLimits(config?.limits, asOf);
-  return config ? { profiles: config.profiles, weekendDays: config.weekend, limits } : { limits };
 }
 
 export function chosenFormat(format: string | undefined): OutputFormat {

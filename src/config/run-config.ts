@@ -10,6 +10,7 @@ import { FeedProfileSchema, type FeedProfile } from '../ingest/profile.js';
 import { FILE_KINDS, type FileKind } from '../ingest/schema.js';
 import { CheckSettingsSchema, type CheckSettings } from '../checks/settings.js';
 import { MethodologySchema } from '../metrics/methodology.js';
+import { isWindowLabel } from '../metrics/windows.js';
 import { OUTPUT_FORMATS } from '../report/render.js';
 import { checkOutputsApart, runOutputFiles, type NamedPath } from './output-paths.js';
 import { parseYaml, validateYaml, type LocatedYaml } from './yaml-errors.js';
@@ -25,7 +26,6 @@ const FileEntrySchema = z.union([
   z.object({ path: z.string().min(1), profile: z.string().min(1).optional() }).strict(),
 ]);
 
-const WINDOW_LABEL = /^[1-9]\d*[my]$/;
 
 export const RunConfigSchema = z
   .object({
@@ -52,7 +52,7 @@ export const RunConfigSchema = z
     weekend: z.array(z.number().int().min(1).max(7)).default([6, 7]),
     checks: CheckSettingsSchema.default({}),
     methodology: MethodologySchema.default(MethodologySchema.parse({})),
-    windows: z.array(z.string().regex(WINDOW_LABEL, 'must be a window such as 1y, 3y or 6m')).min(1).default(['1y', '3y', '5y']),
+    windows: z.array(z.string().refine(isWindowLabel, 'must be a window such as 1y, 3y or 6m')).min(1).default(['1y', '3y', '5y']),
     output: z
       .object({
         dir: z.string().min(1).default('navassay-report'),

@@ -5,7 +5,7 @@ import { DEFAULT_PROFILE, FeedProfileSchema } from '../ingest/profile.js';
 import type { MetricId } from '../ingest/schema.js';
 import { computeMetrics, type MetricRow } from '../metrics/compute.js';
 import { DEFAULT_METHODOLOGY, withChanges, type MethodologyChanges } from '../metrics/methodology.js';
-import { adjustForCorporateActions } from '../series/adjust.js';
+import { figureInputs } from '../job/day.js';
 
 /**
  * The demo vendor's file of published risk figures. Most figures are what an honest vendor would
@@ -45,12 +45,13 @@ function publishedFigures(inputs: DemoInputs, asOf: number): MetricRow[] {
   const read = (text: string, kind: 'nav' | 'benchmarks' | 'master' | 'rates' | 'actions', profile = DEFAULT_PROFILE) =>
     readCsvBuffer(Buffer.from(text), `${kind}.csv`, kind, profile).table;
   const indexVendor = FeedProfileSchema.parse({ columns: { benchmark_id: 'Index Code', date: 'Value Date', level: 'Close' }, delimiter: ';', decimal: ',', date_format: 'day-first' });
-  const data = {
-    nav: adjustForCorporateActions(toSeriesFrame(read(inputs.nav, 'nav'), 'nav'), toCorporateActions(read(inputs.actions, 'actions'))),
+  const data = figureInputs({
+    nav: toSeriesFrame(read(inputs.nav, 'nav'), 'nav'),
+    actions: toCorporateActions(read(inputs.actions, 'actions')),
     benchmarks: toSeriesFrame(read(inputs.benchmarks, 'benchmarks', indexVendor), 'benchmarks'),
     master: toMasterRecords(read(inputs.master, 'master')),
     rates: toSeriesFrame(read(inputs.rates, 'rates'), 'rates'),
-  };
+  })!;
   const under = (changes: MethodologyChanges) =>
     computeMetrics({ ...data, asOf, windows: WINDOWS, methodology: withChanges(DEFAULT_METHODOLOGY, changes), metrics: PUBLISHED }).metrics;
   const figuresByConvention = new Map<MethodologyChanges, MetricRow[]>();

@@ -1,5 +1,5 @@
 /**
- * Errors that stop a command. Each carries the exit status of interface.md and a message of one
+ * Errors that stop a command. Each carries the exit status of docs/interface.md and a message of one
  * sentence naming the file, the line and what to do.
  */
 export class NavassayError extends Error {

@@ -3,7 +3,7 @@ import type { SeriesFrame } from '../series/frame.js';
 import { toCalendars, toCorporateActions, toMasterRecords, toSeriesFrame, toVendorFigures } from './convert.js';
 import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import { DEFAULT_PROFILE, type FeedProfile } from './profile.js';
-import { readFeedFile } from './read.js';
+import { readFeedFile, readSourceFile, type SourceRead } from './read.js';
 import type {
   CorporateActionRecord,
   RejectedRow,
@@ -30,8 +30,16 @@ export interface LoadedFeed {
   readonly calendars: BusinessCalendars;
   /** Every file read, in the order of FILE_KINDS, with its own accounting. */
   readonly results: readonly IngestResult[];
+  /** The SHA-256 of each file's bytes as parsed, in the order of `results`. */
+  readonly sources: readonly FeedSource[];
   readonly rows: RowAccounting;
   readonly rejected: readonly RejectedRow[];
+}
+
+export interface FeedSource {
+  readonly kind: FileKind;
+  readonly path: string;
+  readonly sha256: string;
 }
 
 export interface LoadOptions {
@@ -45,15 +53,15 @@ export interface LoadOptions {
 export async function loadFeed(paths: FeedPaths, options: LoadOptions = {}): Promise<LoadedFeed> {
   const read = async (kind: FileKind) => {
     const path = paths[kind];
-    return path === undefined ? undefined : readFeedFile(path, kind, options.profiles?.[kind] ?? DEFAULT_PROFILE, options.limits ?? DEFAULT_READ_LIMITS);
+    return path === undefined ? undefined : readSourceFile(path, kind, options.profiles?.[kind] ?? DEFAULT_PROFILE, options.limits ?? DEFAULT_READ_LIMITS);
   };
-  const nav = (await read('nav'))!;
-  const [benchmarks, master, rates, holidays, actions, vendor] = await Promise.all(
-    (['benchmarks', 'master', 'rates', 'holidays', 'actions', 'vendor'] as const).map(read),
-  );
-  const results = [nav, benchmarks, master, rates, holidays, actions, vendor].filter((r): r is IngestResult => !!r);
+  const navRead = (await read('nav'))!;
+  const reads = [navRead, ...(await Promise.all((['benchmarks', 'master', 'rates', 'holidays', 'actions', 'vendor'] as const).map(read)))];
+  const [nav, benchmarks, master, rates, holidays, actions, vendor] = reads.map((one) => one?.result);
+  const results = reads.filter((one): one is SourceRead => !!one).map((one) => one.result);
+  const sources = reads.filter((one): one is SourceRead => !!one).map((one) => ({ kind: one.result.kind, path: one.result.file, sha256: one.sha256 }));
   return {
-    nav: toSeriesFrame(nav.table, 'nav'),
+    nav: toSeriesFrame(nav!.table, 'nav'),
     benchmarks: benchmarks && toSeriesFrame(benchmarks.table, 'benchmarks'),
     rates: rates && toSeriesFrame(rates.table, 'rates'),
     master: master && toMasterRecords(master.table),
@@ -61,6 +69,7 @@ export async function loadFeed(paths: FeedPaths, options: LoadOptions = {}): Pro
     vendor: vendor && toVendorFigures(vendor.table),
     calendars: toCalendars(holidays?.table, options.weekendDays),
     results,
+    sources,
     rows: totalRows(results),
     rejected: results.flatMap((result) => result.rejected),
   };

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { extname } from 'node:path';
 import { readArrowBuffer } from './arrow-reader.js';
 import { decodeArrowUnderWatchdog } from './arrow-watchdog.js';
@@ -20,6 +21,25 @@ export function formatOf(path: string): FileFormat {
   return 'csv';
 }
 
+/** One file as read: its parsed table and the SHA-256 of the very bytes that were parsed. */
+export interface SourceRead {
+  readonly result: IngestResult;
+  /** Hex SHA-256 of the bytes parsed, so a snapshot's manifest describes exactly what was checked. */
+  readonly sha256: string;
+}
+
+/** Reads one canonical file once, within the limits: the bytes are hashed and parsed from the same buffer. */
+export async function readSourceFile(
+  path: string,
+  kind: FileKind,
+  profile: FeedProfile,
+  limits: ReadLimits = DEFAULT_READ_LIMITS,
+): Promise<SourceRead> {
+  const bytes = readInputFile(path, limits.maxInputBytes);
+  const sha256 = createHash('sha256').update(bytes).digest('hex');
+  return { result: await parseFeedBytes(bytes, path, kind, profile, limits), sha256 };
+}
+
 /** Reads one canonical file in whatever format its extension names, within the limits. */
 export async function readFeedFile(
   path: string,
@@ -27,7 +47,10 @@ export async function readFeedFile(
   profile: FeedProfile,
   limits: ReadLimits = DEFAULT_READ_LIMITS,
 ): Promise<IngestResult> {
-  const bytes = readInputFile(path, limits.maxInputBytes);
+  return parseFeedBytes(readInputFile(path, limits.maxInputBytes), path, kind, profile, limits);
+}
+
+async function parseFeedBytes(bytes: Buffer, path: string, kind: FileKind, profile: FeedProfile, limits: ReadLimits): Promise<IngestResult> {
   const format = formatOf(path);
   try {
     switch (format) {

@@ -58,8 +58,8 @@ export interface MetricValue {
   readonly reason?: string;
 }
 
-export function computeMetrics(request: ComputeMetricsRequest): MetricsAnswer {
-  const calculator = new MetricCalculator(request);
+/** Every figure of the request; pass the run's calculator (built on the same inputs) to share its cache. */
+export function computeMetrics(request: ComputeMetricsRequest, calculator = new MetricCalculator(request)): MetricsAnswer {
   const methodology = calculator.effectiveMethodology(request.methodology);
   const metrics = request.metrics ?? METRIC_IDS;
   const rows: MetricRow[] = [];

@@ -1,3 +1,4 @@
+import { firstAbove } from '../numeric/search.js';
 import { formatIsoDate, isoWeekStart, monthEndDay, monthIndex } from '../calendar/days.js';
 import type { Frequency } from './methodology.js';
 import { formatMonth, monthStartDay, type WindowMonths } from './windows.js';
@@ -86,14 +87,7 @@ export function sampleWindow(request: WindowRequest): Outcome<WindowSample> {
 
 /** Index of the first date above `day` (binary search). */
 export function upperBound(dates: Int32Array, day: number): number {
-  let lo = 0;
-  let hi = dates.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >>> 1;
-    if (dates[mid] <= day) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
+  return firstAbove(dates, day);
 }
 
 /** Index of the first date on or after `day`. */

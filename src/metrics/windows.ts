@@ -6,11 +6,17 @@ import { formatIsoDate, monthEndDay, monthIndex } from '../calendar/days.js';
  * so it needs M + 1 month-end values: the one before its first month and one for each month.
  */
 
-const WINDOW_LABEL = /^(\d+)\s*([ym])$/i;
+/**
+ * The one rule for a window label, wherever one is read (command line, run configuration,
+ * vendor file): a whole positive count without leading zeros and `y` or `m`, either case
+ * (`3y`, `3Y`, `18m`). Spaces, `03y` and `0y` are not windows. Labels are kept as written;
+ * compare two labels by their months (`parseWindow`), never as text.
+ */
+export const WINDOW_LABEL = /^([1-9]\d*)([ym])$/i;
 
 /** Months in a window label, or null when the label is not a window. */
 export function parseWindow(label: string): number | null {
-  const match = WINDOW_LABEL.exec(label.trim());
+  const match = WINDOW_LABEL.exec(label);
   if (!match) return null;
   const count = Number(match[1]);
   const months = match[2].toLowerCase() === 'y' ? 12 * count : count;

@@ -3,7 +3,7 @@ import { severityRank, summarizeFindings, type Finding, type FindingSummary } fr
 import type { RowAccounting } from '../ingest/records.js';
 import { tableView, type ReportView } from './view.js';
 
-/** The `check --format json` answer of interface.md. */
+/** The `check --format json` answer of docs/interface.md. */
 export interface CheckAnswer {
   readonly as_of: string;
   readonly rows: RowAccounting;

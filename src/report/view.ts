@@ -1,6 +1,6 @@
 /**
  * A report view: the rows a person reads, shared by the table, csv, markdown and html outputs.
- * The json output is the command's own answer object (interface.md), not a view.
+ * The json output is the command's own answer object (docs/interface.md), not a view.
  */
 export interface ReportView {
   readonly title: string;

@@ -1,3 +1,4 @@
+import { firstAtOrAbove } from '../numeric/search.js';
 import type { CorporateActionRecord } from '../ingest/records.js';
 import type { SeriesFrame } from './frame.js';
 
@@ -20,7 +21,7 @@ export function adjustForCorporateActions(frame: SeriesFrame, actions: readonly 
     if (index === undefined) continue;
     const start = frame.offsets[index];
     const end = frame.offsets[index + 1];
-    const exRow = firstRowOnOrAfter(frame.dates, start, end, action.ex_date);
+    const exRow = firstAtOrAbove(frame.dates, action.ex_date, start, end);
     if (exRow === start || exRow === end) continue; // nothing before the ex-date, or no ex-date NAV
     const factor = adjustmentFactor(action, values[exRow]);
     if (!(factor > 0) || !Number.isFinite(factor)) continue;
@@ -31,15 +32,4 @@ export function adjustForCorporateActions(frame: SeriesFrame, actions: readonly 
 
 function adjustmentFactor(action: CorporateActionRecord, exDateNav: number): number {
   return action.kind === 'split' ? action.value : (exDateNav + action.value) / exDateNav;
-}
-
-function firstRowOnOrAfter(dates: Int32Array, start: number, end: number, day: number): number {
-  let low = start;
-  let high = end;
-  while (low < high) {
-    const middle = (low + high) >>> 1;
-    if (dates[middle] < day) low = middle + 1;
-    else high = middle;
-  }
-  return low;
 }

@@ -4,11 +4,12 @@ import { BusinessCalendars } from '../../src/calendar/business-calendar.js';
 import { parseIsoDate } from '../../src/calendar/days.js';
 import type { FeedContext } from '../../src/checks/check.js';
 import type { VendorFigureRecord } from '../../src/ingest/records.js';
+import type { MetricId } from '../../src/ingest/schema.js';
 import { frameFromSeries } from '../../src/series/frame.js';
 
 const AS_OF = parseIsoDate('2026-11-30')!;
 let line = 2;
-const figure = (series_id: string, metric: string, value: number, unit: 'decimal' | 'percent' = 'decimal', window = '3y'): VendorFigureRecord => ({
+const figure = (series_id: string, metric: MetricId, value: number, unit: 'decimal' | 'percent' = 'decimal', window = '3y'): VendorFigureRecord => ({
   series_id,
   as_of: AS_OF,
   window,

@@ -21,7 +21,7 @@ describe('every command answers --help and --version', () => {
   }
 });
 
-describe('exit statuses of interface.md', () => {
+describe('exit statuses of docs/interface.md', () => {
   it('0 when nothing reaches --fail-on, 1 when something does', async () => {
     const dir = scratchDir();
     writeFiles(dir, { 'nav.csv': NAV });

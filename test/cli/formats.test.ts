@@ -5,7 +5,7 @@ import { demoFiles } from '../../src/demo/scenario.js';
 import { writeArrowIpc } from '../../src/ingest/arrow-table.js';
 import { readCsvFile } from '../../src/ingest/csv-reader.js';
 import { DEFAULT_PROFILE, FeedProfileSchema } from '../../src/ingest/profile.js';
-import { writeParquet } from '../../src/ingest/parquet-writer.js';
+import { writeParquet } from '../../fixtures/parquet-writer.js';
 import { runCli, scratchDir, writeFiles } from './run-cli.js';
 
 /**

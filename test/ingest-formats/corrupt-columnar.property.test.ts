@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { canonicalToArrowIpc } from '../../src/ingest/arrow-table.js';
 import { NavassayError } from '../../src/ingest/errors.js';
 import { DEFAULT_READ_LIMITS } from '../../src/ingest/limits.js';
-import { canonicalToParquetBuffer } from '../../src/ingest/parquet-writer.js';
+import { canonicalToParquetBuffer } from '../../fixtures/parquet-writer.js';
 import { DEFAULT_PROFILE } from '../../src/ingest/profile.js';
 import { readFeedFile } from '../../src/ingest/read.js';
 import type { IngestResult } from '../../src/ingest/table.js';

@@ -1,7 +1,7 @@
 import { parquetWriteBuffer, type ColumnSource } from 'hyparquet-writer';
 import { describe, expect, it } from 'vitest';
 import { ConfigError, InputError } from '../../src/ingest/errors.js';
-import { canonicalToParquetBuffer } from '../../src/ingest/parquet-writer.js';
+import { canonicalToParquetBuffer } from '../../fixtures/parquet-writer.js';
 import { readParquetBuffer } from '../../src/ingest/parquet-reader.js';
 import { DEFAULT_PROFILE, FeedProfileSchema } from '../../src/ingest/profile.js';
 import { rowsOf, tableFromRows } from './tables.js';

@@ -2,7 +2,7 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { readArrowBuffer } from '../../src/ingest/arrow-reader.js';
 import { arrowIpcToCanonical, canonicalToArrowIpc } from '../../src/ingest/arrow-table.js';
-import { canonicalToParquetBuffer } from '../../src/ingest/parquet-writer.js';
+import { canonicalToParquetBuffer } from '../../fixtures/parquet-writer.js';
 import { readParquetBuffer } from '../../src/ingest/parquet-reader.js';
 import { DEFAULT_PROFILE } from '../../src/ingest/profile.js';
 import { METRIC_IDS, type FileKind } from '../../src/ingest/schema.js';

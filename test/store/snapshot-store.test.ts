@@ -8,7 +8,7 @@ import { writeArrowIpc } from '../../src/ingest/arrow-table.js';
 import { ConfigError, InputError } from '../../src/ingest/errors.js';
 import { DEFAULT_PROFILE } from '../../src/ingest/profile.js';
 import type { IngestResult } from '../../src/ingest/table.js';
-import { writeParquet } from '../../src/ingest/parquet-writer.js';
+import { writeParquet } from '../../fixtures/parquet-writer.js';
 import { readParquetBuffer } from '../../src/ingest/parquet-reader.js';
 import {
   findSnapshot,

@@ -1,8 +1,9 @@
 import { Command } from 'commander';
-import { runChecks } from '../../checks/run.js';
 import { checkOutputsApart } from '../../config/output-paths.js';
-import { loadFeed, loadPreviousNav, type FeedPaths } from '../../ingest/feed.js';
-import { checkAnswer, checkView, failsOn } from '../../report/check-answer.js';
+import type { FeedPaths } from '../../ingest/feed.js';
+import { loadDay } from '../../job/day.js';
+import { checkStage } from '../../job/stages/checks.js';
+import { checkView, failsOn } from '../../report/check-answer.js';
 import { render } from '../../report/render.js';
 import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsFrom, outOption, parseAsOf, parseFailOn, profilesOption } from '../options.js';
 import { emit, quarantinePathFor, writeQuarantine } from '../output.js';
@@ -60,12 +61,11 @@ async function runCheckCommand(options: CheckOptions): Promise<number> {
     const outputs = [{ key: '--out', path: options.out }, { key: '--out', path: quarantinePathFor(options.out) }];
     checkOutputsApart('--out', inputs, outputs);
   }
-  const loadOptions = loadOptionsFrom(options.config, asOf);
-  const feed = await loadFeed(paths, loadOptions);
-  const previous = options.previous === undefined ? undefined : await loadPreviousNav(options.previous, loadOptions.profiles?.nav, loadOptions.limits);
-  const findings = runChecks({ ...feed, previous, asOf });
-  const answer = checkAnswer(asOf, feed.rows, findings);
+  const load = loadOptionsFrom(options.config, asOf);
+  const previous = options.previous === undefined ? undefined : ({ kind: 'file', path: options.previous, profile: load.profiles?.nav } as const);
+  const day = await loadDay({ paths, asOf, load, previous });
+  const answer = await checkStage(day);
   emit(render(chosenFormat(options.format), answer, checkView(answer)), options.out);
-  if (options.out !== undefined && feed.rejected.length > 0) writeQuarantine(quarantinePathFor(options.out), feed.rejected);
-  return failsOn(findings, failOn) ? 1 : 0;
+  if (options.out !== undefined && day.feed.rejected.length > 0) writeQuarantine(quarantinePathFor(options.out), day.feed.rejected);
+  return failsOn(answer.findings, failOn) ? 1 : 0;
 }

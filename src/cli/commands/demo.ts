@@ -2,9 +2,10 @@ import { Command } from 'commander';
 import { mkdirSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { demoConfig, demoFiles } from '../../demo/scenario.js';
+import { requireDirectoryLocation } from '../locations.js';
 import { formatOption } from '../options.js';
-import { writeFileAtomically } from '../output.js';
-import { runDailyJob } from './run.js';
+import { writeFileAtomically } from '../../report/files.js';
+import { runCommandLine } from './run.js';
 
 export function demoCommand(): Command {
   return new Command('demo')
@@ -12,9 +13,10 @@ export function demoCommand(): Command {
     .option('--dir <dir>', 'where to write the demo feed, configuration, store and reports', 'navassay-demo')
     .addOption(formatOption())
     .action(async (options: { dir: string; format?: string }) => {
+      requireDirectoryLocation(options.dir, '--dir');
       const configPath = writeDemo(resolve(options.dir));
       process.stderr.write(`navassay: demo feed and configuration written to ${resolve(options.dir)}\n`);
-      process.exitCode = await runDailyJob(configPath, { format: options.format ?? 'table' });
+      process.exitCode = await runCommandLine(configPath, { format: options.format });
     });
 }
 

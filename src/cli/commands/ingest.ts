@@ -3,11 +3,13 @@ import { formatIsoDate } from '../../calendar/days.js';
 import { checkOutputsApart } from '../../config/output-paths.js';
 import { loadRunConfig } from '../../config/run-config.js';
 import { ConfigError } from '../../ingest/errors.js';
-import { loadFeed, type FeedPaths } from '../../ingest/feed.js';
+import type { FeedPaths } from '../../ingest/feed.js';
+import { loadDay } from '../../job/day.js';
+import { snapshotStage } from '../../job/stages/snapshot.js';
 import { render } from '../../report/render.js';
 import { tableView } from '../../report/view.js';
-import { storeSnapshot } from '../snapshots.js';
 import { asOfOption, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf } from '../options.js';
+import { requireDirectoryLocation } from '../locations.js';
 import { emit } from '../output.js';
 
 interface IngestOptions {
@@ -19,8 +21,8 @@ interface IngestOptions {
   holidays?: string;
   actions?: string;
   vendor?: string;
-  store: string;
-  feed: string;
+  store?: string;
+  feed?: string;
   asOf?: string;
   format?: string;
   out?: string;
@@ -37,8 +39,8 @@ export function ingestCommand(): Command {
     .option('--holidays <file>', 'holidays')
     .option('--actions <file>', 'corporate actions')
     .option('--vendor <file>', "vendor's risk figures")
-    .option('--store <dir>', 'snapshot store directory', 'navassay-store')
-    .option('--feed <name>', "the feed's name in the store", 'feed')
+    .option('--store <dir>', "snapshot store directory (default: the configuration's store, else navassay-store)")
+    .option('--feed <name>', "the feed's name in the store (default: the configuration's feed, else feed)")
     .addOption(asOfOption("the configuration's as_of, else today"))
     .addOption(formatOption())
     .addOption(outOption())
@@ -51,16 +53,20 @@ async function runIngest(options: IngestOptions): Promise<number> {
   const config = options.config === undefined ? undefined : loadRunConfig(options.config);
   const paths = config?.paths ?? pathsFromOptions(options);
   const asOf = parseAsOf(options.asOf ?? config?.as_of);
-  const store = config?.store ?? options.store;
+  // What the command line says wins over the configuration, as for --as-of.
+  const store = options.store ?? config?.store ?? 'navassay-store';
+  const feedName = options.feed ?? config?.feed ?? 'feed';
+  requireDirectoryLocation(store, 'the snapshot store');
   const inputs = Object.entries(paths)
     .filter((entry): entry is [string, string] => entry[1] !== undefined)
     .map(([kind, path]) => ({ key: config ? `files.${kind}` : `--${kind}`, path }));
+  const storeKey = options.store !== undefined || !config ? '--store' : 'store';
   checkOutputsApart(config ? config.path : '--store', inputs, options.out === undefined ? [] : [{ key: '--out', path: options.out }], [
-    { key: config ? 'store' : '--store', path: store },
+    { key: storeKey, path: store },
   ]);
-  const feed = await loadFeed(paths, loadOptionsOf(config, asOf));
-  const feedName = config?.feed ?? options.feed;
-  const snapshot = storeSnapshot({ store, feed: feedName }, asOf, feed);
+  const day = await loadDay({ paths, asOf, load: loadOptionsOf(config, asOf) });
+  const { feed } = day;
+  const snapshot = snapshotStage(day, { store, feed: feedName });
   const answer = {
     feed: feedName,
     as_of: formatIsoDate(asOf),

@@ -1,15 +1,15 @@
 import { Command, Option } from 'commander';
 import { lastMonthEndOnOrBefore, todayEpochDay } from '../../calendar/days.js';
 import { ConfigError } from '../../ingest/errors.js';
-import { loadFeed } from '../../ingest/feed.js';
-import { computeMetrics } from '../../metrics/compute.js';
+import { loadDay } from '../../job/day.js';
+import { metricsStage } from '../../job/stages/metrics.js';
 import { DEFAULT_METHODOLOGY, MethodologyChangesSchema, withChanges, type Methodology, type MethodologyChanges } from '../../metrics/methodology.js';
 import { loadRunConfig } from '../../config/run-config.js';
 import { parseWindow } from '../../metrics/windows.js';
-import { adjustForCorporateActions } from '../../series/adjust.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { render } from '../../report/render.js';
 import { asOfOption, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf, profilesOption } from '../options.js';
+import { annualizationNotices, printNotices } from '../notices.js';
 import { emit } from '../output.js';
 
 interface MetricsOptions {
@@ -53,18 +53,10 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   const config = options.config === undefined ? undefined : loadRunConfig(options.config);
   const windows = options.windows === undefined ? (config?.windows ?? DEFAULT_WINDOWS) : parseWindowList(options.windows);
   const methodology = chosenMethodology(config?.methodology ?? DEFAULT_METHODOLOGY, options.set, options.rates !== undefined || constantRate !== undefined);
-  const loadOptions = loadOptionsOf(config, asOf);
-  const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions }, loadOptions);
-  const answer = computeMetrics({
-    nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
-    benchmarks: feed.benchmarks!,
-    master: feed.master!,
-    rates: feed.rates,
-    constantRate,
-    asOf,
-    windows,
-    methodology,
-  });
+  printNotices(annualizationNotices(methodology));
+  const paths = { nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions };
+  const day = await loadDay({ paths, asOf, load: loadOptionsOf(config, asOf), constantRate });
+  const answer = metricsStage(day, { asOf, windows, methodology })!; // benchmarks and master are required options
   emit(render(chosenFormat(options.format), answer, metricsView(answer)), options.out);
   return 0;
 }

@@ -1,20 +1,14 @@
 import { Command } from 'commander';
-import { join } from 'node:path';
-import { lastMonthEndOnOrBefore } from '../../calendar/days.js';
-import { runChecksInParallel } from '../../checks/parallel.js';
-import { checkOutputsApart, QUARANTINE_FILE, reportFileName } from '../../config/output-paths.js';
-import { loadRunConfig, runInputs, type RunConfig } from '../../config/run-config.js';
-import type { Finding } from '../../findings.js';
-import { loadFeed, loadPreviousNav, type LoadedFeed } from '../../ingest/feed.js';
-import { computeMetrics, type MetricsAnswer } from '../../metrics/compute.js';
-import { checkAnswer, checkView, failsOn, type CheckAnswer } from '../../report/check-answer.js';
+import { checkOutputsApart } from '../../config/output-paths.js';
+import { loadRunConfig, runInputs } from '../../config/run-config.js';
+import { runDailyJob } from '../../job/daily-job.js';
+import { checkView, failsOn } from '../../report/check-answer.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { render } from '../../report/render.js';
-import { adjustForCorporateActions } from '../../series/adjust.js';
-import type { SeriesFrame } from '../../series/frame.js';
-import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn, parseThreads, threadsOption } from '../options.js';
-import { emit, writeFileAtomically, writeQuarantine } from '../output.js';
-import { previousNavFromStore, storeSnapshot, type SkippedSnapshot } from '../snapshots.js';
+import { requireDirectoryLocation, requireFileLocation } from '../locations.js';
+import { annualizationNotices, printNotices, unknownSeriesNotices } from '../notices.js';
+import { asOfOption, chosenFormat, failOnOption, formatOption, outOption, parseAsOf, parseFailOn, parseThreads, threadsOption } from '../options.js';
+import { emit } from '../output.js';
 
 interface RunOptions {
   asOf?: string;
@@ -34,80 +28,32 @@ export function runCommand(): Command {
     .addOption(failOnOption().default(undefined))
     .addOption(threadsOption())
     .action(async (configPath: string, options: RunOptions) => {
-      process.exitCode = await runDailyJob(configPath, options);
+      process.exitCode = await runCommandLine(configPath, options);
     });
 }
 
-/** What one daily run produced. */
-export interface DailyRun {
-  readonly config: RunConfig;
-  readonly asOf: number;
-  readonly feed: LoadedFeed;
-  readonly check: CheckAnswer;
-  readonly metrics: MetricsAnswer | null;
-  readonly reportFiles: string[];
-}
+/** `navassay run` (and `demo`): the daily job, its answer printed, its exit status returned. */
+export async function runCommandLine(configPath: string, options: RunOptions): Promise<number> {
+  const threads = parseThreads(options.threads); // a wrong command line fails before any file is read
+  const configFile = loadRunConfig(configPath);
+  const config = threads === undefined ? configFile : { ...configFile, threads };
+  const asOf = parseAsOf(options.asOf ?? config.as_of);
+  const failOn = parseFailOn(options.failOn ?? config.fail_on);
+  requireDirectoryLocation(config.output.dir, 'output.dir');
+  requireDirectoryLocation(config.store, 'store');
+  if (options.out !== undefined) {
+    requireFileLocation(options.out, '--out');
+    checkOutputsApart('--out', runInputs(config), [{ key: '--out', path: options.out }]);
+  }
+  printNotices(annualizationNotices(config.methodology));
 
-export async function runDailyJob(configPath: string, options: RunOptions): Promise<number> {
-  const run = await executeRun(configPath, options);
+  const run = await runDailyJob(config, asOf);
+
+  printNotices(unknownSeriesNotices(config.checks, run.day.feed));
   const format = chosenFormat(options.format);
   let text = render(format, run.check, checkView(run.check));
   if (format === 'table' && run.metrics) text += '\n' + render(format, run.metrics, metricsView(run.metrics));
   emit(text, options.out);
-  process.stderr.write(`navassay: reports written to ${run.config.output.dir} (${run.reportFiles.length} files); snapshot stored in ${run.config.store}\n`);
-  const failOn = parseFailOn(options.failOn ?? run.config.fail_on);
+  process.stderr.write(`navassay: reports written to ${config.output.dir} (${run.reportFiles.length} files); snapshot stored in ${config.store}\n`);
   return failsOn(run.check.findings, failOn) ? 1 : 0;
-}
-
-export async function executeRun(configPath: string, options: RunOptions): Promise<DailyRun> {
-  const threadsOption = parseThreads(options.threads); // a wrong command line fails before any file is read
-  const config = loadRunConfig(configPath);
-  if (options.out !== undefined) checkOutputsApart('--out', runInputs(config), [{ key: '--out', path: options.out }]);
-  const asOf = parseAsOf(options.asOf ?? config.as_of);
-  const feed = await loadFeed(config.paths, loadOptionsOf(config, asOf));
-  const { nav: previous, skipped } = await previousNav(config, asOf);
-  const threads = threadsOption ?? config.threads;
-  const findings: Finding[] = await runChecksInParallel({ ...feed, previous, asOf }, config.checks, { threads });
-  const check = { ...checkAnswer(asOf, feed.rows, findings), ...(skipped.length > 0 ? { skipped_snapshots: skipped } : {}) };
-  const metrics = feed.benchmarks && feed.master ? runMetrics(config, feed, asOf) : null;
-  storeSnapshot(config, asOf, feed);
-  const reportFiles = writeReports(config, check, metrics, feed);
-  return { config, asOf, feed, check, metrics, reportFiles };
-}
-
-async function previousNav(config: RunConfig, asOf: number): Promise<{ nav: SeriesFrame | undefined; skipped: SkippedSnapshot[] }> {
-  if (config.previous !== undefined) {
-    return { nav: await loadPreviousNav(config.previous, config.profiles.nav, loadOptionsOf(config, asOf).limits), skipped: [] };
-  }
-  return previousNavFromStore(config, asOf);
-}
-
-/** Risk figures at the last month-end on or before the as-of date, on NAVs adjusted for announced splits and distributions. */
-function runMetrics(config: RunConfig, feed: LoadedFeed, asOf: number): MetricsAnswer {
-  return computeMetrics({
-    nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
-    benchmarks: feed.benchmarks!,
-    master: feed.master!,
-    rates: feed.rates,
-    asOf: lastMonthEndOnOrBefore(asOf),
-    windows: config.windows,
-    methodology: config.methodology,
-  });
-}
-
-function writeReports(config: RunConfig, check: CheckAnswer, metrics: MetricsAnswer | null, feed: LoadedFeed): string[] {
-  const written: string[] = [];
-  const write = (name: string, text: string) => {
-    const path = join(config.output.dir, name);
-    writeFileAtomically(path, text);
-    written.push(path);
-  };
-  for (const format of config.output.formats) {
-    write(reportFileName('check', format), render(format, check, checkView(check)));
-    if (metrics) write(reportFileName('metrics', format), render(format, metrics, metricsView(metrics)));
-  }
-  const quarantine = join(config.output.dir, QUARANTINE_FILE);
-  writeQuarantine(quarantine, feed.rejected);
-  written.push(quarantine);
-  return written;
 }

@@ -1,0 +1,105 @@
+import { formatIsoDate } from '../calendar/days.js';
+import { toSeriesFrame } from '../ingest/convert.js';
+import { loadFeed, loadPreviousNav, type FeedPaths, type LoadedFeed, type LoadOptions } from '../ingest/feed.js';
+import type { FeedProfile } from '../ingest/profile.js';
+import { MetricCalculator, type MetricInputs } from '../metrics/compute.js';
+import { adjustForCorporateActions } from '../series/adjust.js';
+import type { SeriesFrame } from '../series/frame.js';
+import { previousReadableSnapshot } from '../store/index.js';
+
+/**
+ * One day of a feed, loaded once and shared by every stage of the daily job. Each rule that
+ * shapes the data lives here, once: the source hashes come from the very bytes parsed, the
+ * previous snapshot is converted once, and NAVs are adjusted for corporate actions once.
+ */
+export interface Day {
+  /** Epoch day the day is judged as of. */
+  readonly asOf: number;
+  /** The files as read, with `sources` (SHA-256 of the bytes parsed). */
+  readonly feed: LoadedFeed;
+  /** The previous snapshot's NAVs, for restated and dropped rows; absent on a feed's first day. */
+  readonly previous?: SeriesFrame;
+  /** Earlier stored snapshots that could not be read and were passed over in finding the previous one. */
+  readonly skippedSnapshots: readonly SkippedSnapshot[];
+  /** What risk figures are computed from (NAVs adjusted for corporate actions); absent without benchmarks and master. */
+  readonly figures?: FigureSource;
+}
+
+/** The inputs of the risk figures, and one calculator over them that every stage shares. */
+export interface FigureSource {
+  readonly inputs: MetricInputs;
+  readonly calculator: MetricCalculator;
+}
+
+/** Where the previous NAVs come from: a file, the store's latest earlier snapshot, or nowhere. */
+export type PreviousSource =
+  | { readonly kind: 'file'; readonly path: string; readonly profile?: FeedProfile }
+  | { readonly kind: 'store'; readonly store: string; readonly feed: string }
+  | { readonly kind: 'none' };
+
+/** A store snapshot the day could not use (damaged manifest, missing file), as the answers report it. */
+export interface SkippedSnapshot {
+  readonly as_of: string;
+  readonly reason: string;
+}
+
+export interface DayRequest {
+  readonly paths: FeedPaths;
+  readonly asOf: number;
+  readonly load?: LoadOptions;
+  readonly previous?: PreviousSource;
+  /** An annual risk-free rate for every series (`--rf`), instead of the methodology's source. */
+  readonly constantRate?: number;
+}
+
+/** The load stage: reads the files and shapes them once for every later stage. */
+export async function loadDay(request: DayRequest): Promise<Day> {
+  const feed = await loadFeed(request.paths, request.load);
+  const { nav: previous, skipped } = await loadPrevious(request.previous ?? { kind: 'none' }, request.asOf, request.load);
+  return { asOf: request.asOf, feed, previous, skippedSnapshots: skipped, figures: figureSource(feed, request.constantRate) };
+}
+
+/**
+ * The rule "risk figures use NAVs adjusted for corporate actions", in its one place: the
+ * commands, the library and the demo's vendor file all take their figures' inputs from here.
+ */
+export function figureInputs(feed: Pick<LoadedFeed, 'nav' | 'actions' | 'benchmarks' | 'master' | 'rates'>, constantRate?: number): MetricInputs | undefined {
+  if (!feed.benchmarks || !feed.master) return undefined;
+  return {
+    nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
+    benchmarks: feed.benchmarks,
+    master: feed.master,
+    rates: feed.rates,
+    constantRate,
+  };
+}
+
+function figureSource(feed: LoadedFeed, constantRate: number | undefined): FigureSource | undefined {
+  const inputs = figureInputs(feed, constantRate);
+  return inputs && { inputs, calculator: new MetricCalculator(inputs) };
+}
+
+interface PreviousNav {
+  readonly nav?: SeriesFrame;
+  readonly skipped: readonly SkippedSnapshot[];
+}
+
+/**
+ * The previous NAVs. From the store, the latest earlier snapshot that reads: each damaged one
+ * passed over is reported once on standard error and returned, so the answer says why the
+ * comparison used an older day (or none).
+ */
+async function loadPrevious(source: PreviousSource, asOf: number, load: LoadOptions | undefined): Promise<PreviousNav> {
+  switch (source.kind) {
+    case 'none':
+      return { skipped: [] };
+    case 'file':
+      return { nav: await loadPreviousNav(source.path, source.profile, load?.limits), skipped: [] };
+    case 'store': {
+      const { snapshot, skipped } = previousReadableSnapshot(source.store, source.feed, formatIsoDate(asOf));
+      for (const entry of skipped) process.stderr.write(`navassay: skipping the stored snapshot of ${entry.asOf}: ${entry.reason}\n`);
+      const nav = snapshot?.tables.nav;
+      return { nav: nav && toSeriesFrame(nav, 'nav'), skipped: skipped.map((entry) => ({ as_of: entry.asOf, reason: entry.reason })) };
+    }
+  }
+}
