@@ -1,6 +1,6 @@
 import { DataType, makeVector, tableFromIPC, TimeUnit, util, type Data, type Table, type Vector } from 'apache-arrow';
 import { ingestColumnarFile, TextDictionaryBuilder, type SourceColumn } from './columnar-ingest.js';
-import { checkFooterCoversFile, validateArrowTable } from './arrow-validate.js';
+import { checkFooterCoversFile, checkStreamCoversFile, validateArrowTable } from './arrow-validate.js';
 import { cutInput, InputError } from './errors.js';
 import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import type { FeedProfile } from './profile.js';
@@ -40,6 +40,7 @@ function openArrowTable(bytes: Uint8Array, fileName: string): Table {
   try {
     const table = tableFromIPC(bytes);
     checkFooterCoversFile(bytes, fileName);
+    checkStreamCoversFile(bytes, fileName, table.numRows);
     return table;
   } catch (error) {
     if (error instanceof InputError) throw error;

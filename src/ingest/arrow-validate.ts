@@ -1,4 +1,4 @@
-import { DataType, RecordBatchReader, type Data, type Table } from 'apache-arrow';
+import { DataType, Message, RecordBatchReader, type Data, type Table } from 'apache-arrow';
 import { InputError } from './errors.js';
 
 /**
@@ -49,6 +49,55 @@ export function checkFooterCoversFile(bytes: Uint8Array, fileName: string): void
       `${fileName} is a damaged Arrow file: ${footerStart - end} bytes before its footer belong to no block the footer lists, so its data cannot be trusted; export the file again.`,
     );
   }
+}
+
+/**
+ * The checks of `checkFooterCoversFile` for the Arrow stream format, which has no footer: the
+ * stream's messages are walked frame by frame (continuation marker, metadata length, metadata,
+ * body) and must end in the end-of-stream marker with nothing but padding after it, and the
+ * rows its record batches state must be the rows read. A damaged frame that reads as an early
+ * end, or a transfer cut between two batches, otherwise reads as fewer rows without a word.
+ * Every step moves forward by at least eight bytes, so the walk is bounded by the file's size.
+ */
+export function checkStreamCoversFile(bytes: Uint8Array, fileName: string, rowsRead: number): void {
+  if (bytes.length >= MAGIC.length && textAt(bytes, 0) === MAGIC) return; // the file format
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  let at = 0;
+  let statedRows = 0;
+  for (;;) {
+    let metadataLength = int32At(view, at, fileName);
+    at += 4;
+    if (metadataLength === CONTINUATION) {
+      metadataLength = int32At(view, at, fileName);
+      at += 4;
+    }
+    if (metadataLength === 0) break;
+    if (metadataLength < 0 || at + metadataLength > bytes.length) throw damagedStream(fileName, 'a message states more metadata than the file holds');
+    const message = Message.decode(bytes.subarray(at, at + metadataLength));
+    const bodyLength = Number(message.bodyLength);
+    at += metadataLength;
+    if (!(bodyLength >= 0) || at + bodyLength > bytes.length) throw damagedStream(fileName, 'a message states a longer body than the file holds');
+    at += bodyLength;
+    if (message.isRecordBatch()) statedRows += Number(message.header().length);
+  }
+  if (bytes.length - at > STREAM_SLACK) {
+    throw damagedStream(fileName, `${bytes.length - at} bytes after its end-of-stream marker belong to no message, so its data cannot be trusted`);
+  }
+  if (statedRows !== rowsRead) throw damagedStream(fileName, `its record batches state ${statedRows} rows but ${rowsRead} were read`);
+}
+
+/** The marker before a message's metadata length (absent in streams written before Arrow 0.15). */
+const CONTINUATION = -1;
+/** Bytes allowed after the end-of-stream marker: padding to an 8-byte boundary. */
+const STREAM_SLACK = 7;
+
+function int32At(view: DataView, at: number, fileName: string): number {
+  if (at + 4 > view.byteLength) throw damagedStream(fileName, 'it ends without the end-of-stream marker, so it was cut short');
+  return view.getInt32(at, true);
+}
+
+function damagedStream(fileName: string, what: string): InputError {
+  return new InputError(`${fileName} is a damaged Arrow stream: ${what}; export the file again.`);
 }
 
 interface FooterBlocks {

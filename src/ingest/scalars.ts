@@ -205,17 +205,24 @@ interface DateParts {
   readonly monthNameAt: number;
 }
 
+/**
+ * Splits a date written with separators. A numeric part is a year of exactly four digits or a
+ * day or month of one or two; a date holds one year. So `2026-11-0027` or `0027-11-2026` is no
+ * date at all, rather than 27 November read through its padding.
+ */
 function splitDate(text: string): DateParts | null {
   const parts = text.trim().split(/[-/. ]/);
   if (parts.length !== 3) return null;
   let monthNameAt = -1;
+  let years = 0;
   const numbers = [0, 0, 0] as [number, number, number];
   const widths = [0, 0, 0] as [number, number, number];
   for (let k = 0; k < 3; k++) {
     const part = parts[k];
-    if (/^\d{1,4}$/.test(part)) {
+    if (/^(\d{1,2}|\d{4})$/.test(part)) {
       numbers[k] = Number(part);
       widths[k] = part.length;
+      if (part.length === 4) years++;
     } else {
       const month = monthFromName(part);
       if (month === 0 || monthNameAt >= 0) return null;
@@ -224,7 +231,7 @@ function splitDate(text: string): DateParts | null {
       widths[k] = part.length;
     }
   }
-  return { numbers, widths, monthNameAt };
+  return years === 1 ? { numbers, widths, monthNameAt } : null;
 }
 
 function validDay(year: number, month: number, day: number): number | null {
@@ -260,6 +267,7 @@ export function parseDateText(text: string, format: DateFormat): number | null {
   const parts = splitDate(trimmed);
   if (!parts) return null;
   const [first, second, third] = parts.numbers;
+  if (parts.monthNameAt === 2) return null; // a month name never comes last
   if (parts.widths[0] === 4 && parts.monthNameAt !== 0) return validDay(first, second, third);
   if (parts.widths[2] !== 4) return null;
   if (parts.monthNameAt === 1) return validDay(third, second, first);

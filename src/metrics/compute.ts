@@ -3,7 +3,8 @@ import type { SeriesMasterRecord } from '../ingest/records.js';
 import { findSeries, type SeriesFrame } from '../series/frame.js';
 import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
-import { sampleWindow, type BenchmarkSource, type Outcome, type RiskFreeSource, type WindowSample } from './sampling.js';
+import { failure, success, type Outcome } from '../outcome.js';
+import { sampleWindow, type BenchmarkSource, type RiskFreeSource, type WindowSample } from './sampling.js';
 import { windowStatistics, type WindowStatistics } from './statistics.js';
 import { parseWindow, windowMonths } from './windows.js';
 
@@ -83,7 +84,7 @@ function figureOf(metric: MetricId, stats: Outcome<WindowStatistics>, methodolog
   if (!stats.ok) return { value: null, observations: 0, reason: stats.reason };
   const observations = metric === 'max_drawdown' ? drawdownObservations(stats.value, methodology) : stats.value.n;
   const outcome = metricFromStatistics(metric, stats.value, methodology);
-  if (outcome.value === null) return { value: null, observations, reason: outcome.reason };
+  if (!outcome.ok) return { value: null, observations, reason: outcome.reason };
   return { value: outcome.value, observations };
 }
 
@@ -163,26 +164,26 @@ export class MetricCalculator {
     const id = this.benchmarkId(seriesId, methodology);
     if (id === null) {
       return this.masterById.has(seriesId)
-        ? { missing: `no benchmark is mapped to series ${seriesId} in the series master` }
-        : { missing: `series ${seriesId} is not in the series master, so it has no benchmark` };
+        ? failure(`no benchmark is mapped to series ${seriesId} in the series master`)
+        : failure(`series ${seriesId} is not in the series master, so it has no benchmark`);
     }
     const levels = findSeries(this.inputs.benchmarks, id);
-    return levels && levels.dates.length > 0 ? { id, levels } : { missing: `benchmark ${id} has no levels` };
+    return levels && levels.dates.length > 0 ? success({ id, levels }) : failure(`benchmark ${id} has no levels`);
   }
 
   private riskFreeSource(seriesId: string, methodology: Methodology): RiskFreeSource {
     const source = methodology.risk_free;
-    if (source.source === 'none') return { annualRate: 0 };
-    if (source.source === 'constant') return { annualRate: source.annual_rate };
+    if (source.source === 'none') return success({ annualRate: 0 });
+    if (source.source === 'constant') return success({ annualRate: source.annual_rate });
     const id = source.rate_id ?? this.masterById.get(seriesId)?.rate_id ?? null;
     if (id === null) {
-      return { missing: `no risk-free rate: series ${seriesId} has no rate_id in the series master and no constant rate was given` };
+      return failure(`no risk-free rate: series ${seriesId} has no rate_id in the series master and no constant rate was given`);
     }
     if (!this.inputs.rates) {
-      return { missing: `no risk-free rates were given for rate ${id}: give a rate file or a constant rate` };
+      return failure(`no risk-free rates were given for rate ${id}: give a rate file or a constant rate`);
     }
     const rates = findSeries(this.inputs.rates, id);
-    return rates && rates.dates.length > 0 ? { id, rates } : { missing: `risk-free rate ${id} has no observations` };
+    return rates && rates.dates.length > 0 ? success({ id, rates }) : failure(`risk-free rate ${id} has no observations`);
   }
 
   /**

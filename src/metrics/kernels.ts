@@ -1,3 +1,4 @@
+import { failure, success, type Outcome } from '../outcome.js';
 import { annualizationOf, perPeriodRate, type Methodology } from './methodology.js';
 import {
   correlation,
@@ -26,9 +27,8 @@ export function isMetricId(text: string): text is MetricId {
   return (METRIC_IDS as readonly string[]).includes(text);
 }
 
-export type MetricOutcome =
-  | { readonly value: number; readonly reason?: undefined }
-  | { readonly value: null; readonly reason: string };
+/** A figure, or the reason it cannot be computed. */
+export type MetricOutcome = Outcome<number>;
 
 /**
  * Thrown inside a formula when a figure cannot be computed; caught at the metric's boundary.
@@ -44,9 +44,9 @@ function refuse(reason: string): never {
 }
 
 export function metricFromStatistics(metric: MetricId, stats: WindowStatistics, methodology: Methodology): MetricOutcome {
-  if (needsBenchmark(metric) && stats.benchmarkReason !== null) return { value: null, reason: stats.benchmarkReason };
+  if (needsBenchmark(metric) && stats.benchmarkReason !== null) return failure(stats.benchmarkReason);
   if (needsRiskFree(metric, methodology) && stats.riskFreeReason !== null) {
-    return { value: null, reason: stats.riskFreeReason };
+    return failure(stats.riskFreeReason);
   }
   return guarded(() => FORMULAS[metric](stats, methodology));
 }
@@ -55,9 +55,9 @@ export function metricFromStatistics(metric: MetricId, stats: WindowStatistics, 
 export function guarded(formula: () => number): MetricOutcome {
   try {
     const value = formula();
-    return Number.isFinite(value) ? { value } : { value: null, reason: `the result is not a finite number (${value})` };
+    return Number.isFinite(value) ? success(value) : failure(`the result is not a finite number (${value})`);
   } catch (error) {
-    if (error instanceof NotComputable) return { value: null, reason: error.reason };
+    if (error instanceof NotComputable) return failure(error.reason);
     throw error;
   }
 }
@@ -298,10 +298,11 @@ export function specificRisk(stats: WindowStatistics, m: Methodology): MetricOut
 export function appraisalRatio(stats: WindowStatistics, m: Methodology): MetricOutcome {
   const a = metricFromStatistics('alpha', stats, m);
   const risk = specificRisk(stats, m);
-  if (a.value === null) return a;
-  if (risk.value === null) return risk;
+  if (!a.ok) return a;
+  if (!risk.ok) return risk;
+  const alpha = a.value;
   const riskValue = risk.value;
-  return guarded(() => (riskValue === 0 ? refuse('the specific risk is zero') : a.value / riskValue));
+  return guarded(() => (riskValue === 0 ? refuse('the specific risk is zero') : alpha / riskValue));
 }
 
 /**

@@ -1,3 +1,4 @@
+import type { Outcome } from '../outcome.js';
 import { firstAbove } from '../numeric/search.js';
 import { formatIsoDate, isoWeekStart, monthEndDay, monthIndex } from '../calendar/days.js';
 import type { Frequency } from './methodology.js';
@@ -16,14 +17,13 @@ export interface Observations {
   readonly values: Float64Array;
 }
 
-export type Outcome<T> = { readonly ok: true; readonly value: T } | { readonly ok: false; readonly reason: string };
+export type { Outcome };
 
-export type BenchmarkSource = { readonly id: string; readonly levels: Observations } | { readonly missing: string };
+/** A series' benchmark levels, or the reason it has none. */
+export type BenchmarkSource = Outcome<{ readonly id: string; readonly levels: Observations }>;
 
-export type RiskFreeSource =
-  | { readonly id: string; readonly rates: Observations }
-  | { readonly annualRate: number }
-  | { readonly missing: string };
+/** A series' risk-free rates (observed, or one constant annual rate), or the reason it has none. */
+export type RiskFreeSource = Outcome<{ readonly id: string; readonly rates: Observations } | { readonly annualRate: number }>;
 
 export interface WindowRequest {
   readonly fund: Observations;
@@ -192,8 +192,8 @@ export function returnsAt(values: Float64Array, points: Int32Array): Float64Arra
 // Benchmark
 
 function benchmarkReturns(request: WindowRequest, pointDays: Int32Array): Outcome<Float64Array> {
-  const source = request.benchmark;
-  if ('missing' in source) return { ok: false, reason: source.missing };
+  if (!request.benchmark.ok) return request.benchmark;
+  const source = request.benchmark.value;
   const label = `benchmark ${source.id}`;
   const monthEnds = coverWindow(source.levels, request.span, request.asOf, `${label} level`);
   if (!monthEnds.ok) return monthEnds;
@@ -250,9 +250,9 @@ function monthOfPoint(k: number, last: number, request: Pick<WindowRequest, 'fre
  * "Readings of the interface where its text leaves a choice").
  */
 function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome<Float64Array> {
-  const source = request.riskFree;
+  if (!request.riskFree.ok) return request.riskFree;
+  const source = request.riskFree.value;
   const periods = pointDays.length - 1;
-  if ('missing' in source) return { ok: false, reason: source.missing };
   if ('annualRate' in source) {
     return { ok: true, value: new Float64Array(periods).fill(request.ratePerPeriod(source.annualRate)) };
   }

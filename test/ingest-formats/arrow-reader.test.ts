@@ -241,3 +241,43 @@ function catchError(run: () => unknown): ConfigError | InputError {
   }
   throw new Error('expected an error');
 }
+
+describe('damaged Arrow streams are refused, not read short', () => {
+  // The Arrow IPC stream format (columnar format specification, "IPC Streaming Format"): a
+  // schema message, dictionary and record batch messages, each framed as 0xFFFFFFFF, a metadata
+  // length and a body, ended by the end-of-stream marker 0xFFFFFFFF 0x00000000.
+  const batch = (names: string[], navs: number[]) =>
+    new RecordBatch({
+      series_id: vectorFromArray(names, new Utf8()).data[0],
+      date: vectorFromArray(names.map(() => '2026-11-30'), new Utf8()).data[0],
+      nav: vectorFromArray(navs, new Float64()).data[0],
+    });
+  const first = batch(['S1', 'S2'], [1, 2]);
+  const oneBatch = Buffer.from(tableToIPC(new Table([first]), 'stream'));
+  const threeBatches = Buffer.from(tableToIPC(new Table([first, batch(['S1', 'S2'], [3, 4]), batch(['S3'], [5])]), 'stream'));
+  const endOfFirstBatch = oneBatch.length - 8;
+  const END_OF_STREAM = Buffer.from([0xff, 0xff, 0xff, 0xff, 0, 0, 0, 0]);
+
+  it('the fixtures are what they claim: three batches share the one-batch stream as their beginning', () => {
+    expect(oneBatch.subarray(endOfFirstBatch)).toEqual(END_OF_STREAM);
+    expect(threeBatches.subarray(0, endOfFirstBatch)).toEqual(oneBatch.subarray(0, endOfFirstBatch));
+    expect(threeBatches.subarray(threeBatches.length - 8)).toEqual(END_OF_STREAM);
+    expect(readArrowBuffer(threeBatches, 'nav.arrows', 'nav', DEFAULT_PROFILE).rows).toEqual({ read: 5, accepted: 5, rejected: 0 });
+  });
+
+  it('a stream cut after a whole batch, without its end-of-stream marker, is refused (exit 3)', () => {
+    const error = catchError(() => readArrowBuffer(threeBatches.subarray(0, endOfFirstBatch), 'nav.arrows', 'nav', DEFAULT_PROFILE));
+    expect(error).toBeInstanceOf(InputError);
+    expect(error.exitCode).toBe(3);
+    expect(error.message).toMatch(/^nav\.arrows is a damaged Arrow stream: .*end-of-stream marker.*; export the file again\.$/);
+  });
+
+  it('a damaged message frame that reads as the end of the stream, with batches after it, is refused', () => {
+    const damaged = Buffer.from(threeBatches);
+    END_OF_STREAM.copy(damaged, endOfFirstBatch);
+    const error = catchError(() => readArrowBuffer(damaged, 'nav.arrows', 'nav', DEFAULT_PROFILE));
+    expect(error).toBeInstanceOf(InputError);
+    expect(error.message).toMatch(/^nav\.arrows is a damaged Arrow stream: \d+ bytes after its end-of-stream marker/);
+  });
+});
+

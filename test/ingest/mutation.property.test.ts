@@ -131,7 +131,8 @@ function checkAccounting(original: Buffer, mutated: Buffer, kind: FileKind, layo
  * A reference reader for one unquoted NAV line, written from docs/ingestion.md rather than from
  * the reader's code: the line must split into the header's fields; the id, trimmed, must be
  * non-empty and free of control, invisible and replacement characters; the date must be
- * YYYY-MM-DD, YYYYMMDD or year-first with one- to four-digit parts, and a real day (checked with
+ * YYYY-MM-DD, YYYYMMDD or year-first with a four-digit year and one- or two-digit month and
+ * day, and a real day (checked with
  * the platform's Date); the NAV a plain decimal with the layout's mark, an optional exponent and
  * an optional percent sign. 'either' where the rules leave the reader to the file's evidence
  * (day–month orders).
@@ -152,8 +153,10 @@ function referenceDate(text: string): 'accept' | 'reject' | 'either' {
   if (/^\d{8}$/.test(text)) return realDay(+text.slice(0, 4), +text.slice(4, 6), +text.slice(6, 8)) ? 'accept' : 'reject';
   const parts = text.split(/[-/. ]/);
   if (parts.length !== 3 || !parts.every((part) => /^\d{1,4}$/.test(part))) return 'reject';
-  if (parts[0].length === 4) return realDay(+parts[0], +parts[1], +parts[2]) ? 'accept' : 'reject';
-  return parts[2].length === 4 ? 'either' : 'reject';
+  // A year has four digits, a day or month one or two: `2026-11-0027` is not a date.
+  const dayOrMonth = (part: string) => part.length <= 2;
+  if (parts[0].length === 4) return dayOrMonth(parts[1]) && dayOrMonth(parts[2]) && realDay(+parts[0], +parts[1], +parts[2]) ? 'accept' : 'reject';
+  return parts[2].length === 4 && dayOrMonth(parts[0]) && dayOrMonth(parts[1]) ? 'either' : 'reject';
 }
 
 function realDay(year: number, month: number, day: number): boolean {
@@ -223,5 +226,22 @@ describe('mutated files keep the row accounting exact', () => {
     const result = readText(mutate(base, { kind: 'insert', at: 37, byte: 0x58 }, 44));
     expect(result.rejected.map((row) => row.raw)).toEqual(['NVA0001,2026-01-02X,1']);
     checkAccounting(base, mutate(base, { kind: 'insert', at: 37, byte: 0x58 }, 44), 'nav', layout);
+  });
+
+  it('the reference verdict decides: a zero-padded day or month is rejected (a tester read `2026-11-0027`)', () => {
+    const layout: Layout = { delimiter: ',', decimal: '.', eol: '\n', bom: false, trailingEol: true, autoDelimiter: false };
+    expect(referenceVerdict('series_id,date,nav', 'NVA0001,2026-01-0002,1', layout)).toBe('reject');
+    expect(referenceVerdict('series_id,date,nav', 'NVA0001,2026-1-2,1', layout)).toBe('accept');
+    const base = Buffer.from('series_id,date,nav\nNVA0001,2026-01-02,1\nNVA0001,2026-01-05,2\n');
+    // Two zeros inserted before the day of line 2 and one before the month of line 3.
+    const padded = [
+      { kind: 'insert', at: 35, byte: 0x30 },
+      { kind: 'insert', at: 35, byte: 0x30 },
+      { kind: 'insert', at: 56, byte: 0x30 },
+    ].reduce<Buffer>((bytes, m) => mutate(bytes, m as Mutation, 44), base);
+    expect(padded.toString()).toBe('series_id,date,nav\nNVA0001,2026-01-0002,1\nNVA0001,2026-001-05,2\n');
+    const result = readText(padded);
+    expect(result.rejected.map((row) => row.raw)).toEqual(['NVA0001,2026-01-0002,1', 'NVA0001,2026-001-05,2']);
+    checkAccounting(base, padded, 'nav', layout);
   });
 });

@@ -160,6 +160,31 @@ describe('dates', () => {
     );
   });
 
+  it('a zero-padded day, month or year is not a date: a day or month has one or two digits, a year four', () => {
+    // docs/ingestion.md: ISO is exactly YYYY-MM-DD; the other forms allow an unpadded day or
+    // month (`2026-1-5`) but never a three- or four-digit one. A tester found `2026-11-0027` read.
+    const widths = fc.constantFrom(1, 2, 3, 4);
+    fc.assert(
+      fc.property(fc.integer({ min: 1900, max: 2199 }), fc.integer({ min: 1, max: 12 }), fc.integer({ min: 1, max: 28 }), widths, widths, fc.constantFrom('-', '/', '.', ' '), (year, month, day, monthWidth, dayWidth, sep) => {
+        const m = String(month).padStart(monthWidth, '0');
+        const d = String(day).padStart(dayWidth, '0');
+        const fits = m.length <= 2 && d.length <= 2;
+        const expected = fits ? epochDay(year, month, day) : null;
+        for (const format of ['auto', 'day-first', 'month-first'] as const) expect(parseDateText(`${year}${sep}${m}${sep}${d}`, format)).toBe(expected);
+        expect(parseDateText(`${d}${sep}${m}${sep}${year}`, 'day-first')).toBe(expected);
+        expect(parseDateText(`${m}${sep}${d}${sep}${year}`, 'month-first')).toBe(expected);
+        expect(parseDateText(`${d}-Dec-${year}`, 'auto')).toBe(d.length <= 2 ? epochDay(year, 12, day) : null);
+      }),
+      RUNS,
+    );
+    expect(parseDateText('2026-11-0027', 'auto')).toBeNull();
+    expect(parseDateText('2026-0011-27', 'auto')).toBeNull();
+    expect(parseDateText('0027-11-2026', 'day-first')).toBeNull();
+    expect(parseDateText('02026-11-27', 'auto')).toBeNull();
+    expect(parseDateText('2026-05-Sept', 'auto')).toBeNull(); // a month name read as the day
+    expect(parseDateText('05-05-Sept', 'day-first')).toBeNull(); // no four-digit year at all
+  });
+
   it('the byte ISO parser and the text ISO parser agree on any 10-character text', () => {
     fc.assert(
       fc.property(fc.string({ unit: fc.constantFrom(...'0123456789-'), minLength: 10, maxLength: 10 }), (text) => {
