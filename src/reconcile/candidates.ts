@@ -1,0 +1,88 @@
+import type { MetricId } from '../ingest/schema.js';
+import { annualizationOf, COMMON_ANNUALIZATIONS, DIMENSION_CHOICES, type Methodology } from '../metrics/methodology.js';
+
+/**
+ * The changes the explanation search tries: every place a vendor's convention may differ from
+ * the configured methodology. This file is the one list; to search a new dimension, add a line
+ * to SEARCHED_VALUES (a dimension with a fixed set of choices in DIMENSION_CHOICES is searched
+ * already) and, if it touches only some metrics, a line to AFFECTED_METRICS.
+ */
+
+/** One change from the configured methodology: a dimension and the value it takes. */
+export interface Candidate {
+  readonly dimension: string;
+  readonly value: unknown;
+}
+
+/**
+ * `scale` is how the vendor's number is read, not a computation setting: `percent` means the
+ * vendor wrote 12.3 for 0.123 (whatever its unit column said), `decimal` that it wrote 0.123.
+ */
+export const SCALE = 'scale';
+
+/** Values tried for each dimension, besides the configured one; the benchmarks come from the files. */
+const SEARCHED_VALUES: Readonly<Record<string, readonly unknown[]>> = {
+  ...DIMENSION_CHOICES,
+  annualization: COMMON_ANNUALIZATIONS,
+  window_end: [-1, -2, -3],
+  [SCALE]: ['percent', 'decimal'],
+};
+
+const BENCHMARK_FIGURES: readonly MetricId[] = ['beta', 'alpha', 'r_squared', 'tracking_error', 'information_ratio', 'treynor'];
+
+/**
+ * The metrics a dimension can change (docs/methodology.md, formulas); a dimension not listed
+ * may change any metric. The search skips a dimension for the other metrics.
+ */
+const AFFECTED_METRICS: Readonly<Record<string, readonly MetricId[]>> = {
+  sd_denominator: ['std_dev', 'sharpe', 'tracking_error', 'information_ratio'],
+  return_type: ['std_dev', 'downside_deviation', 'beta', 'alpha', 'r_squared', 'sharpe', 'sortino', 'tracking_error', 'information_ratio', 'treynor'],
+  regression: ['beta', 'alpha', 'r_squared', 'treynor'],
+  alpha_form: ['alpha'],
+  mar: ['downside_deviation', 'sortino'],
+  dd_denominator: ['downside_deviation', 'sortino'],
+  benchmark: BENCHMARK_FIGURES,
+  annualization: ['return_annualized', 'std_dev', 'downside_deviation', 'alpha', 'sharpe', 'sortino', 'tracking_error', 'information_ratio', 'treynor'],
+  frequency: ['return_annualized', 'std_dev', 'downside_deviation', 'beta', 'alpha', 'r_squared', 'sharpe', 'sortino', 'tracking_error', 'information_ratio', 'treynor'],
+};
+
+export interface CandidateContext {
+  readonly metric: MetricId;
+  readonly base: Methodology;
+  /** The unit the vendor's file gave the figure. */
+  readonly unit: 'decimal' | 'percent';
+  /** The benchmark the series is measured against under the configured methodology. */
+  readonly benchmark: string | null;
+  /** Every benchmark id in the master or the benchmark file. */
+  readonly benchmarks: readonly string[];
+}
+
+/** The single changes worth trying for one figure, in the order ties are broken. */
+export function candidatesFor(context: CandidateContext): Candidate[] {
+  const candidates: Candidate[] = [];
+  const searched: Record<string, readonly unknown[]> = { ...SEARCHED_VALUES, benchmark: context.benchmarks };
+  for (const [dimension, values] of Object.entries(searched)) {
+    if (!affects(dimension, context.metric)) continue;
+    for (const value of values) if (!isCurrent(dimension, value, context)) candidates.push({ dimension, value });
+  }
+  return candidates;
+}
+
+export function affects(dimension: string, metric: MetricId): boolean {
+  const metrics = AFFECTED_METRICS[dimension];
+  return metrics === undefined || metrics.includes(metric);
+}
+
+/** The value the figure already has for a dimension: trying it would change nothing. */
+function isCurrent(dimension: string, value: unknown, context: CandidateContext): boolean {
+  switch (dimension) {
+    case SCALE:
+      return value === context.unit;
+    case 'annualization':
+      return value === annualizationOf(context.base);
+    case 'benchmark':
+      return value === context.benchmark;
+    default:
+      return (context.base as unknown as Record<string, unknown>)[dimension] === value;
+  }
+}

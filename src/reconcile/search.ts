@@ -1,0 +1,122 @@
+import type { MetricCalculator } from '../metrics/compute.js';
+import type { Methodology } from '../metrics/methodology.js';
+import { candidatesFor, SCALE, type Candidate, type CandidateContext } from './candidates.js';
+import { reproduces } from './status.js';
+
+/**
+ * The convention search: which changes to the configured methodology make navassay compute the
+ * vendor's figure? One change at a time first; pairs only when no single change does. Every
+ * variant is arithmetic on the calculator's cached window statistics, except the changes that
+ * resample the window (frequency, window_end, benchmark, annualization), which are cached in
+ * turn, so the search costs little beyond the first figure of a series.
+ */
+
+/** What an explanation changes and what navassay then computes (in the vendor's reading). */
+export interface ConventionExplanation {
+  readonly kind: 'convention';
+  readonly changes: Readonly<Record<string, unknown>>;
+  readonly computed: number;
+}
+
+export interface FigureToExplain extends Omit<CandidateContext, 'base'> {
+  readonly seriesId: string;
+  readonly asOf: number;
+  readonly window: string;
+  readonly methodology: Methodology;
+  /** The vendor's figure as read (a decimal, its unit applied). */
+  readonly vendor: number;
+  /** The configured methodology's figure. */
+  readonly computed: number;
+  /** The difference the figure's tolerance allows, and half a unit of its printed precision. */
+  readonly allowed: (computed: number) => number;
+  readonly halfUnit: number;
+}
+
+interface Tried {
+  readonly changes: readonly Candidate[];
+  readonly computed: number;
+  /** How the vendor's reading scales a decimal: 1, or 100 and 1/100 for a misread scale. */
+  readonly factor: number;
+  /** The candidate's figure in the vendor's reading (computed × factor), for comparison with `vendor`. */
+  readonly asRead: number;
+}
+
+export function searchConventions(calculator: MetricCalculator, figure: FigureToExplain): ConventionExplanation[] {
+  const candidates = candidatesFor({ ...figure, base: figure.methodology });
+  const singles: Tried[] = [];
+  for (const candidate of candidates) {
+    const tried = attempt(calculator, figure, [candidate]);
+    // A change that leaves the figure as it was cannot help a pair either.
+    if (tried && (tried.asRead !== figure.computed)) singles.push(tried);
+  }
+  let found = singles.filter((tried) => isReproduced(tried, figure));
+  if (found.length === 0) found = searchPairs(calculator, figure, singles);
+  return rank(found, figure).map(toExplanation);
+}
+
+function searchPairs(calculator: MetricCalculator, figure: FigureToExplain, singles: readonly Tried[]): Tried[] {
+  const found: Tried[] = [];
+  for (let i = 0; i < singles.length; i++) {
+    for (let j = i + 1; j < singles.length; j++) {
+      const [a] = singles[i].changes;
+      const [b] = singles[j].changes;
+      if (a.dimension === b.dimension) continue;
+      const tried = attempt(calculator, figure, [a, b]);
+      if (tried && isReproduced(tried, figure)) found.push(tried);
+    }
+  }
+  return found;
+}
+
+/** The figure under the changes, or null when it cannot be computed so. */
+function attempt(calculator: MetricCalculator, figure: FigureToExplain, changes: readonly Candidate[]): Tried | null {
+  const scale = changes.find((change) => change.dimension === SCALE)?.value;
+  const methodology = methodologyWith(figure.methodology, changes.filter((change) => change.dimension !== SCALE));
+  const computed = methodology === figure.methodology ? figure.computed : valueOf(calculator, figure, methodology);
+  if (computed === null) return null;
+  const factor = readingFactor(scale, figure.unit);
+  return { changes, computed, factor, asRead: computed * factor };
+}
+
+function valueOf(calculator: MetricCalculator, figure: FigureToExplain, methodology: Methodology): number | null {
+  return calculator.metric({ seriesId: figure.seriesId, asOf: figure.asOf, window: figure.window, metric: figure.metric, methodology }).value;
+}
+
+/** A changed frequency annualises by its own default unless the annualization is changed too. */
+function methodologyWith(base: Methodology, changes: readonly Candidate[]): Methodology {
+  if (changes.length === 0) return base;
+  const next: Record<string, unknown> = { ...base };
+  for (const { dimension, value } of changes) next[dimension] = value;
+  if (changes.some((c) => c.dimension === 'frequency') && !changes.some((c) => c.dimension === 'annualization')) next.annualization = null;
+  return next as unknown as Methodology;
+}
+
+/**
+ * What the vendor's number would be, read as navassay reads it, had the vendor computed
+ * `computed` and written it in `scale`: a vendor writing percent under a decimal unit shows 100
+ * times the decimal; one writing decimals under a percent unit shows a hundredth of it.
+ */
+function readingFactor(scale: unknown, unit: 'decimal' | 'percent'): number {
+  if (scale === 'percent' && unit === 'decimal') return 100;
+  if (scale === 'decimal' && unit === 'percent') return 1 / 100;
+  return 1;
+}
+
+/** Within the figure's tolerance (scaled to the reading) or the vendor's printed half unit (already in it). */
+function isReproduced(tried: Tried, figure: FigureToExplain): boolean {
+  return reproduces(figure.vendor, tried.asRead, figure.allowed(tried.computed) * tried.factor, figure.halfUnit);
+}
+
+/** Fewer changes first, then the closest to the vendor's figure, then the candidates' own order. */
+function rank(found: readonly Tried[], figure: FigureToExplain): Tried[] {
+  return found
+    .map((tried, order) => ({ tried, order, distance: Math.abs(tried.asRead - figure.vendor) / tried.factor }))
+    .sort((a, b) => a.tried.changes.length - b.tried.changes.length || a.distance - b.distance || a.order - b.order)
+    .map(({ tried }) => tried);
+}
+
+function toExplanation(tried: Tried): ConventionExplanation {
+  const changes: Record<string, unknown> = {};
+  for (const { dimension, value } of tried.changes) changes[dimension] = value;
+  return { kind: 'convention', changes, computed: tried.asRead };
+}
