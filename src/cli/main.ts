@@ -5,6 +5,7 @@ import { demoCommand } from './commands/demo.js';
 
 import { ingestCommand } from './commands/ingest.js';
 import { metricsCommand } from './commands/metrics.js';
+import { reconcileCommand } from './commands/reconcile.js';
 import { runCommand } from './commands/run.js';
 import { packageVersion } from './version.js';
 
@@ -15,7 +16,7 @@ export function buildProgram(): Command {
     .helpOption('--help', 'show help')
     .showHelpAfterError('(add --help for usage)')
     .exitOverride();
-  for (const command of [demoCommand(), runCommand(), checkCommand(), metricsCommand(), ingestCommand()]) {
+  for (const command of [demoCommand(), runCommand(), checkCommand(), metricsCommand(), reconcileCommand(), ingestCommand()]) {
     command.version(packageVersion(), '--version', 'print the version').helpOption('--help', 'show help').exitOverride();
     program.addCommand(command);
   }

@@ -3,6 +3,8 @@ import { lastMonthEndOnOrBefore, todayEpochDay } from '../../calendar/days.js';
 import { ConfigError } from '../../ingest/errors.js';
 import { loadFeed } from '../../ingest/feed.js';
 import { computeMetrics } from '../../metrics/compute.js';
+import { runChecks } from '../../checks/run.js';
+import { markSuspectFigures } from '../../reconcile/suspect-data.js';
 import { DEFAULT_METHODOLOGY, MethodologyChangesSchema, withChanges, type Methodology, type MethodologyChanges } from '../../metrics/methodology.js';
 import { loadRunConfig } from '../../config/run-config.js';
 import { parseWindow } from '../../metrics/windows.js';
@@ -55,7 +57,9 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   const methodology = chosenMethodology(config?.methodology ?? DEFAULT_METHODOLOGY, options.set, options.rates !== undefined || constantRate !== undefined);
   const loadOptions = loadOptionsOf(config);
   const feed = await loadFeed({ nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions }, loadOptions);
-  const answer = computeMetrics({
+  // A figure whose window holds an error-level finding of the checks carries the finding keys.
+  const findings = runChecks({ ...feed, asOf }, config?.checks);
+  const answer = markSuspectFigures(computeMetrics({
     nav: adjustForCorporateActions(feed.nav, feed.actions ?? []),
     benchmarks: feed.benchmarks!,
     master: feed.master!,
@@ -64,7 +68,7 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
     asOf,
     windows,
     methodology,
-  });
+  }), findings, feed.master!);
   emit(render(chosenFormat(options.format), answer, metricsView(answer)), options.out);
   return 0;
 }
@@ -79,7 +83,7 @@ function collect(value: string, previous: string[]): string[] {
  * The configured (or default) methodology with the --set changes applied. With neither a rate
  * file nor a constant rate, a methodology that wants the master's rate series uses none.
  */
-function chosenMethodology(base: Methodology, settings: readonly string[], rateGiven: boolean): Methodology {
+export function chosenMethodology(base: Methodology, settings: readonly string[], rateGiven: boolean): Methodology {
   const changes = parseSettings(settings);
   const methodology = withChanges(base, changes);
   return !rateGiven && methodology.risk_free.source === 'series' ? { ...methodology, risk_free: { source: 'none' } } : methodology;
@@ -118,7 +122,7 @@ export function parseWindowList(text: string): string[] {
   return windows;
 }
 
-function parseRate(text: string): number {
+export function parseRate(text: string): number {
   const rate = Number(text);
   if (text.trim() === '' || !Number.isFinite(rate) || Math.abs(rate) >= 1) {
     throw new ConfigError(`--rf "${text}" is not an annual rate as a decimal; write 0.02 for 2 %.`);
