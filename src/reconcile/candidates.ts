@@ -20,12 +20,23 @@ export interface Candidate {
  */
 export const SCALE = 'scale';
 
-/** Values tried for each dimension, besides the configured one; the benchmarks come from the files. */
+/**
+ * Values tried for each dimension, besides the configured one, in the order ties are broken
+ * (conventions vendors commonly differ by first); the benchmarks come from the files, last.
+ */
 const SEARCHED_VALUES: Readonly<Record<string, readonly unknown[]>> = {
-  ...DIMENSION_CHOICES,
-  annualization: COMMON_ANNUALIZATIONS,
-  window_end: [-1, -2, -3],
   [SCALE]: ['percent', 'decimal'],
+  sd_denominator: DIMENSION_CHOICES.sd_denominator,
+  annualization: COMMON_ANNUALIZATIONS,
+  frequency: DIMENSION_CHOICES.frequency,
+  window_end: [-1, -2, -3],
+  regression: DIMENSION_CHOICES.regression,
+  mar: DIMENSION_CHOICES.mar,
+  dd_denominator: DIMENSION_CHOICES.dd_denominator,
+  alpha_form: DIMENSION_CHOICES.alpha_form,
+  return_type: DIMENSION_CHOICES.return_type,
+  // Every other dimension with a fixed set of choices, so a new one is searched without a line here.
+  ...(DIMENSION_CHOICES as Readonly<Record<string, readonly unknown[]>>),
 };
 
 const BENCHMARK_FIGURES: readonly MetricId[] = ['beta', 'alpha', 'r_squared', 'tracking_error', 'information_ratio', 'treynor'];

@@ -11,7 +11,7 @@ import { searchConventions, type ConventionExplanation } from './search.js';
 import { judge, reproduces, severityOf, STATUSES, type ReconcileStatus } from './status.js';
 import { SuspectData, windowDaySpan } from './suspect-data.js';
 import { allowedDifference, ToleranceResolver, type Tolerance, type ToleranceSettings } from './tolerances.js';
-import { vendorPatterns, type VendorPattern } from './vendor-patterns.js';
+import { sharedCauseFirst, vendorPatterns, type VendorPattern } from './vendor-patterns.js';
 
 /**
  * Reconciliation as a stage of the day: every vendor figure judged against navassay's, with the
@@ -97,13 +97,22 @@ export function reconcile(inputs: ReconcileInputs, settings: ReconcileSettings):
     benchmarks: benchmarkIds(inputs.data),
   };
   const figures = inputs.vendor.filter((figure) => settings.asOf === undefined || figure.as_of === settings.asOf);
-  const results = figures.map((figure) => reconcileFigure(figure, context));
+  const results = withSharedCausesFirst(figures.map((figure) => reconcileFigure(figure, context)));
   return {
     as_of: settings.asOf === undefined ? null : formatIsoDate(settings.asOf),
     methodology: describeMethodology(methodology),
     results,
     summary: summarize(results, inputs.vendor.length - figures.length),
   };
+}
+
+/** Reorders each breach's explanations so the vendor's shared cause for its metric comes first. */
+function withSharedCausesFirst(results: ReconcileResult[]): ReconcileResult[] {
+  const patterns = vendorPatterns(results.filter((result) => result.status === 'breach'));
+  if (patterns.length === 0) return results;
+  return results.map((result) =>
+    result.status === 'breach' ? { ...result, explanations: sharedCauseFirst(result.metric, result.explanations, patterns) } : result,
+  );
 }
 
 interface FigureContext {

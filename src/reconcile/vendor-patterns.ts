@@ -52,3 +52,21 @@ function sentenceOf(metric: string, changes: Readonly<Record<string, unknown>>, 
     .join(' and ');
   return `This vendor's ${metric} figures are reproduced with ${change}: ${explained} of ${breaches} breaches explained.`;
 }
+
+/**
+ * A breach's explanations with the vendor's shared cause for its metric first, when the breach
+ * has it among its explanations: of two conventions that both reproduce one figure, the one that
+ * reproduces the vendor's other figures is the likelier.
+ */
+export function sharedCauseFirst<E extends { readonly kind: string; readonly changes?: Readonly<Record<string, unknown>> }>(
+  metric: string,
+  explanations: readonly E[],
+  patterns: readonly VendorPattern[],
+): E[] {
+  const pattern = patterns.find((p) => p.metric === metric);
+  if (!pattern) return [...explanations];
+  const signature = JSON.stringify(pattern.changes);
+  const shared = explanations.findIndex((e) => e.kind === 'convention' && JSON.stringify(e.changes) === signature);
+  if (shared <= 0) return [...explanations];
+  return [explanations[shared], ...explanations.slice(0, shared), ...explanations.slice(shared + 1)];
+}
