@@ -7,9 +7,9 @@ import { describeMethodology, type Methodology } from '../metrics/methodology.js
 import { parseWindow } from '../metrics/windows.js';
 import { DataExplainer, type DataExplanation } from './data-explanations.js';
 import { halfUnitOfPrinted } from './precision.js';
-import { searchConventions, type ConventionExplanation } from './search.js';
+import { searchConventions, tellsConventionsApart, type ConventionExplanation } from './search.js';
 import { judge, reproduces, severityOf, STATUSES, type ReconcileStatus } from './status.js';
-import { SuspectData, windowDaySpan } from './suspect-data.js';
+import { SuspectData, windowDaySpan, type DaySpan } from './suspect-data.js';
 import { allowedDifference, ToleranceResolver, type Tolerance, type ToleranceSettings } from './tolerances.js';
 import { sharedCauseFirst, vendorPatterns, type VendorPattern } from './vendor-patterns.js';
 
@@ -64,6 +64,8 @@ export interface ReconcileResult {
   readonly unsupported_by_data?: boolean;
   /** Keys of the error-level findings in the figure's window. */
   readonly suspect_data?: readonly string[];
+  /** Why a breach has no convention search, when it has none. */
+  readonly note?: string;
 }
 
 export interface ReconcileSummary {
@@ -95,6 +97,7 @@ export function reconcile(inputs: ReconcileInputs, settings: ReconcileSettings):
     data: new DataExplainer(inputs.data),
     master: new Map(inputs.data.master.map((record) => [record.series_id, record])),
     benchmarks: benchmarkIds(inputs.data),
+    spanOf: memoized((asOf: number, window: string) => windowDaySpan(asOf, window, methodology.window_end)),
   };
   const figures = inputs.vendor.filter((figure) => settings.asOf === undefined || figure.as_of === settings.asOf);
   const results = withSharedCausesFirst(figures.map((figure) => reconcileFigure(figure, context)));
@@ -123,6 +126,17 @@ interface FigureContext {
   readonly data: DataExplainer;
   readonly master: ReadonlyMap<string, SeriesMasterRecord>;
   readonly benchmarks: readonly string[];
+  /** The days a window's data comes from, for the suspect-data look-up (few distinct as-ofs and windows). */
+  readonly spanOf: (asOf: number, window: string) => DaySpan | null;
+}
+
+function memoized<T>(compute: (asOf: number, window: string) => T): (asOf: number, window: string) => T {
+  const memo = new Map<string, T>();
+  return (asOf, window) => {
+    const key = `${asOf}|${window}`;
+    if (!memo.has(key)) memo.set(key, compute(asOf, window));
+    return memo.get(key)!;
+  };
 }
 
 function reconcileFigure(figure: VendorFigureRecord, context: FigureContext): ReconcileResult {
@@ -144,7 +158,7 @@ function reconcileFigure(figure: VendorFigureRecord, context: FigureContext): Re
   const request = { seriesId: figure.series_id, asOf: figure.as_of, window: figure.window, metric, methodology: context.methodology };
   const outcome = context.calculator.metric(request);
   const benchmark = context.calculator.benchmarkId(figure.series_id, context.methodology);
-  const suspects = context.suspects.forFigure(figure.series_id, benchmark, metric, windowDaySpan(figure.as_of, figure.window, context.methodology.window_end));
+  const suspects = context.suspects.forFigure(figure.series_id, benchmark, metric, context.spanOf(figure.as_of, figure.window));
   const suspect = suspects.length === 0 ? {} : { suspect_data: suspects.map((finding) => finding.key) };
   if (outcome.value === null) {
     return { ...notComputable(base, evidence, tolerance.absolute, outcome.reason!, isAboutData(outcome.reason!)), ...suspect };
@@ -154,8 +168,11 @@ function reconcileFigure(figure: VendorFigureRecord, context: FigureContext): Re
   const { status, difference } = judge(figure.value, computed, allowed, printed_half_unit);
   const explanations =
     status === 'breach' ? explainBreach(figure, metric, computed, tolerance, printed_half_unit, benchmark, suspects, context) : [];
-  return { ...base, computed, difference, tolerance: allowed, status, explanations, severity: severityOf(status, false), ...evidence, ...suspect };
+  const note = status === 'breach' && !tellsConventionsApart(figure.value, printed_half_unit) ? { note: TOO_FEW_DIGITS } : {};
+  return { ...base, computed, difference, tolerance: allowed, status, explanations, severity: severityOf(status, false), ...evidence, ...suspect, ...note };
 }
+
+const TOO_FEW_DIGITS = 'the vendor printed fewer than two significant digits, too few to tell conventions apart; no convention was searched';
 
 function explainBreach(
   figure: VendorFigureRecord,

@@ -1,7 +1,6 @@
 import type { MetricCalculator } from '../metrics/compute.js';
 import type { Methodology } from '../metrics/methodology.js';
 import { candidatesFor, SCALE, type Candidate, type CandidateContext } from './candidates.js';
-import { reproduces } from './status.js';
 
 /**
  * The convention search: which changes to the configured methodology make navassay compute the
@@ -41,7 +40,16 @@ interface Tried {
   readonly asRead: number;
 }
 
+/**
+ * A figure printed with fewer than two significant digits (0.0006, 0.8) lies within its own half
+ * unit of a wide band of values: conventions cannot be told apart on it, so none is searched.
+ */
+export function tellsConventionsApart(vendor: number, halfUnit: number): boolean {
+  return Math.abs(vendor) >= 20 * halfUnit;
+}
+
 export function searchConventions(calculator: MetricCalculator, figure: FigureToExplain): ConventionExplanation[] {
+  if (!tellsConventionsApart(figure.vendor, figure.halfUnit)) return [];
   const candidates = candidatesFor({ ...figure, base: figure.methodology });
   const singles: Tried[] = [];
   for (const candidate of candidates) {
@@ -102,21 +110,35 @@ function readingFactor(scale: unknown, unit: 'decimal' | 'percent'): number {
   return 1;
 }
 
-/** Within the figure's tolerance (scaled to the reading) or the vendor's printed half unit (already in it). */
+/**
+ * An explanation must give the vendor's printed figure: within half a unit of its last printed
+ * digit (so honest rounding of the convention's figure passes), or a tenth of the tolerance when
+ * the vendor printed finer than that (numeric noise between two correct implementations lies far
+ * below it). Not the whole tolerance: on figures printed to four decimals, a basis point of
+ * tolerance let a shifted window or another annualisation "explain" a figure ×1.25 about one
+ * time in twenty on the bench universe.
+ */
 function isReproduced(tried: Tried, figure: FigureToExplain): boolean {
-  return reproduces(figure.vendor, tried.asRead, figure.allowed(tried.computed) * tried.factor, figure.halfUnit);
+  return distanceOf(tried, figure) <= Math.max(figure.halfUnit, (figure.allowed(tried.computed) * tried.factor) / 10) + slack(figure);
 }
 
 /**
  * A pair has more freedom to land near any number by chance (a few hundred pairs against a
- * score of single changes), so it must reproduce the figure within the tighter of the tolerance
- * and the printed half unit: to the vendor's last printed digit when it printed finer than the
- * tolerance. Accepted within the tolerance, 2 of the 44 gross errors of test/reconcile/planted.test.ts
- * (figures ×1.25) found such a chance pair.
+ * score of single changes), so it must also stay within the tolerance when the vendor printed
+ * coarser than that. Accepted within the whole tolerance, 2 of the 44 gross errors of
+ * test/reconcile/planted.test.ts (figures ×1.25) found such a chance pair.
  */
 function isReproducedStrictly(tried: Tried, figure: FigureToExplain): boolean {
-  const window = Math.min(figure.allowed(tried.computed) * tried.factor, figure.halfUnit);
-  return Math.abs(tried.asRead - figure.vendor) <= window + 1e-10 * Math.max(1, Math.abs(figure.vendor));
+  return isReproduced(tried, figure) && distanceOf(tried, figure) <= figure.allowed(tried.computed) * tried.factor + slack(figure);
+}
+
+function distanceOf(tried: Tried, figure: FigureToExplain): number {
+  return Math.abs(tried.asRead - figure.vendor);
+}
+
+/** Floating-point slack, so that a figure exactly half a unit away still rounds to the print. */
+function slack(figure: FigureToExplain): number {
+  return 1e-10 * Math.max(1, Math.abs(figure.vendor));
 }
 
 /**
