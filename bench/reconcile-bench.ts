@@ -68,14 +68,7 @@ function key(row: Pick<MetricRow, 'series_id' | 'window' | 'metric'>): string {
 function index(rows: readonly MetricRow[]): Map<string, number | null> {
   return new Map(rows.map((row) => [key(row), row.value]));
 }
-if (process.env.SHOW_FALSE) {
-  for (const [at, p] of planted) if (p === '×1.25' && answer.results[at].explanations.length > 0) console.log(JSON.stringify({ ...answer.results[at], explanations: answer.results[at].explanations.slice(0, 3) }));
-  const t0 = process.hrtime.bigint();
-  reconcile({ vendor: vendor.filter((_, at) => !planted.has(at)), data, findings: [] }, { methodology: DEFAULT_METHODOLOGY });
-  console.log('honest only', Number(process.hrtime.bigint() - t0) / 1e9);
-}
-if (process.env.SHOW_FALSE) {
-  const t1 = process.hrtime.bigint();
-  computeMetrics({ ...request, methodology: DEFAULT_METHODOLOGY });
-  console.log('computeMetrics', Number(process.hrtime.bigint() - t1) / 1e9);
+// The breaches a planted ×1.25 got an explanation for: each is a chance reproduction, listed for review.
+if (process.env.SHOW_CHANCE) {
+  for (const [at, plant] of planted) if (plant === '×1.25' && answer.results[at].explanations.length > 0) console.log(JSON.stringify(answer.results[at]));
 }

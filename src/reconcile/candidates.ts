@@ -46,6 +46,8 @@ const BENCHMARK_FIGURES: readonly MetricId[] = ['beta', 'alpha', 'r_squared', 't
  * may change any metric. The search skips a dimension for the other metrics.
  */
 const AFFECTED_METRICS: Readonly<Record<string, readonly MetricId[]>> = {
+  // Returns, risks and R² are printed in percent by many vendors; beta and the ratios never are.
+  [SCALE]: ['return_annualized', 'std_dev', 'downside_deviation', 'alpha', 'r_squared', 'tracking_error', 'treynor', 'max_drawdown'],
   sd_denominator: ['std_dev', 'sharpe', 'tracking_error', 'information_ratio'],
   return_type: ['std_dev', 'downside_deviation', 'beta', 'alpha', 'r_squared', 'sharpe', 'sortino', 'tracking_error', 'information_ratio', 'treynor'],
   regression: ['beta', 'alpha', 'r_squared', 'treynor'],

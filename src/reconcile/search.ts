@@ -48,6 +48,11 @@ export function tellsConventionsApart(vendor: number, halfUnit: number): boolean
   return Math.abs(vendor) >= 20 * halfUnit;
 }
 
+/** Pairs, a few hundred of them, need a figure printed to at least three significant digits. */
+function tellsPairsApart(vendor: number, halfUnit: number): boolean {
+  return Math.abs(vendor) >= 200 * halfUnit;
+}
+
 export function searchConventions(calculator: MetricCalculator, figure: FigureToExplain): ConventionExplanation[] {
   if (!tellsConventionsApart(figure.vendor, figure.halfUnit)) return [];
   const candidates = candidatesFor({ ...figure, base: figure.methodology });
@@ -58,7 +63,7 @@ export function searchConventions(calculator: MetricCalculator, figure: FigureTo
     if (tried && (tried.asRead !== figure.computed)) singles.push(tried);
   }
   let found = singles.filter((tried) => isReproduced(tried, figure));
-  if (found.length === 0) found = searchPairs(calculator, figure, singles);
+  if (found.length === 0 && tellsPairsApart(figure.vendor, figure.halfUnit)) found = searchPairs(calculator, figure, singles);
   return rank(found, figure).map(toExplanation);
 }
 
