@@ -9,8 +9,8 @@ import type { VendorFigureRecord } from '../ingest/records.js';
 export function halfUnitOfPrinted(figure: Pick<VendorFigureRecord, 'raw_value' | 'unit'>): number {
   const text = figure.raw_value.trim();
   const inPercent = figure.unit === 'percent' || text.includes('%');
-  const unit = 10 ** -printedDecimals(text);
-  return (inPercent ? unit / 100 : unit) / 2;
+  // 5 / 10^(d + 1) rather than 10^−d / 2, so that four decimals give 0.00005 exactly as printed.
+  return 5 / 10 ** (printedDecimals(text) + 1 + (inPercent ? 2 : 0));
 }
 
 /** Digits after the decimal separator (a point or a comma), less the exponent when there is one. */
