@@ -60,7 +60,7 @@ export function searchConventions(calculator: MetricCalculator, figure: FigureTo
   for (const candidate of candidates) {
     const tried = attempt(calculator, figure, [candidate]);
     // A change that leaves the figure as it was cannot help a pair either.
-    if (tried && (tried.asRead !== figure.computed)) singles.push(tried);
+    if (tried && tried.asRead !== figure.computed) singles.push(tried);
   }
   let found = singles.filter((tried) => isReproduced(tried, figure));
   if (found.length === 0 && tellsPairsApart(figure.vendor, figure.halfUnit)) found = searchPairs(calculator, figure, singles);
