@@ -21,7 +21,7 @@ export interface NamedPath {
 const REPORT_EXTENSIONS: Record<OutputFormat, string> = { json: 'json', html: 'html', markdown: 'md', csv: 'csv', table: 'txt' };
 
 /** The file a run's report of one kind and format is written to, inside `output.dir`. */
-export function reportFileName(report: 'check' | 'metrics', format: OutputFormat): string {
+export function reportFileName(report: 'check' | 'metrics' | 'reconcile', format: OutputFormat): string {
   return `${report}.${REPORT_EXTENSIONS[format]}`;
 }
 
@@ -32,6 +32,7 @@ export function runOutputFiles(dir: string, formats: readonly OutputFormat[]): N
   const files = formats.flatMap((format) => [
     { key: 'output.dir', path: join(dir, reportFileName('check', format)) },
     { key: 'output.dir', path: join(dir, reportFileName('metrics', format)) },
+    { key: 'output.dir', path: join(dir, reportFileName('reconcile', format)) },
   ]);
   return [...files, { key: 'output.dir', path: join(dir, QUARANTINE_FILE) }];
 }

@@ -11,6 +11,7 @@ import { FILE_KINDS, type FileKind } from '../ingest/schema.js';
 import { CheckSettingsSchema, type CheckSettings } from '../checks/settings.js';
 import { MethodologySchema } from '../metrics/methodology.js';
 import { isWindowLabel } from '../metrics/windows.js';
+import { ToleranceSettingsSchema } from '../reconcile/tolerances.js';
 import { OUTPUT_FORMATS } from '../report/render.js';
 import { checkOutputsApart, runOutputFiles, type NamedPath } from './output-paths.js';
 import { parseYaml, validateYaml, type LocatedYaml } from './yaml-errors.js';
@@ -52,6 +53,8 @@ export const RunConfigSchema = z
     weekend: z.array(z.number().int().min(1).max(7)).default([6, 7]),
     checks: CheckSettingsSchema.default({}),
     methodology: MethodologySchema.default(MethodologySchema.parse({})),
+    /** Reconciliation of the vendor file (files.vendor): tolerances per metric, category and series. */
+    reconcile: z.strictObject({ tolerances: ToleranceSettingsSchema.default({}) }).default({ tolerances: {} }),
     windows: z.array(z.string().refine(isWindowLabel, 'must be a window such as 1y, 3y or 6m')).min(1).default(['1y', '3y', '5y']),
     output: z
       .object({

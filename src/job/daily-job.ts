@@ -5,11 +5,13 @@ import type { LoadOptions } from '../ingest/feed.js';
 import { readLimits } from '../ingest/limits.js';
 import type { MetricsAnswer } from '../metrics/compute.js';
 import type { CheckAnswer } from '../report/check-answer.js';
+import type { ReconcileAnswer } from '../reconcile/reconcile.js';
 import type { SnapshotRef } from '../store/index.js';
 import { loadDay, type Day, type PreviousSource } from './day.js';
 import { answersStage } from './stages/answers.js';
 import { checkStage } from './stages/checks.js';
 import { metricsStage } from './stages/metrics.js';
+import { reconcileStage } from './stages/reconcile.js';
 import { snapshotStage } from './stages/snapshot.js';
 
 /**
@@ -17,19 +19,14 @@ import { snapshotStage } from './stages/snapshot.js';
  * takes the day (and what earlier stages produced) and returns typed output; commands only
  * parse options, call the job, render and set the exit status.
  *
- * Reconciliation (src/reconcile/) and tickets (src/tickets/) are not built yet. Their places
- * are the two optional stages below: a caller (and later the run command) plugs them in, and
- * their output types are tightened here when they land.
+ * Tickets (src/tickets/) are not built yet: their place is the optional stage below, and its
+ * output type is tightened here when it lands.
  */
 
-/** What reconciliation of the vendor's figures will produce (src/reconcile/, not built yet). */
-export type ReconciliationOutput = unknown;
 /** What carrying findings across days as tickets will produce (src/tickets/, not built yet). */
 export type TicketsOutput = unknown;
 
 export interface LaterStages {
-  /** Reconcile stage: the vendor's figures (day.feed.vendor) against ours, with day.figures.calculator. */
-  readonly reconcile?: (day: Day, figures: MetricsAnswer | null) => ReconciliationOutput;
   /** Tickets stage: today's findings against the open tickets of earlier days. */
   readonly tickets?: (day: Day, findings: readonly Finding[]) => TicketsOutput;
 }
@@ -40,7 +37,8 @@ export interface DailyRun {
   readonly day: Day;
   readonly check: CheckAnswer;
   readonly metrics: MetricsAnswer | null;
-  readonly reconciliation?: ReconciliationOutput;
+  /** The vendor's figures reconciled; null when the configuration names no vendor file (or no benchmarks and master). */
+  readonly reconciliation: ReconcileAnswer | null;
   readonly tickets?: TicketsOutput;
   readonly snapshot: SnapshotRef;
   readonly reportFiles: readonly string[];
@@ -50,11 +48,11 @@ export async function runDailyJob(config: RunConfig, asOf: number, later: LaterS
   const day = await loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: previousSourceOf(config) });
   const check = checkStage(day, config.checks);
   // Risk figures stand at the last month-end on or before the as-of date.
-  const metrics = metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology });
-  const reconciliation = later.reconcile?.(day, metrics);
+  const metrics = metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology }, check.findings);
+  const reconciliation = reconcileStage(day, check.findings, { methodology: config.methodology, tolerances: config.reconcile.tolerances });
   const tickets = later.tickets?.(day, check.findings);
   const snapshot = snapshotStage(day, config);
-  const reportFiles = answersStage(day, check, metrics, config.output);
+  const reportFiles = answersStage(day, { check, metrics, reconciliation }, config.output);
   return { config, day, check, metrics, reconciliation, tickets, snapshot, reportFiles };
 }
 

@@ -4,6 +4,8 @@ import { loadRunConfig, runInputs } from '../../config/run-config.js';
 import { runDailyJob } from '../../job/daily-job.js';
 import { checkView, failsOn } from '../../report/check-answer.js';
 import { metricsView } from '../../report/metrics-answer.js';
+import { reconcileView } from '../../report/reconcile-answer.js';
+import { reconcileFailsOn } from './reconcile.js';
 import { render } from '../../report/render.js';
 import { requireDirectoryLocation, requireFileLocation } from '../locations.js';
 import { annualizationNotices, printNotices, unknownSeriesNotices } from '../notices.js';
@@ -49,7 +51,9 @@ export async function runCommandLine(configPath: string, options: RunOptions): P
   const format = chosenFormat(options.format);
   let text = render(format, run.check, checkView(run.check));
   if (format === 'table' && run.metrics) text += '\n' + render(format, run.metrics, metricsView(run.metrics));
+  if (format === 'table' && run.reconciliation) text += '\n' + render(format, run.reconciliation, reconcileView(run.reconciliation));
   emit(text, options.out);
   process.stderr.write(`navassay: reports written to ${config.output.dir} (${run.reportFiles.length} files); snapshot stored in ${config.store}\n`);
-  return failsOn(run.check.findings, failOn) ? 1 : 0;
+  const reconcileFails = run.reconciliation !== null && reconcileFailsOn(run.reconciliation, failOn);
+  return failsOn(run.check.findings, failOn) || reconcileFails ? 1 : 0;
 }
