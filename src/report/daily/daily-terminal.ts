@@ -1,0 +1,82 @@
+import { formatNumber } from '../view.js';
+import { findingsByCheck, headline, ticketsNeedingPerson, type DailyReport } from './daily-report.js';
+
+/**
+ * The day on a terminal: the manager's summary first, then what needs a person, then counts;
+ * every line fits 80 columns, and the caution is printed once, at the end.
+ */
+export const TERMINAL_WIDTH = 80;
+const TICKET_LINES = 25;
+
+export interface TerminalStyle {
+  /** Colour only on a terminal and when NO_COLOR is not set. */
+  readonly colour: boolean;
+}
+
+export function renderDailyTerminal(report: DailyReport, style: TerminalStyle, files: readonly string[] = []): string {
+  const paint = (code: string, text: string) => (style.colour ? `\u001b[${code}m${text}\u001b[0m` : text);
+  const severityPaint: Record<string, string> = { critical: '1;31', error: '31', warning: '33', info: '2' };
+  const lines: string[] = [];
+  lines.push(...wrap(`navassay daily run: ${report.feed}, as of ${report.as_of}${report.previous_as_of ? ` (previous run ${report.previous_as_of})` : ''}`));
+  lines.push(...wrap(headline(report)).map((l) => paint('1', l)));
+  for (const notice of report.notices) lines.push(...wrap(`Note: ${notice}`));
+  lines.push('');
+  const needing = ticketsNeedingPerson(report);
+  if (needing.length) {
+    lines.push(`Tickets that need a person (${needing.length}), worst first:`);
+    for (const r of needing.slice(0, TICKET_LINES)) {
+      const state = r.state.padEnd(8);
+      const severity = r.severity.padEnd(8);
+      const title = fit(r.title, TERMINAL_WIDTH - 2 - 9 - 9);
+      lines.push(`  ${paint('1', state)} ${paint(severityPaint[r.severity] ?? '0', severity)} ${title}`);
+    }
+    if (needing.length > TICKET_LINES) lines.push(`  … ${needing.length - TICKET_LINES} more in tickets.csv`);
+    lines.push('');
+  }
+  const resolved = report.tickets.records.filter((r) => r.state === 'resolved');
+  if (resolved.length) lines.push(...wrap(`Resolved today: ${resolved.map((r) => r.title).join('; ')}`), '');
+  lines.push(`Findings: ${report.findings.length}; rows read ${report.rows.read}, ${report.rows.rejected} rejected.`);
+  const checks = findingsByCheck(report.findings);
+  for (const { check, counts, total } of checks.slice(0, 20)) {
+    const bySeverity = (['critical', 'error', 'warning', 'info'] as const).filter((s) => counts[s]).map((s) => `${counts[s]} ${s}`).join(', ');
+    lines.push(fit(`  ${check.padEnd(22)} ${String(total).padStart(6)}  ${bySeverity}`, TERMINAL_WIDTH));
+  }
+  if (report.patterns.length) {
+    lines.push('', 'Feed-level patterns:');
+    for (const p of report.patterns) lines.push(...wrap(p.message, '  '));
+  }
+  const f = report.figures;
+  if (f) {
+    lines.push('', ...wrap(`Risk figures at ${f.as_of}: ${f.computed} computed, ${f.not_computable} not computable, ${f.flagged} over a window holding an error-level finding.`));
+    const examples = f.shown.filter((x) => x.value === null || x.flagged_by.length).slice(0, 8);
+    for (const x of examples) lines.push(fit(`  ${x.series_id} ${x.window} ${x.metric}: ${x.value === null ? `n/a (${x.reason ?? 'no reason'})` : `${formatNumber(x.value)} ⚑ error-level finding in window`}`, TERMINAL_WIDTH));
+  }
+  const rec = report.reconciliation;
+  if (rec?.results?.length) {
+    const statuses = new Map<string, number>();
+    for (const r of rec.results) statuses.set(r.status, (statuses.get(r.status) ?? 0) + 1);
+    lines.push('', ...wrap(`Reconciliation: ${[...statuses.entries()].map(([s, n]) => `${n} ${s}`).join(', ')}.`));
+  }
+  if (files.length) lines.push('', ...wrap(`Written: ${files.join(', ')}`));
+  lines.push('', ...wrap(report.caution), '');
+  return lines.join('\n');
+}
+
+/** Cuts text to a width, ending with an ellipsis when cut. */
+export function fit(text: string, width: number): string {
+  return text.length <= width ? text : text.slice(0, width - 1) + '…';
+}
+
+/** Word-wraps text to the terminal width. */
+export function wrap(text: string, indent = ''): string[] {
+  const lines: string[] = [];
+  let line = indent;
+  for (const word of text.split(/\s+/)) {
+    if (line.trim() && line.length + 1 + word.length > TERMINAL_WIDTH) {
+      lines.push(line);
+      line = indent + word;
+    } else line = line.trim() ? `${line} ${word}` : indent + word;
+  }
+  if (line.trim()) lines.push(line);
+  return lines.map((l) => fit(l, TERMINAL_WIDTH));
+}
