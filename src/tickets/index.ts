@@ -6,3 +6,4 @@ export { advanceLedger, emptyLedger, byWorst, type TicketLedger, type RunCounts,
 export { readLedger, writeLedger, ledgerPath } from './ledger-file.js';
 export { ticketsToCsv, ticketsToJsonLines } from './export.js';
 export type { Ticket, TicketRecord, TicketState, TicketKind, ReconciliationInput, AppliedAcknowledgement } from './ticket.js';
+export { ticketStage, seriesSpans, type TicketStageInput, type TicketStageResult } from './stage.js';

@@ -53,7 +53,8 @@ async function runIngest(options: IngestOptions): Promise<number> {
   const feed = await loadFeed(paths, loadOptionsOf(config));
   const store = config?.store ?? options.store;
   const feedName = config?.feed ?? options.feed;
-  const snapshot = storeSnapshot({ store, feed: feedName }, asOf, feed);
+  const { ref: snapshot, notice } = storeSnapshot({ store, feed: feedName }, asOf, feed);
+  if (notice) process.stderr.write(`navassay: ${notice}\n`);
   const answer = {
     feed: feedName,
     as_of: formatIsoDate(asOf),

@@ -1,35 +1,40 @@
 import { Command } from 'commander';
 import { join } from 'node:path';
-import { lastMonthEndOnOrBefore } from '../../calendar/days.js';
+import { formatIsoDate, lastMonthEndOnOrBefore } from '../../calendar/days.js';
 import { runChecks } from '../../checks/run.js';
 import { loadRunConfig, type RunConfig } from '../../config/run-config.js';
 import type { Finding } from '../../findings.js';
 import { loadFeed, loadPreviousNav, type LoadedFeed } from '../../ingest/feed.js';
 import { computeMetrics, type MetricsAnswer } from '../../metrics/compute.js';
 import { checkAnswer, checkView, failsOn, type CheckAnswer } from '../../report/check-answer.js';
+import { buildDailyReport, dailyFiles, navChart, renderDailyCsv, renderDailyHtml, renderDailyMarkdown, renderDailyTerminal, type DailyReport, type NavChart } from '../../report/daily/index.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { render, type OutputFormat } from '../../report/render.js';
 import { adjustForCorporateActions } from '../../series/adjust.js';
 import type { SeriesFrame } from '../../series/frame.js';
+import { ticketStage, type TicketRecord } from '../../tickets/index.js';
 import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn } from '../options.js';
 import { emit, writeFileAtomically, writeQuarantine } from '../output.js';
-import { previousNavFromStore, storeSnapshot } from '../snapshots.js';
+import { colourWanted, progressLine, type Progress } from '../progress.js';
+import { pinnedPreviousNotice, previousNavFromStore, storeSnapshot } from '../snapshots.js';
 
 interface RunOptions {
   asOf?: string;
   format?: string;
   out?: string;
   failOn?: string;
+  quiet?: boolean;
 }
 
 export function runCommand(): Command {
   return new Command('run')
-    .description("the daily job from a run configuration: read the feed, check it, recompute risk figures, store the snapshot, write the reports")
+    .description("the daily job from a run configuration: read the feed, check it, recompute risk figures, store the snapshot, carry the tickets, write the day's report")
     .argument('<config>', 'run configuration (YAML)')
     .addOption(asOfOption("the configuration's as_of, else today"))
     .addOption(formatOption())
     .addOption(outOption())
     .addOption(failOnOption().default(undefined))
+    .option('--quiet', 'no progress line and no notes on standard error')
     .action(async (configPath: string, options: RunOptions) => {
       process.exitCode = await runDailyJob(configPath, options);
     });
@@ -42,35 +47,85 @@ export interface DailyRun {
   readonly feed: LoadedFeed;
   readonly check: CheckAnswer;
   readonly metrics: MetricsAnswer | null;
+  readonly report: DailyReport;
   readonly reportFiles: string[];
 }
 
 export async function runDailyJob(configPath: string, options: RunOptions): Promise<number> {
-  const run = await executeRun(configPath, options);
+  const progress = progressLine(options.quiet === true);
+  const run = await executeRun(configPath, options, progress);
   const format = chosenFormat(options.format);
-  let text = render(format, run.check, checkView(run.check));
-  if (format === 'table' && run.metrics) text += '\n' + render(format, run.metrics, metricsView(run.metrics));
-  emit(text, options.out);
-  process.stderr.write(`navassay: reports written to ${run.config.output.dir} (${run.reportFiles.length} files); snapshot stored in ${run.config.store}\n`);
+  emit(renderDay(format, run), options.out);
+  if (!options.quiet) process.stderr.write(`navassay: reports written to ${run.config.output.dir} (${run.reportFiles.length} files); snapshot stored in ${run.config.store}\n`);
   const failOn = parseFailOn(options.failOn ?? run.config.fail_on);
   return failsOn(run.check.findings, failOn) ? 1 : 0;
 }
 
-export async function executeRun(configPath: string, options: RunOptions): Promise<DailyRun> {
-  const config = loadRunConfig(configPath);
-  const asOf = parseAsOf(options.asOf ?? config.as_of);
-  const feed = await loadFeed(config.paths, loadOptionsOf(config));
-  const previous = await previousNav(config, asOf);
-  const findings: Finding[] = runChecks({ ...feed, previous, asOf }, config.checks);
-  const check = checkAnswer(asOf, feed.rows, findings);
-  const metrics = feed.benchmarks && feed.master ? runMetrics(config, feed, asOf) : null;
-  storeSnapshot(config, asOf, feed);
-  const reportFiles = writeReports(config, check, metrics, feed);
-  return { config, asOf, feed, check, metrics, reportFiles };
+/** The whole day on standard output, in the chosen format. */
+function renderDay(format: OutputFormat, run: DailyRun): string {
+  switch (format) {
+    case 'json':
+      return JSON.stringify(run.report, null, 2) + '\n';
+    case 'html':
+      return renderDailyHtml(run.report);
+    case 'markdown':
+      return renderDailyMarkdown(run.report);
+    case 'csv':
+      return renderDailyCsv(run.report);
+    case 'table':
+      return renderDailyTerminal(run.report, { colour: colourWanted() }, [join(run.config.output.dir, 'report.html')]);
+  }
 }
 
-async function previousNav(config: RunConfig, asOf: number): Promise<SeriesFrame | undefined> {
-  if (config.previous !== undefined) return loadPreviousNav(config.previous, config.profiles.nav);
+export async function executeRun(configPath: string, options: RunOptions, progress: Progress = progressLine(true)): Promise<DailyRun> {
+  const config = loadRunConfig(configPath);
+  const asOf = parseAsOf(options.asOf ?? config.as_of);
+  progress.stage('reading the feed …');
+  const feed = await loadFeed(config.paths, loadOptionsOf(config));
+  const notices: string[] = [];
+  const previous = await previousNav(config, asOf, notices);
+  progress.stage(`checking ${feed.nav.ids.length} series, ${feed.rows.accepted} rows …`);
+  const findings: Finding[] = runChecks({ ...feed, previous, asOf }, config.checks);
+  const check = checkAnswer(asOf, feed.rows, findings);
+  progress.stage(`computing risk figures for ${feed.nav.ids.length} series …`);
+  const metrics = feed.benchmarks && feed.master ? runMetrics(config, feed, asOf) : null;
+  progress.stage('storing the snapshot and the tickets …');
+  const stored = storeSnapshot(config, asOf, feed);
+  if (stored.notice) notices.push(stored.notice);
+  const tickets = ticketStage({
+    storeDir: config.store,
+    feed: config.feed,
+    asOf: formatIsoDate(asOf),
+    findings,
+    nav: feed.nav,
+    master: feed.master,
+    acknowledgementsPath: config.acknowledgements,
+  });
+  notices.push(...tickets.notices);
+  progress.stage('writing the reports …');
+  const report = buildDailyReport({
+    feed: config.feed,
+    previousAsOf: tickets.previousAsOf,
+    check,
+    patterns: tickets.patterns,
+    tickets: tickets.records,
+    history: tickets.history,
+    metrics,
+    charts: chartsOf(feed, tickets.records, findings, asOf),
+    notices,
+  });
+  const reportFiles = writeReports(config, check, metrics, feed, report);
+  progress.done();
+  if (!options.quiet) for (const notice of notices) process.stderr.write(`navassay: ${notice}\n`);
+  return { config, asOf, feed, check, metrics, report, reportFiles };
+}
+
+async function previousNav(config: RunConfig, asOf: number, notices: string[]): Promise<SeriesFrame | undefined> {
+  if (config.previous !== undefined) {
+    const notice = pinnedPreviousNotice(config, asOf);
+    if (notice) notices.push(notice);
+    return loadPreviousNav(config.previous, config.profiles.nav);
+  }
   return previousNavFromStore(config, asOf);
 }
 
@@ -87,15 +142,32 @@ function runMetrics(config: RunConfig, feed: LoadedFeed, asOf: number): MetricsA
   });
 }
 
+/** Charts for the series of the worst tickets that need a person. */
+const CHARTS_AT_MOST = 12;
+
+function chartsOf(feed: LoadedFeed, records: readonly TicketRecord[], findings: readonly Finding[], asOf: number): NavChart[] {
+  const benchmarkOf = new Map((feed.master ?? []).map((m) => [m.series_id, m.benchmark_id]));
+  const wanted: string[] = [];
+  for (const record of records) {
+    if (record.state === 'resolved' || record.silenced || record.kind !== 'series') continue;
+    for (const id of record.series_ids) if (!wanted.includes(id)) wanted.push(id);
+  }
+  return wanted
+    .map((id) => navChart(feed.nav, feed.benchmarks, id, benchmarkOf.get(id) ?? null, findings, asOf))
+    .filter((chart): chart is NavChart => chart !== null)
+    .slice(0, CHARTS_AT_MOST);
+}
+
 const EXTENSIONS: Record<OutputFormat, string> = { json: 'json', html: 'html', markdown: 'md', csv: 'csv', table: 'txt' };
 
-function writeReports(config: RunConfig, check: CheckAnswer, metrics: MetricsAnswer | null, feed: LoadedFeed): string[] {
+function writeReports(config: RunConfig, check: CheckAnswer, metrics: MetricsAnswer | null, feed: LoadedFeed, report: DailyReport): string[] {
   const written: string[] = [];
   const write = (name: string, text: string) => {
     const path = join(config.output.dir, name);
     writeFileAtomically(path, text);
     written.push(path);
   };
+  for (const [name, text] of Object.entries(dailyFiles(report, metrics, check.findings))) write(name, text);
   for (const format of config.output.formats) {
     write(`check.${EXTENSIONS[format]}`, render(format, check, checkView(check)));
     if (metrics) write(`metrics.${EXTENSIONS[format]}`, render(format, metrics, metricsView(metrics)));

@@ -1,4 +1,3 @@
-import { formatNumber } from '../view.js';
 import { findingsByCheck, headline, ticketsNeedingPerson, type DailyReport } from './daily-report.js';
 
 /**
@@ -48,8 +47,12 @@ export function renderDailyTerminal(report: DailyReport, style: TerminalStyle, f
   const f = report.figures;
   if (f) {
     lines.push('', ...wrap(`Risk figures at ${f.as_of}: ${f.computed} computed, ${f.not_computable} not computable, ${f.flagged} over a window holding an error-level finding.`));
-    const examples = f.shown.filter((x) => x.value === null || x.flagged_by.length).slice(0, 8);
-    for (const x of examples) lines.push(fit(`  ${x.series_id} ${x.window} ${x.metric}: ${x.value === null ? `n/a (${x.reason ?? 'no reason'})` : `${formatNumber(x.value)} ⚑ error-level finding in window`}`, TERMINAL_WIDTH));
+    const flaggedBySeries = new Map<string, Set<string>>();
+    for (const x of f.shown) if (x.flagged_by.length) flaggedBySeries.set(x.series_id, new Set([...(flaggedBySeries.get(x.series_id) ?? []), ...x.flagged_by]));
+    for (const [id, keys] of [...flaggedBySeries].slice(0, 8)) lines.push(fit(`  [!] ${id}: error-level finding in window (${[...keys].map((k) => k.split('|')[0]).join(', ')})`, TERMINAL_WIDTH));
+    const reasons = new Map<string, number>();
+    for (const x of f.shown) if (x.value === null) reasons.set(x.reason ?? 'no reason given', (reasons.get(x.reason ?? 'no reason given') ?? 0) + 1);
+    for (const [reason, count] of [...reasons].slice(0, 5)) lines.push(fit(`  n/a ×${count}: ${reason}`, TERMINAL_WIDTH));
   }
   const rec = report.reconciliation;
   if (rec?.results?.length) {
