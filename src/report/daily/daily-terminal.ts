@@ -49,7 +49,7 @@ export function renderDailyTerminal(report: DailyReport, style: TerminalStyle, f
     lines.push('', ...wrap(`Risk figures at ${f.as_of}: ${f.computed} computed, ${f.not_computable} not computable, ${f.flagged} over a window holding an error-level finding.`));
     const flaggedBySeries = new Map<string, Set<string>>();
     for (const x of f.shown) if (x.flagged_by.length) flaggedBySeries.set(x.series_id, new Set([...(flaggedBySeries.get(x.series_id) ?? []), ...x.flagged_by]));
-    for (const [id, keys] of [...flaggedBySeries].slice(0, 8)) lines.push(fit(`  [!] ${id}: error-level finding in window (${[...keys].map((k) => k.split('|')[0]).join(', ')})`, TERMINAL_WIDTH));
+    for (const [id, keys] of [...flaggedBySeries].slice(0, 8)) lines.push(fit(`  [!] ${id}: error-level finding in window (${[...new Set([...keys].map((k) => k.split('|')[0]))].join(', ')})`, TERMINAL_WIDTH));
     const reasons = new Map<string, number>();
     for (const x of f.shown) if (x.value === null) reasons.set(x.reason ?? 'no reason given', (reasons.get(x.reason ?? 'no reason given') ?? 0) + 1);
     for (const [reason, count] of [...reasons].slice(0, 5)) lines.push(fit(`  n/a ×${count}: ${reason}`, TERMINAL_WIDTH));
