@@ -26,12 +26,15 @@ export function escapeHtml(text: string): string {
   return text.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
 }
 
-/** Markdown text that renders as the same characters: markup and HTML become literal. */
+/**
+ * Markdown text that renders as the same characters: markup and HTML become literal. The
+ * underscore is left alone: inside a word (check ids, series ids) it never emphasises.
+ */
 export function markdownText(text: string): string {
   return text
     .replace(/\r?\n|\r/g, ' ')
     .replace(/&/g, '&amp;')
     .replace(/</g, '&lt;')
     .replace(/>/g, '&gt;')
-    .replace(/([\\`*_{}[\]()#+!|~])/g, '\\$1');
+    .replace(/([\\`*{}[\]()#+!|~])/g, '\\$1');
 }
