@@ -1,7 +1,7 @@
 import { SEVERITIES } from '../../findings.js';
 import { escapeHtml } from '../safe-text.js';
 import { cellText } from '../view.js';
-import { figureNote, findingsByCheck, headline, ticketDates, ticketsNeedingPerson, type DailyReport } from './daily-report.js';
+import { figureGrid, findingsByCheck, headline, ticketDates, ticketsNeedingPerson, type DailyReport } from './daily-report.js';
 import { navChartSvg, runCountsSvg, toleranceSvg, type ToleranceRow } from './svg-charts.js';
 
 /**
@@ -61,7 +61,7 @@ td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: now
 figure { margin: 1rem 0; break-inside: avoid; } figcaption { font-size: .85rem; color: #333; }
 svg.chart { width: 100%; max-width: 40rem; height: auto; display: block; border: 1px solid #eee; }
 svg.chart text { font-family: inherit; fill: #333; }
-.charts { display: grid; grid-template-columns: repeat(auto-fill, minmax(20rem, 1fr)); gap: 1rem; }
+.charts { display: grid; grid-template-columns: repeat(auto-fill, minmax(min(100%, 28rem), 1fr)); gap: 1rem; }
 @media print { body { max-width: none; font-size: 10pt; } .scroll { overflow: visible; } h2 { break-after: avoid; } }
 `;
 
@@ -109,7 +109,7 @@ function patternSection(report: DailyReport): string {
 function chartSection(report: DailyReport): string {
   if (report.charts.length === 0) return '';
   const figures = report.charts.map(
-    (chart) => `<figure>${navChartSvg(chart)}<figcaption>${e(chart.series_id)}: NAV (solid)${chart.benchmark.length > 1 ? `, ${e(chart.benchmark_id)} rebased (dashed)` : ''}; flagged dates circled, flagged runs shaded (${chart.marks.map((m) => e(m.check)).join(', ')}).</figcaption></figure>`,
+    (chart) => `<figure>${navChartSvg(chart)}<figcaption>${e(chart.series_id)}: NAV (solid)${chart.benchmark.length > 1 ? `, ${e(chart.benchmark_id)} rebased (dashed)` : ''}; flagged dates circled, flagged runs shaded (${[...new Set(chart.marks.map((m) => m.check))].map(e).join(', ')}).</figcaption></figure>`,
   );
   return `<section id="charts"><h2>Flagged series</h2><div class="charts">${figures.join('\n')}</div></section>`;
 }
@@ -148,14 +148,12 @@ ${vendor ? `<h3>Vendor-level explanations</h3><ul>${vendor}</ul>` : ''}</section
 function figureSection(report: DailyReport): string {
   const f = report.figures;
   if (!f) return '';
-  const rows = f.shown.map((x) => {
-    const note = figureNote(x);
-    return [e(x.series_id), e(x.window), e(x.metric), x.value === null ? 'n/a' : e(x.value.toFixed(4)), String(x.observations), note ? `<span class="flag">${x.flagged_by.length ? '⚑ ' : ''}${e(note)}</span>` : ''];
-  });
+  const grid = figureGrid(f.shown);
+  const rows = grid.rows.map((r) => [e(r.series_id), e(r.window), ...r.cells.map((c) => (c.endsWith('⚑') ? `<span class="flag">${e(c)}</span>` : e(c))), `<span class="flag">${e(r.note)}</span>`]);
   const scope = f.complete ? 'every figure' : `the ${f.shown.length} figures that need a person (not computable, or an error-level finding in the window)`;
   return `<section id="figures"><h2>Risk figures at ${e(f.as_of)}</h2>
 <p>${f.computed} computed, ${f.not_computable} not computable, ${f.flagged} computed over a window holding an error-level finding (⚑). Shown: ${e(scope)}. All figures: <a href="${e(f.full_file)}">${e(f.full_file)}</a>.</p>
-${rows.length ? table(['series', 'window', 'metric', 'value', 'observations', 'note'], rows, new Set([3, 4])) : ''}</section>`;
+${rows.length ? table(['series', 'window', ...grid.metrics, 'note'], rows, new Set(grid.metrics.map((_, k) => k + 2))) : ''}</section>`;
 }
 
 function historySection(report: DailyReport): string {

@@ -149,3 +149,27 @@ export function ticketDates(r: TicketRecord): string {
   if (!r.start) return '';
   return r.end && r.end !== r.start ? `${r.start} to ${r.end}` : r.start;
 }
+
+export interface FigureGridRow {
+  readonly series_id: string;
+  readonly window: string;
+  /** One cell a metric: the value to four decimals, "n/a", or empty; flagged cells end with ⚑. */
+  readonly cells: readonly string[];
+  /** The row's reasons and flags, once each. */
+  readonly note: string;
+}
+
+/** The shown figures as a grid: a row per series and window, a column per metric, as a person reads them. */
+export function figureGrid(figures: readonly FlaggedFigure[]): { metrics: string[]; rows: FigureGridRow[] } {
+  const metrics = [...new Set(figures.map((f) => f.metric))];
+  const rows = new Map<string, { series_id: string; window: string; cells: string[]; notes: Set<string> }>();
+  for (const f of figures) {
+    const id = `${f.series_id}\u0000${f.window}`;
+    let row = rows.get(id);
+    if (!row) rows.set(id, (row = { series_id: f.series_id, window: f.window, cells: metrics.map(() => ''), notes: new Set() }));
+    row.cells[metrics.indexOf(f.metric)] = f.value === null ? 'n/a' : `${f.value.toFixed(4)}${f.flagged_by.length ? ' ⚑' : ''}`;
+    const note = f.value === null ? `n/a: ${f.reason ?? 'no reason given'}` : f.flagged_by.length ? `⚑ error-level finding in window: ${f.flagged_by.join(', ')}` : '';
+    if (note) row.notes.add(note);
+  }
+  return { metrics, rows: [...rows.values()].map((r) => ({ series_id: r.series_id, window: r.window, cells: r.cells, note: [...r.notes].join('; ') })) };
+}

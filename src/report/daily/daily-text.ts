@@ -1,7 +1,7 @@
 import { SEVERITIES } from '../../findings.js';
 import { csvLine, markdownText } from '../safe-text.js';
 import { cellText } from '../view.js';
-import { figureNote, findingsByCheck, headline, ticketDates, ticketsNeedingPerson, type DailyReport } from './daily-report.js';
+import { figureGrid, figureNote, findingsByCheck, headline, ticketDates, ticketsNeedingPerson, type DailyReport } from './daily-report.js';
 
 /**
  * The day's report as Markdown (for a chat or an e-mail) and as one long CSV table (for a
@@ -38,7 +38,8 @@ export function renderDailyMarkdown(report: DailyReport): string {
   const f = report.figures;
   if (f) {
     lines.push('', `## Risk figures at ${f.as_of}`, '', `${f.computed} computed, ${f.not_computable} not computable, ${f.flagged} over a window holding an error-level finding (⚑). All figures: ${md(f.full_file)}.`, '');
-    lines.push(...mdTable(['series', 'window', 'metric', 'value', 'note'], f.shown.slice(0, ROWS_SHOWN).map((x) => [x.series_id, x.window, x.metric, x.value === null ? 'n/a' : x.value.toFixed(4), (x.flagged_by.length ? '⚑ ' : '') + figureNote(x)])));
+    const grid = figureGrid(f.shown);
+    lines.push(...mdTable(['series', 'window', ...grid.metrics, 'note'], grid.rows.slice(0, ROWS_SHOWN).map((r) => [r.series_id, r.window, ...r.cells, r.note])));
   }
   lines.push('', `Rows read ${report.rows.read}: ${report.rows.accepted} accepted, ${report.rows.rejected} rejected. Charts are in report.html.`, '');
   return lines.join('\n');
