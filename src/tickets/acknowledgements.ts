@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { z } from 'zod';
 import { parseIsoDate } from '../calendar/days.js';
 import { parseYaml, validateYaml } from '../config/yaml-errors.js';
-import { InputError } from '../ingest/errors.js';
+import { ConfigError } from '../ingest/errors.js';
 
 /**
  * The acknowledgement file a team edits: a YAML list, one entry per ticket it knows about.
@@ -49,7 +49,7 @@ export function acknowledgementsFromYaml(text: string, file: string): Map<string
   const list = validateYaml(yaml, FileSchema);
   const byKey = new Map<string, Acknowledgement>();
   list.forEach((entry, index) => {
-    if (byKey.has(entry.key)) throw new InputError(`${file}, line ${yaml.lineOf([index, 'key'])}: the key "${entry.key}" is acknowledged twice; keep one entry.`);
+    if (byKey.has(entry.key)) throw new ConfigError(`${file}, line ${yaml.lineOf([index, 'key'])}: the key "${entry.key}" is acknowledged twice; keep one entry.`);
     byKey.set(entry.key, entry);
   });
   return byKey;

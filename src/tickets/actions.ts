@@ -25,7 +25,7 @@ export const TICKET_WORDING: Readonly<Record<string, TicketWording>> = {
   restated_value: { title: 'history changed since the last run', action: 'Confirm the restatement with the provider; recompute figures that used the old values.' },
   dropped_rows: { title: 'rows present last run are gone', action: 'Ask the provider whether the rows were withdrawn on purpose.' },
   benchmark_mismatch: { title: 'moves with another benchmark than the one mapped', action: 'Check the benchmark mapping in the master.' },
-  vendor_inconsistent: { title: "vendor's published figures contradict themselves", action: 'Ask the vendor to correct the published figures.' },
+  vendor_inconsistent: { title: "vendor's figures contradict themselves", action: 'Ask the vendor to correct the published figures.' },
   calendar_gap: { title: 'dates missing from a whole calendar', action: 'Add the holidays to the calendar, or ask the provider for the days.' },
   shared_stale_day: { title: 'many series stale from the same day', action: 'Ask the provider whether a price source stopped.' },
   feed_date_shift: { title: 'whole feed stamped on shifted dates', action: 'Ask the provider which valuation date the file carries.' },

@@ -16,7 +16,7 @@ export function renderDailyTerminal(report: DailyReport, style: TerminalStyle, f
   const paint = (code: string, text: string) => (style.colour ? `\u001b[${code}m${text}\u001b[0m` : text);
   const severityPaint: Record<string, string> = { critical: '1;31', error: '31', warning: '33', info: '2' };
   const lines: string[] = [];
-  lines.push(...wrap(`navassay daily run: ${report.feed}, as of ${report.as_of}${report.previous_as_of ? ` (previous run ${report.previous_as_of})` : ''}`));
+  lines.push(...wrap(`navassay run: ${report.feed}, as of ${report.as_of}${report.previous_as_of ? ` (previous ${report.previous_as_of})` : ''}`));
   lines.push(...wrap(headline(report)).map((l) => paint('1', l)));
   for (const notice of report.notices) lines.push(...wrap(`Note: ${notice}`));
   lines.push('');
