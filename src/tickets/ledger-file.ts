@@ -1,6 +1,6 @@
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
-import { join } from 'node:path';
-import { InputError } from '../ingest/errors.js';
+import { dirname, join } from 'node:path';
+import { ConfigError, InputError } from '../ingest/errors.js';
 import { renameDurably, writeFileDurably } from '../store/durable-files.js';
 import { emptyLedger, LEDGER_FORMAT, type TicketLedger } from './ledger.js';
 
@@ -13,8 +13,12 @@ import { emptyLedger, LEDGER_FORMAT, type TicketLedger } from './ledger.js';
  * flushed), so a crash leaves yesterday's ledger or today's, never half of one.
  */
 export function ledgerPath(storeDir: string, feed: string): string {
+  // A feed name is one plain directory name: nothing a configuration says can lead outside the store.
+  if (!FEED_NAME.test(feed)) throw new ConfigError(`feed name "${feed}" must start with a letter or digit and use only letters, digits, dot, dash or underscore; fix feed: in the run configuration.`);
   return join(storeDir, feed, 'tickets', 'ledger.json');
 }
+
+const FEED_NAME = /^[A-Za-z0-9][A-Za-z0-9._-]{0,127}$/;
 
 export function readLedger(storeDir: string, feed: string): TicketLedger {
   const path = ledgerPath(storeDir, feed);
@@ -31,7 +35,7 @@ export function readLedger(storeDir: string, feed: string): TicketLedger {
 
 export function writeLedger(storeDir: string, ledger: TicketLedger): string {
   const path = ledgerPath(storeDir, ledger.feed);
-  const directory = join(storeDir, ledger.feed, 'tickets');
+  const directory = dirname(path);
   mkdirSync(directory, { recursive: true });
   const temporary = join(directory, `.ledger.${process.pid}.tmp`);
   rmSync(temporary, { force: true });

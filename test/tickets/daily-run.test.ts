@@ -89,6 +89,21 @@ describe('the daily run carries tickets across days', () => {
   });
 });
 
+describe('a large run', () => {
+  it('writes no html or markdown table longer than 2000 rows: json and csv carry it, the report links them', async () => {
+    const dir = scratchDir();
+    const bad = Array.from({ length: 2100 }, (_, k) => `S1,not-a-date-${k},1`).join('\n');
+    writeFiles(dir, { 'nav.csv': navCsv({ zero: false }) + bad + '\n', 'run.yaml': config.replace('[json]', '[json, html, markdown, csv]') });
+    const run = await runCli('run', join(dir, 'run.yaml'), '--as-of', '2026-11-27', '--format', 'json');
+    expect(JSON.parse(run.stdout).summary.by_check.unparseable_row).toBe(2100);
+    expect(run.stderr).toContain('check has more than 2000 rows: written as json and csv only');
+    for (const name of ['check.json', 'check.csv', 'report.html', 'report.md']) expect(existsSync(join(dir, 'out', name)), name).toBe(true);
+    for (const name of ['check.html', 'check.md']) expect(existsSync(join(dir, 'out', name)), name).toBe(false);
+    // 2100 unreadable rows are one ticket, not 2100.
+    expect(ticketsOf(dir).filter((t) => t.key.startsWith('unparseable_row'))).toHaveLength(1);
+  });
+});
+
 describe('feed text stays inert in every output', () => {
   it('a series id carrying a spreadsheet formula or a script tag is neutralised in CSV, Markdown and HTML', async () => {
     const dir = scratchDir();

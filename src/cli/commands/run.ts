@@ -103,6 +103,8 @@ export async function executeRun(configPath: string, options: RunOptions, progre
   });
   notices.push(...tickets.notices);
   progress.stage('writing the reports …');
+  const tooLong = tablesTooLongToRead(config, check, metrics);
+  if (tooLong.length) notices.push(`${tooLong.join(' and ')} ${tooLong.length > 1 ? 'have' : 'has'} more than ${READABLE_TABLE_ROWS} rows: written as json and csv only; report.html shows what needs a person.`);
   const report = buildDailyReport({
     feed: config.feed,
     previousAsOf: tickets.previousAsOf,
@@ -114,7 +116,7 @@ export async function executeRun(configPath: string, options: RunOptions, progre
     charts: chartsOf(feed, tickets.records, findings, asOf),
     notices,
   });
-  const reportFiles = writeReports(config, check, metrics, feed, report);
+  const reportFiles = writeReports(config, check, metrics, feed, report, new Set(tooLong));
   progress.done();
   if (!options.quiet) for (const notice of notices) process.stderr.write(`navassay: ${notice}\n`);
   return { config, asOf, feed, check, metrics, report, reportFiles };
@@ -159,8 +161,21 @@ function chartsOf(feed: LoadedFeed, records: readonly TicketRecord[], findings: 
 }
 
 const EXTENSIONS: Record<OutputFormat, string> = { json: 'json', html: 'html', markdown: 'md', csv: 'csv', table: 'txt' };
+/**
+ * Above this many rows a table is not written as html, markdown or text: nobody reads a table
+ * that long in a browser, and the day's report shows what needs a person and links the csv.
+ */
+const READABLE_TABLE_ROWS = 2000;
+const FOR_READING: ReadonlySet<OutputFormat> = new Set(['html', 'markdown', 'table']);
 
-function writeReports(config: RunConfig, check: CheckAnswer, metrics: MetricsAnswer | null, feed: LoadedFeed, report: DailyReport): string[] {
+/** The per-command tables (check, metrics) too long to be read as html, markdown or text. */
+function tablesTooLongToRead(config: RunConfig, check: CheckAnswer, metrics: MetricsAnswer | null): string[] {
+  if (!config.output.formats.some((format) => FOR_READING.has(format))) return [];
+  const rows: Array<[string, number]> = [['check', check.findings.length], ['metrics', metrics?.metrics.length ?? 0]];
+  return rows.filter(([, count]) => count > READABLE_TABLE_ROWS).map(([name]) => name);
+}
+
+function writeReports(config: RunConfig, check: CheckAnswer, metrics: MetricsAnswer | null, feed: LoadedFeed, report: DailyReport, tooLong: ReadonlySet<string>): string[] {
   const written: string[] = [];
   const write = (name: string, text: string) => {
     const path = join(config.output.dir, name);
@@ -168,9 +183,12 @@ function writeReports(config: RunConfig, check: CheckAnswer, metrics: MetricsAns
     written.push(path);
   };
   for (const [name, text] of Object.entries(dailyFiles(report, metrics, check.findings))) write(name, text);
+  const writeTable = (name: string, format: OutputFormat, text: () => string) => {
+    if (!(FOR_READING.has(format) && tooLong.has(name))) write(`${name}.${EXTENSIONS[format]}`, text());
+  };
   for (const format of config.output.formats) {
-    write(`check.${EXTENSIONS[format]}`, render(format, check, checkView(check)));
-    if (metrics) write(`metrics.${EXTENSIONS[format]}`, render(format, metrics, metricsView(metrics)));
+    writeTable('check', format, () => render(format, check, checkView(check)));
+    if (metrics) writeTable('metrics', format, () => render(format, metrics, metricsView(metrics)));
   }
   const quarantine = join(config.output.dir, 'quarantine.csv');
   writeQuarantine(quarantine, feed.rejected);
