@@ -30,7 +30,7 @@ function dayNumber(iso: string): number {
 function yAxis(y: (v: number) => number, low: number, high: number): string {
   const ticks = [low, low + (high - low) / 3, low + (2 * (high - low)) / 3, high];
   return ticks
-    .map((t) => `<line x1="${PAD.left}" x2="${WIDTH - PAD.right}" y1="${n(y(t))}" y2="${n(y(t))}" stroke="#e5e5e5"/><text x="${PAD.left - 4}" y="${n(y(t) + 4)}" text-anchor="end" font-size="10">${t.toPrecision(4)}</text>`)
+    .map((t) => `<line x1="${PAD.left}" x2="${WIDTH - PAD.right}" y1="${n(y(t))}" y2="${n(y(t))}" stroke="#e5e5e5"/><text x="${PAD.left - 4}" y="${n(y(t) + 4)}" text-anchor="end" font-size="12">${Number(t.toPrecision(4))}</text>`)
     .join('');
 }
 
@@ -59,7 +59,7 @@ export function navChartSvg(chart: NavChart): string {
     }
   }
   const xLabels = [chart.points[0][0], chart.points[chart.points.length - 1][0]]
-    .map((d, i) => `<text x="${n(i === 0 ? PAD.left : WIDTH - PAD.right)}" y="${HEIGHT - 8}" text-anchor="${i === 0 ? 'start' : 'end'}" font-size="10">${d}</text>`)
+    .map((d, i) => `<text x="${n(i === 0 ? PAD.left : WIDTH - PAD.right)}" y="${HEIGHT - 8}" text-anchor="${i === 0 ? 'start' : 'end'}" font-size="12">${d}</text>`)
     .join('');
   const benchmark = chart.benchmark.length > 1 ? `<polyline class="benchmark" fill="none" stroke="${COLOURS.benchmark}" stroke-dasharray="4 3" stroke-width="1.2" points="${line(chart.benchmark)}"/>` : '';
   const title = `NAV of ${chart.series_id}${chart.benchmark_id && chart.benchmark.length > 1 ? ` with ${chart.benchmark_id} rebased (dashed)` : ''}; flagged dates in red`;
@@ -78,12 +78,12 @@ export function runCountsSvg(runs: readonly RunCounts[]): string {
       const x0 = PAD.left + i * slot + (slot - 3 * bar) / 2;
       const one = (value: number, k: number, colour: string, label: string) =>
         `<rect class="bar" x="${n(x0 + k * bar)}" y="${n(y(value))}" width="${n(bar)}" height="${n(y(0) - y(value))}" fill="${colour}"><title>${run.as_of}: ${value} ${label}</title></rect>`;
-      const date = shown.length <= 8 || i === 0 || i === shown.length - 1 ? `<text x="${n(x0 + 1.5 * bar)}" y="${HEIGHT - 8}" text-anchor="middle" font-size="10">${run.as_of}</text>` : '';
+      const date = shown.length <= 8 || i === 0 || i === shown.length - 1 ? `<text x="${n(x0 + 1.5 * bar)}" y="${HEIGHT - 8}" text-anchor="middle" font-size="12">${run.as_of}</text>` : '';
       return one(run.new, 0, COLOURS.new, 'new') + one(run.open + run.reopened, 1, COLOURS.open, 'open') + one(run.resolved, 2, COLOURS.resolved, 'resolved') + date;
     })
     .join('');
   const legend = [['new', COLOURS.new], ['open', COLOURS.open], ['resolved', COLOURS.resolved]]
-    .map(([label, colour], k) => `<rect x="${PAD.left + k * 80}" y="2" width="10" height="10" fill="${colour}"/><text x="${PAD.left + 14 + k * 80}" y="11" font-size="10">${label}</text>`)
+    .map(([label, colour], k) => `<rect x="${PAD.left + k * 80}" y="2" width="10" height="10" fill="${colour}"/><text x="${PAD.left + 14 + k * 80}" y="11" font-size="12">${label}</text>`)
     .join('');
   return frame('Tickets over the recent runs: new, open and resolved', `${yAxis(y, 0, high)}${bars}${legend}`);
 }
@@ -112,9 +112,9 @@ export function toleranceSvg(rows: readonly ToleranceRow[]): string {
       const cx = x(Math.max(-5, Math.min(5, units)));
       const cy = PAD.top + i * rowHeight + rowHeight / 2;
       const colour = row.status === 'breach' ? COLOURS.mark : row.status === 'rounding' ? '#b7950b' : COLOURS.resolved;
-      return `<text x="${left - 6}" y="${n(cy + 4)}" text-anchor="end" font-size="10">${escapeHtml(row.label)}</text><circle class="figure" cx="${n(cx)}" cy="${n(cy)}" r="4.5" fill="${colour}"><title>${escapeHtml(`${row.label}: vendor ${row.vendor}, computed ${row.computed}, tolerance ${row.tolerance} (${row.status})`)}</title></circle>`;
+      return `<text x="${left - 6}" y="${n(cy + 4)}" text-anchor="end" font-size="12">${escapeHtml(row.label)}</text><circle class="figure" cx="${n(cx)}" cy="${n(cy)}" r="4.5" fill="${colour}"><title>${escapeHtml(`${row.label}: vendor ${row.vendor}, computed ${row.computed}, tolerance ${row.tolerance} (${row.status})`)}</title></circle>`;
     })
     .join('');
-  const axis = [-5, -1, 0, 1, 5].map((t) => `<text x="${n(x(t))}" y="${height - 8}" text-anchor="middle" font-size="10">${t}</text>`).join('');
+  const axis = [-5, -1, 0, 1, 5].map((t) => `<text x="${n(x(t))}" y="${height - 8}" text-anchor="middle" font-size="12">${t}</text>`).join('');
   return frame('Vendor minus computed, in tolerances (green band: within tolerance)', band + dots + axis, height);
 }
