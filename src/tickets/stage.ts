@@ -1,3 +1,4 @@
+import { existsSync } from 'node:fs';
 import { formatIsoDate } from '../calendar/days.js';
 import type { Finding } from '../findings.js';
 import type { SeriesMasterRecord } from '../ingest/records.js';
@@ -45,6 +46,9 @@ export function ticketStage(input: TicketStageInput): TicketStageResult {
   const previousAsOf = ledger.runs.filter((run) => run.as_of < input.asOf).at(-1)?.as_of ?? null;
   const advance = advanceLedger(ledger, tickets, input.asOf, readAcknowledgements(input.acknowledgementsPath), input.now);
   const notices: string[] = [];
+  if (input.acknowledgementsPath !== undefined && !existsSync(input.acknowledgementsPath)) {
+    notices.push(`the acknowledgement file ${input.acknowledgementsPath} does not exist; no ticket is silenced (create it or fix acknowledgements: in the configuration).`);
+  }
   let ledgerFile: string | null = null;
   if (advance.backdated) {
     notices.push(`the ticket ledger already holds a later run (${ledger.runs.at(-1)!.as_of}); ticket states for ${input.asOf} are shown but not kept.`);

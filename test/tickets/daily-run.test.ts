@@ -47,6 +47,7 @@ describe('the daily run carries tickets across days', () => {
     const first = await runCli('run', join(dir, 'run.yaml'), '--as-of', '2026-11-27', '--format', 'json', '--quiet');
     expect(first.status).toBe(0);
     const zeroKey = 'non_positive_value|S2';
+    expect(first.stderr).toBe(''); // --quiet
     expect(ticketsOf(dir).find((t) => t.key === zeroKey)?.state).toBe('new');
 
     const second = await runCli('run', join(dir, 'run.yaml'), '--as-of', '2026-11-27', '--format', 'json');
@@ -56,6 +57,7 @@ describe('the daily run carries tickets across days', () => {
     // The same files again: the stored snapshot is kept, and the run says so.
     expect(second.stderr).toContain('the snapshot of 2026-11-27 stored at');
     expect(second.stderr).toContain('it was kept');
+    expect(second.stderr).toContain('the acknowledgement file'); // named in the configuration, not there yet
 
     writeFiles(dir, { 'nav.csv': navCsv({ zero: false }) });
     await runCli('run', join(dir, 'run.yaml'), '--as-of', '2026-11-30', '--format', 'json', '--quiet');
