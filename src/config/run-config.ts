@@ -48,6 +48,8 @@ export const RunConfigSchema = z
       .strict(),
     /** A previous NAV file to compare with; by default the store's latest earlier snapshot. */
     previous: z.string().min(1).optional(),
+    /** The acknowledgement file the team edits (YAML), relative to the configuration file. */
+    acknowledgements: z.string().min(1).optional(),
     profiles: z.record(z.string(), FeedProfileSchema).default({}),
     /** ISO weekdays that are not business days (6 = Saturday, 7 = Sunday). */
     weekend: z.array(z.number().int().min(1).max(7)).default([6, 7]),
@@ -113,6 +115,7 @@ export function loadRunConfig(path: string): RunConfig {
     profiles,
     store: at(file.store),
     previous: file.previous === undefined ? undefined : at(file.previous),
+    acknowledgements: file.acknowledgements === undefined ? undefined : at(file.acknowledgements),
     output: { ...file.output, dir: at(file.output.dir) },
   };
   checkOutputsApart(path, runInputs(config), runOutputFiles(config.output.dir, config.output.formats), [{ key: 'store', path: config.store }]);

@@ -33,6 +33,8 @@ export interface ReconcileSettings {
   readonly tolerances?: ToleranceSettings;
   /** Reconcile only the vendor's figures of this day (epoch day); all of them when absent. */
   readonly asOf?: number;
+  /** Reconcile only the vendor's figures dated on or before this day (epoch day): a daily run leaves out later ones. */
+  readonly through?: number;
 }
 
 export type Explanation = ConventionExplanation | DataExplanation;
@@ -75,7 +77,7 @@ export interface ReconcileSummary {
   /** Figures the vendor published that this data cannot support. */
   readonly unsupported_by_data: number;
   readonly vendor_patterns: readonly VendorPattern[];
-  /** Vendor figures of other days, left out by the as-of. */
+  /** Vendor figures of other days, left out by the as-of (or, in a daily run, dated after it). */
   readonly skipped: number;
 }
 
@@ -99,7 +101,9 @@ export function reconcile(inputs: ReconcileInputs, settings: ReconcileSettings):
     benchmarks: benchmarkIds(inputs.data),
     spanOf: memoized((asOf: number, window: string) => windowDaySpan(asOf, window, methodology.window_end)),
   };
-  const figures = inputs.vendor.filter((figure) => settings.asOf === undefined || figure.as_of === settings.asOf);
+  const figures = inputs.vendor.filter(
+    (figure) => (settings.asOf === undefined || figure.as_of === settings.asOf) && (settings.through === undefined || figure.as_of <= settings.through),
+  );
   const results = withSharedCausesFirst(figures.map((figure) => reconcileFigure(figure, context)));
   return {
     as_of: settings.asOf === undefined ? null : formatIsoDate(settings.asOf),

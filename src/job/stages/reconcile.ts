@@ -9,6 +9,8 @@ export interface ReconcileRequest {
   readonly tolerances?: ToleranceSettings;
   /** Reconcile only the vendor's figures of this epoch day; all of them when absent. */
   readonly asOf?: number;
+  /** Reconcile only the vendor's figures dated on or before this epoch day. */
+  readonly through?: number;
 }
 
 /**
