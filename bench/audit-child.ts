@@ -10,7 +10,6 @@
  * Each stage reports wall seconds and CPU seconds (user + system, every thread of the process):
  * on a shared machine the CPU figure is the steadier one.
  */
-import { existsSync } from 'node:fs';
 import { lastMonthEndOnOrBefore } from '../src/calendar/days.js';
 import { defaultThreads } from '../src/checks/parallel.js';
 import { loadRunConfig } from '../src/config/run-config.js';
@@ -19,6 +18,8 @@ import { loadDay } from '../src/job/day.js';
 import { answersStage } from '../src/job/stages/answers.js';
 import { checkStage } from '../src/job/stages/checks.js';
 import { metricsStage } from '../src/job/stages/metrics.js';
+import { reconcileStage } from '../src/job/stages/reconcile.js';
+import { ticketsStage } from '../src/job/stages/tickets.js';
 import { snapshotStage } from '../src/job/stages/snapshot.js';
 import { parseAsOf } from '../src/cli/options.js';
 
@@ -57,11 +58,19 @@ async function stage<T>(name: string, work: () => T | Promise<T>): Promise<T> {
 // The stages of the daily job (src/job/daily-job.ts), each timed on its own.
 const day = await stage('ingest', () => loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: { kind: 'store', store: config.store, feed: config.feed } }));
 const check = await stage('checks', () => checkStage(day, config.checks, { threads }));
-const metrics = await stage('metrics', () => metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology }));
-// The reconciliation stage (src/reconcile/) is timed once the project has it.
-if (!existsSync(new URL('../src/reconcile/', import.meta.url))) skipped.push('reconcile (no src/reconcile stage in this build)');
-await stage('store', () => snapshotStage(day, config));
-await stage('reports', () => answersStage(day, check, metrics, config.output));
+const metrics = await stage('metrics', () =>
+  metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology }, check.findings),
+);
+const reconciliation = await stage('reconcile', () =>
+  reconcileStage(day, check.findings, { methodology: config.methodology, tolerances: config.reconcile.tolerances, through: asOf }),
+);
+const tickets = await stage('tickets', () =>
+  ticketsStage(day, check.findings, reconciliation, { store: config.store, feed: config.feed, acknowledgements: config.acknowledgements }),
+);
+const snapshot = await stage('store', () => snapshotStage(day, { store: config.store, feed: config.feed, previous: config.previous }));
+await stage('reports', () =>
+  answersStage(day, { feed: config.feed, check, metrics, reconciliation, tickets, notices: snapshot.notices }, config.output),
+);
 stages.total = Number(process.hrtime.bigint() - started) / 1e9;
 const whole = process.cpuUsage();
 cpu.total = (whole.user + whole.system) / 1e6;

@@ -5,7 +5,10 @@
 export { loadFeed, loadPreviousNav, type FeedPaths, type FeedProfiles, type LoadedFeed, type LoadOptions } from './ingest/feed.js';
 export type { FeedProfile } from './ingest/profile.js';
 export { checkFeed, computeFigures, runDay, type CheckFeedOptions, type ComputeFiguresOptions, type RunDayOptions } from './library/api.js';
-export type { DailyRun, LaterStages, ReconciliationOutput, TicketsOutput } from './job/daily-job.js';
+export type { DailyRun, StageListener } from './job/daily-job.js';
+export type { TicketRecord } from './tickets/ticket.js';
+export type { DailyReport } from './report/daily/index.js';
+export type { ReconcileAnswer, ReconcileResult, ReconcileSummary } from './reconcile/reconcile.js';
 export type { Day, FigureSource } from './job/day.js';
 export type { DateInput } from './library/dates.js';
 export { NavassayError, ConfigError, InputError } from './ingest/errors.js';

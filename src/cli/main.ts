@@ -6,6 +6,7 @@ import { demoCommand } from './commands/demo.js';
 
 import { ingestCommand } from './commands/ingest.js';
 import { metricsCommand } from './commands/metrics.js';
+import { reconcileCommand } from './commands/reconcile.js';
 import { runCommand } from './commands/run.js';
 import { packageVersion } from './version.js';
 
@@ -16,7 +17,7 @@ export function buildProgram(): Command {
     .helpOption('--help', 'show help')
     .configureOutput({ outputError: parserErrorWriter('navassay --help') })
     .exitOverride();
-  for (const command of [demoCommand(), runCommand(), checkCommand(), metricsCommand(), ingestCommand()]) {
+  for (const command of [demoCommand(), runCommand(), checkCommand(), metricsCommand(), reconcileCommand(), ingestCommand()]) {
     command
       .version(packageVersion(), '--version', 'print the version')
       .helpOption('--help', 'show help')

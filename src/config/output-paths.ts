@@ -2,6 +2,7 @@ import { realpathSync, statSync } from 'node:fs';
 import { isAbsolute, join, relative, resolve } from 'node:path';
 import { ConfigError } from '../ingest/errors.js';
 import { onPseudoFileSystem } from '../ingest/input-file.js';
+import { DAILY_FILES } from '../report/daily/write-daily.js';
 import type { OutputFormat } from '../report/render.js';
 
 /**
@@ -21,19 +22,24 @@ export interface NamedPath {
 const REPORT_EXTENSIONS: Record<OutputFormat, string> = { json: 'json', html: 'html', markdown: 'md', csv: 'csv', table: 'txt' };
 
 /** The file a run's report of one kind and format is written to, inside `output.dir`. */
-export function reportFileName(report: 'check' | 'metrics', format: OutputFormat): string {
+export function reportFileName(report: 'check' | 'metrics' | 'reconcile', format: OutputFormat): string {
   return `${report}.${REPORT_EXTENSIONS[format]}`;
 }
 
 export const QUARANTINE_FILE = 'quarantine.csv';
 
-/** Every file a run writes into its output directory, each named by the key that decides it. */
+/**
+ * Every file a run writes into its output directory, each named by the key that decides it: the
+ * commands' answers, the day's report, tickets and figures (DAILY_FILES), and the quarantine.
+ */
 export function runOutputFiles(dir: string, formats: readonly OutputFormat[]): NamedPath[] {
   const files = formats.flatMap((format) => [
     { key: 'output.dir', path: join(dir, reportFileName('check', format)) },
     { key: 'output.dir', path: join(dir, reportFileName('metrics', format)) },
+    { key: 'output.dir', path: join(dir, reportFileName('reconcile', format)) },
   ]);
-  return [...files, { key: 'output.dir', path: join(dir, QUARANTINE_FILE) }];
+  const daily = Object.values(DAILY_FILES).map((name) => ({ key: 'output.dir', path: join(dir, name) }));
+  return [...files, ...daily, { key: 'output.dir', path: join(dir, QUARANTINE_FILE) }];
 }
 
 /**

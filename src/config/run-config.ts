@@ -11,6 +11,7 @@ import { FILE_KINDS, type FileKind } from '../ingest/schema.js';
 import { CheckSettingsSchema, type CheckSettings } from '../checks/settings.js';
 import { MethodologySchema } from '../metrics/methodology.js';
 import { isWindowLabel } from '../metrics/windows.js';
+import { ToleranceSettingsSchema } from '../reconcile/tolerances.js';
 import { OUTPUT_FORMATS } from '../report/render.js';
 import { checkOutputsApart, runOutputFiles, type NamedPath } from './output-paths.js';
 import { parseYaml, validateYaml, type LocatedYaml } from './yaml-errors.js';
@@ -47,11 +48,15 @@ export const RunConfigSchema = z
       .strict(),
     /** A previous NAV file to compare with; by default the store's latest earlier snapshot. */
     previous: z.string().min(1).optional(),
+    /** The acknowledgement file the team edits (YAML), relative to the configuration file. */
+    acknowledgements: z.string().min(1).optional(),
     profiles: z.record(z.string(), FeedProfileSchema).default({}),
     /** ISO weekdays that are not business days (6 = Saturday, 7 = Sunday). */
     weekend: z.array(z.number().int().min(1).max(7)).default([6, 7]),
     checks: CheckSettingsSchema.default({}),
     methodology: MethodologySchema.default(MethodologySchema.parse({})),
+    /** Reconciliation of the vendor file (files.vendor): tolerances per metric, category and series. */
+    reconcile: z.strictObject({ tolerances: ToleranceSettingsSchema.default({}) }).default({ tolerances: {} }),
     windows: z.array(z.string().refine(isWindowLabel, 'must be a window such as 1y, 3y or 6m')).min(1).default(['1y', '3y', '5y']),
     output: z
       .object({
@@ -112,6 +117,7 @@ export function loadRunConfig(path: string): RunConfig {
     profiles,
     store: at(file.store),
     previous: file.previous === undefined ? undefined : at(file.previous),
+    acknowledgements: file.acknowledgements === undefined ? undefined : at(file.acknowledgements),
     output: { ...file.output, dir: at(file.output.dir) },
   };
   checkOutputsApart(path, runInputs(config), runOutputFiles(config.output.dir, config.output.formats), [{ key: 'store', path: config.store }]);

@@ -219,7 +219,15 @@ function holidaysFile(holidays: Array<[string, number]>): string {
   return ['calendar,date', ...holidays.map(([name, day]) => `${name},${formatIsoDate(day)}`), ''].join('\n');
 }
 
-/** Today's and yesterday's feed files of the demo, by file name. */
+/** The business days the demo runs in order; the last is DEMO_AS_OF. */
+export const DEMO_DAYS = [epochDay(2026, 11, 26), DEMO_PREVIOUS_AS_OF, DEMO_AS_OF] as const;
+
+/**
+ * Today's and yesterday's feed files of the demo, by file name, and the NAV file of each earlier
+ * demo day under days/<date>/. Across the days some faults stay (open tickets), some appear
+ * (new), one is fixed (resolved: NVA0003's conflicting rows of 2026-11-25 are withdrawn on the
+ * last day) and one is acknowledged in acknowledgements.yaml (NVA0004's benchmark mapping).
+ */
 export function demoFiles(seed = 20261130): DemoFiles {
   const random = new SeededRandom(seed);
   const holidays = holidayRows();
@@ -237,16 +245,39 @@ export function demoFiles(seed = 20261130): DemoFiles {
     master: masterFile(),
     actions: actionsFile(),
   };
+  const [firstDay, secondDay] = DEMO_DAYS;
   return {
     'nav.csv': feed.nav,
     'nav-previous.csv': navFile(yesterdayPaths, DEMO_PREVIOUS_AS_OF, []),
+    [`days/${formatIsoDate(firstDay)}/nav.csv`]: navFile(yesterdayPaths, firstDay, earlierDayRows(yesterdayPaths, firstDay)),
+    [`days/${formatIsoDate(secondDay)}/nav.csv`]: navFile(yesterdayPaths, secondDay, earlierDayRows(yesterdayPaths, secondDay)),
     'benchmarks.csv': feed.benchmarks,
     'rates.csv': feed.rates,
     'master.csv': feed.master,
     'actions.csv': feed.actions,
     'holidays.csv': holidaysFile(holidays),
     'vendor-figures.csv': vendorFile(feed, DEMO_AS_OF),
+    'acknowledgements.yaml': acknowledgementsFile(),
   };
+}
+
+/** The faulty rows of an earlier demo day: a future-dated row and an unknown series all along, NVA0003's conflict until it is fixed. */
+function earlierDayRows(paths: Map<string, NavRow[]>, through: number): string[] {
+  const conflictDay = epochDay(2026, 11, 25);
+  const nav = paths.get('NVA0003')!.find((row) => row.day === conflictDay)!.nav;
+  const rows = [navLine('NVA0001', epochDay(2026, 12, 31), 130.5), navLine('NVA0099', epochDay(2026, 11, 26), 10.0), navLine('NVA0003', conflictDay, nav * 0.97)];
+  if (through >= DEMO_PREVIOUS_AS_OF) rows.push(navLine('NVA0099', DEMO_PREVIOUS_AS_OF, 10.0));
+  return rows;
+}
+
+function acknowledgementsFile(): string {
+  return `# Tickets the team knows about. Each entry silences its ticket through its expiry date.
+# An expired entry, or a ticket whose findings change, shows the ticket again (docs/tickets.md).
+- key: "benchmark_mismatch|NVA0004"
+  reason: the master maps the fund to the bond benchmark; the product team is correcting the mapping
+  who: data-ops (invented)
+  expires: 2026-12-31
+`;
 }
 
 /** Yesterday still had NVA0001's dropped row, and NVA0005's restated day held another value. */
@@ -260,21 +291,26 @@ function restoreForYesterday(yesterday: Map<string, NavRow[]>, today: Map<string
   bond[index] = { ...bond[index], nav: today.get('NVA0005')![index].nav * 0.996 };
 }
 
-/** The run configuration the demo writes beside its files. */
-export function demoConfig(): string {
-  return `# navassay run configuration for the invented Bramblecourt Funds demo.
+/**
+ * The run configuration of one demo day. The last day's is navassay.yaml beside the files; an
+ * earlier day's sits in days/<date>/ with its NAV file and reports into report/<date>/.
+ */
+export function demoConfig(day: number = DEMO_AS_OF): string {
+  const last = day === DEMO_AS_OF;
+  const up = last ? '' : '../../';
+  return `# navassay run configuration for the invented Bramblecourt Funds demo${last ? '' : `, business day ${formatIsoDate(day)}`}.
 feed: bramblecourt-daily
-as_of: ${formatIsoDate(DEMO_AS_OF)}
-store: store
+as_of: ${formatIsoDate(day)}
+store: ${up}store
 files:
   nav: nav.csv
-  benchmarks: { path: benchmarks.csv, profile: index-vendor }
-  master: master.csv
-  rates: rates.csv
-  holidays: holidays.csv
-  actions: actions.csv
-  vendor: vendor-figures.csv
-previous: nav-previous.csv
+  benchmarks: { path: ${up}benchmarks.csv, profile: index-vendor }
+  master: ${up}master.csv
+  rates: ${up}rates.csv
+  holidays: ${up}holidays.csv
+  actions: ${up}actions.csv
+  vendor: ${up}vendor-figures.csv
+acknowledgements: ${up}acknowledgements.yaml
 profiles:
   # The index vendor writes "Index Code;Value Date;Close" with day-first dates and decimal commas.
   index-vendor:
@@ -284,7 +320,7 @@ profiles:
     date_format: day-first
 windows: [1y, 3y, 5y]
 output:
-  dir: report
+  dir: ${last ? 'report' : `${up}report/${formatIsoDate(day)}`}
   formats: [json, html, markdown, csv]
 fail_on: none
 `;

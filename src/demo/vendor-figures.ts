@@ -16,7 +16,8 @@ import { figureInputs } from '../job/day.js';
  * - NVA0002's figures are written in percent, with unit `percent`;
  * - NVA0003's R² is written as a percentage but labelled `decimal`;
  * - NVA0007's Treynor ratio has the wrong sign;
- * - NVA0010's beta is delivered twice with two values.
+ * - NVA0010's beta is delivered twice with two values;
+ * - NVA0003 also has a 10-year standard deviation, which six years of history cannot support.
  */
 const PUBLISHED: readonly MetricId[] = ['return_annualized', 'std_dev', 'beta', 'alpha', 'r_squared', 'sharpe', 'sortino', 'treynor', 'max_drawdown'];
 const SERIES = ['NVA0001', 'NVA0002', 'NVA0003', 'NVA0005', 'NVA0007', 'NVA0010'];
@@ -37,6 +38,7 @@ interface DemoInputs {
 export function vendorFile(inputs: DemoInputs, asOf: number): string {
   const lines = ['series_id,as_of,window,metric,value,unit'];
   for (const figure of publishedFigures(inputs, asOf)) lines.push(...vendorLines(figure, formatIsoDate(asOf)));
+  lines.push(`NVA0003,${formatIsoDate(asOf)},10y,std_dev,0.1437,decimal`);
   return lines.join('\n') + '\n';
 }
 

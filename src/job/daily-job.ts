@@ -1,38 +1,26 @@
 import { lastMonthEndOnOrBefore } from '../calendar/days.js';
 import type { RunConfig } from '../config/run-config.js';
-import type { Finding } from '../findings.js';
 import type { LoadOptions } from '../ingest/feed.js';
 import { readLimits } from '../ingest/limits.js';
 import type { MetricsAnswer } from '../metrics/compute.js';
+import type { ReconcileAnswer } from '../reconcile/reconcile.js';
 import type { CheckAnswer } from '../report/check-answer.js';
+import type { DailyReport } from '../report/daily/index.js';
 import type { SnapshotRef } from '../store/index.js';
+import type { TicketStageResult } from '../tickets/stage.js';
 import { loadDay, type Day, type PreviousSource } from './day.js';
 import { answersStage } from './stages/answers.js';
 import { checkStage } from './stages/checks.js';
 import { metricsStage } from './stages/metrics.js';
+import { reconcileStage } from './stages/reconcile.js';
 import { snapshotStage } from './stages/snapshot.js';
+import { ticketsStage } from './stages/tickets.js';
 
 /**
  * The daily job: load → checks → metrics → reconcile → tickets → snapshot → answers. Each stage
  * takes the day (and what earlier stages produced) and returns typed output; commands only
  * parse options, call the job, render and set the exit status.
- *
- * Reconciliation (src/reconcile/) and tickets (src/tickets/) are not built yet. Their places
- * are the two optional stages below: a caller (and later the run command) plugs them in, and
- * their output types are tightened here when they land.
  */
-
-/** What reconciliation of the vendor's figures will produce (src/reconcile/, not built yet). */
-export type ReconciliationOutput = unknown;
-/** What carrying findings across days as tickets will produce (src/tickets/, not built yet). */
-export type TicketsOutput = unknown;
-
-export interface LaterStages {
-  /** Reconcile stage: the vendor's figures (day.feed.vendor) against ours, with day.figures.calculator. */
-  readonly reconcile?: (day: Day, figures: MetricsAnswer | null) => ReconciliationOutput;
-  /** Tickets stage: today's findings against the open tickets of earlier days. */
-  readonly tickets?: (day: Day, findings: readonly Finding[]) => TicketsOutput;
-}
 
 /** What one daily run produced, stage by stage. */
 export interface DailyRun {
@@ -40,22 +28,49 @@ export interface DailyRun {
   readonly day: Day;
   readonly check: CheckAnswer;
   readonly metrics: MetricsAnswer | null;
-  readonly reconciliation?: ReconciliationOutput;
-  readonly tickets?: TicketsOutput;
+  /** The vendor's figures reconciled; null when the configuration names no vendor file (or no benchmarks and master). */
+  readonly reconciliation: ReconcileAnswer | null;
+  readonly tickets: TicketStageResult;
   readonly snapshot: SnapshotRef;
+  /** The day's report, built from every stage; what `run` prints. */
+  readonly report: DailyReport;
   readonly reportFiles: readonly string[];
+  /** What a person should know about the run, in the order the stages said it. */
+  readonly notices: readonly string[];
 }
 
-export async function runDailyJob(config: RunConfig, asOf: number, later: LaterStages = {}): Promise<DailyRun> {
+/** Told as each long stage starts, for a progress line on a terminal. */
+export type StageListener = (text: string) => void;
+
+export async function runDailyJob(config: RunConfig, asOf: number, onStage: StageListener = () => {}): Promise<DailyRun> {
+  onStage('reading the feed …');
   const day = await loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: previousSourceOf(config) });
+  const series = day.feed.nav.ids.length;
+  onStage(`checking ${series} series, ${day.feed.rows.accepted} rows …`);
   const check = await checkStage(day, config.checks, { threads: config.threads });
+  onStage(`computing risk figures for ${series} series …`);
   // Risk figures stand at the last month-end on or before the as-of date.
-  const metrics = metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology });
-  const reconciliation = later.reconcile?.(day, metrics);
-  const tickets = later.tickets?.(day, check.findings);
-  const snapshot = snapshotStage(day, config);
-  const reportFiles = answersStage(day, check, metrics, config.output);
-  return { config, day, check, metrics, reconciliation, tickets, snapshot, reportFiles };
+  const metrics = metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology }, check.findings);
+  if (day.feed.vendor) onStage(`reconciling ${day.feed.vendor.length} vendor figures …`);
+  // A vendor figure dated after the day cannot be judged on the day's data: it waits for its own day.
+  const reconciliation = reconcileStage(day, check.findings, { methodology: config.methodology, tolerances: config.reconcile.tolerances, through: asOf });
+  onStage('carrying the tickets and storing the snapshot …');
+  const tickets = ticketsStage(day, check.findings, reconciliation, { store: config.store, feed: config.feed, acknowledgements: config.acknowledgements });
+  const snapshot = snapshotStage(day, { store: config.store, feed: config.feed, previous: config.previous });
+  onStage('writing the reports …');
+  const answers = answersStage(day, { feed: config.feed, check, metrics, reconciliation, tickets, notices: snapshot.notices }, config.output);
+  return {
+    config,
+    day,
+    check,
+    metrics,
+    reconciliation,
+    tickets,
+    snapshot: snapshot.ref,
+    report: answers.report,
+    reportFiles: answers.files,
+    notices: answers.report.notices,
+  };
 }
 
 /**

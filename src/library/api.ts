@@ -6,7 +6,7 @@ import { parseMethodology, type MethodologyInput } from '../metrics/methodology.
 import { checkAnswer, type CheckAnswer } from '../report/check-answer.js';
 import { loadRunConfig } from '../config/run-config.js';
 import { ConfigError } from '../ingest/errors.js';
-import { runDailyJob, type DailyRun, type LaterStages } from '../job/daily-job.js';
+import { runDailyJob, type DailyRun } from '../job/daily-job.js';
 import { figureInputs } from '../job/day.js';
 import type { SeriesFrame } from '../series/frame.js';
 import { epochDayOf, type DateInput } from './dates.js';
@@ -58,17 +58,16 @@ export function computeFigures(feed: LoadedFeed, options: ComputeFiguresOptions)
 export interface RunDayOptions {
   /** The as-of date; default the configuration's `as_of`. */
   readonly asOf?: DateInput;
-  /** Where reconciliation and tickets will plug in (not built yet). */
-  readonly stages?: LaterStages;
 }
 
 /**
  * The whole daily job from a run configuration, as `navassay run` does it: load, checks, risk
- * figures, the snapshot stored and the reports written. Returns each stage's output.
+ * figures, reconciliation (with a vendor file), tickets, the snapshot stored and the day's
+ * report written. Returns each stage's output.
  */
 export async function runDay(configPath: string, options: RunDayOptions = {}): Promise<DailyRun> {
   const config = loadRunConfig(configPath);
   const asOf = options.asOf ?? config.as_of;
   if (asOf === undefined) throw new ConfigError(`${configPath} has no as_of; pass asOf as a YYYY-MM-DD string or a Date.`);
-  return runDailyJob(config, epochDayOf(asOf), options.stages);
+  return runDailyJob(config, epochDayOf(asOf));
 }

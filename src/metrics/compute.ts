@@ -35,6 +35,8 @@ export interface MetricRow {
   readonly value: number | null;
   readonly observations: number;
   readonly reason?: string;
+  /** Keys of the error-level findings in the figure's window (src/reconcile/suspect-data.ts); absent on clean data. */
+  readonly suspect_data?: readonly string[];
 }
 
 /** The whole `metrics --format json` answer. */

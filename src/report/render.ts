@@ -1,5 +1,8 @@
 import Table from 'cli-table3';
+import { csvCell, escapeHtml, markdownText } from './safe-text.js';
 import { CAUTION, cellText, isEmpty, type Cell, type ReportSection, type ReportView } from './view.js';
+
+export { escapeHtml };
 
 /** Text that reads as a number (right-aligned in html). */
 const NUMBER_TEXT = /^-?\d+(\.\d+)?(e-?\d+)?$/;
@@ -55,12 +58,8 @@ function fitColumns(columns: readonly string[], cells: readonly string[][], widt
 export function renderCsv(view: ReportView): string {
   const section = view.csv ?? view.sections[0];
   const lines = [section.columns.map(csvCell).join(',')];
-  for (const row of section.rows) lines.push(row.map((value) => csvCell(cellText(value))).join(','));
+  for (const row of section.rows) lines.push(row.map((value) => csvCell(typeof value === 'number' ? value : cellText(value))).join(','));
   return lines.join('\n') + '\n';
-}
-
-function csvCell(text: string): string {
-  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
 }
 
 export function renderMarkdown(view: ReportView): string {
@@ -71,7 +70,7 @@ export function renderMarkdown(view: ReportView): string {
 }
 
 function markdownSection(section: ReportSection): string[] {
-  const escape = (text: string) => text.replace(/\|/g, '\\|').replace(/\r?\n/g, ' ');
+  const escape = markdownText;
   const lines = section.heading ? [`## ${section.heading}`, ''] : [];
   lines.push(`| ${section.columns.map(escape).join(' | ')} |`, `|${section.columns.map(() => ' --- ').join('|')}|`);
   for (const row of section.rows) lines.push(`| ${row.map((value) => escape(cellText(value))).join(' | ')} |`);
@@ -115,6 +114,3 @@ function htmlSection(section: ReportSection): string {
   return `${heading}<table>\n<thead><tr>${head}</tr></thead>\n<tbody>\n${body}\n</tbody>\n</table>`;
 }
 
-export function escapeHtml(text: string): string {
-  return text.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
-}

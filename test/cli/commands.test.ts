@@ -6,7 +6,7 @@ import { runCli, scratchDir, writeFiles } from './run-cli.js';
 const NAV = ['series_id,date,nav', 'NVA0001,2026-11-23,100', 'NVA0001,2026-11-24,101', 'NVA0001,2026-11-25,102', ''].join('\n');
 
 describe('every command answers --help and --version', () => {
-  for (const command of ['demo', 'run', 'check', 'metrics', 'ingest']) {
+  for (const command of ['demo', 'run', 'check', 'metrics', 'reconcile', 'ingest']) {
     it(`${command} --help prints its usage and exits 0`, async () => {
       const { status, stdout } = await runCli(command, '--help');
       expect(status).toBe(0);

@@ -22,7 +22,9 @@ export async function goldenAnswers(): Promise<Record<string, string>> {
   const dir = scratchDir();
   const at = (name: string) => join(dir, name);
   // The scratch directory, absolute or relative to the working directory, reads <dir>.
-  const placed = (text: string) => text.split(dir).join('<dir>').replace(/(?:\.\.\/)*\.\.<dir>/g, '<dir>');
+  // The times a snapshot or a ticket run was stored read <time>: it is the clock's, not the code's.
+  const placed = (text: string) =>
+    text.split(dir).join('<dir>').replace(/(?:\.\.\/)*\.\.<dir>/g, '<dir>').replace(/(stored at |"recorded_at": ")\d{4}-\d\d-\d\dT[\d:.]+Z/g, '$1<time>');
   const record = async (name: string, ...argv: string[]) => {
     const { status, stdout, stderr } = await runCli(...argv);
     answers[name] = placed(`status ${status}\n--- stderr\n${stderr}--- stdout\n${stdout}`);

@@ -9,7 +9,6 @@ import { parseIsoDate } from '../../src/calendar/days.js';
 import { loadRunConfig } from '../../src/config/run-config.js';
 import { computeFigures, loadFeed, runDay } from '../../src/index.js';
 import { runDailyJob } from '../../src/job/daily-job.js';
-import type { Day } from '../../src/job/day.js';
 import { readManifest } from '../../src/store/index.js';
 import { scratchDir } from '../cli/run-cli.js';
 
@@ -17,7 +16,7 @@ const sha256 = (bytes: Buffer) => createHash('sha256').update(bytes).digest('hex
 
 describe('the daily job', () => {
   const dir = scratchDir();
-  const configPath = writeDemo(dir);
+  const configPath = writeDemo(dir).at(-1)!;
 
   it("records each source's SHA-256 from the bytes it parsed, and the snapshot's manifest carries it", async () => {
     const run = await runDay(configPath, { asOf: '2026-11-30' });
@@ -30,25 +29,19 @@ describe('the daily job', () => {
     }
   });
 
-  it('runs reconcile and tickets, when given, between metrics and snapshot, each with the day', async () => {
-    const seen: string[] = [];
+  it('reconciles every vendor figure, and raises tickets from the findings and the breaches', async () => {
+    const stages: string[] = [];
     const config = loadRunConfig(configPath);
-    const run = await runDailyJob(config, parseIsoDate('2026-11-30')!, {
-      reconcile: (day: Day, figures) => {
-        seen.push(`reconcile ${day.feed.vendor?.length ?? 0} vendor rows, ${figures?.metrics.length ?? 0} figures, calculator ${day.figures !== undefined}`);
-        return 'reconciled';
-      },
-      tickets: (_day, findings) => {
-        seen.push(`tickets ${findings.length}`);
-        return 'ticketed';
-      },
-    });
-    expect(run.reconciliation).toBe('reconciled');
-    expect(run.tickets).toBe('ticketed');
-    expect(seen).toEqual([
-      `reconcile ${run.day.feed.vendor!.length} vendor rows, ${run.metrics!.metrics.length} figures, calculator true`,
-      `tickets ${run.check.findings.length}`,
-    ]);
+    const run = await runDailyJob(config, parseIsoDate('2026-11-30')!, (text) => stages.push(text.split(' ')[0]));
+    expect(stages).toEqual(['reading', 'checking', 'computing', 'reconciling', 'carrying', 'writing']);
+    // The demo configuration names a vendor file: each of its figures gets exactly one result.
+    expect(run.reconciliation!.results).toHaveLength(run.day.feed.vendor!.length);
+    const breaches = new Set(run.reconciliation!.results.filter((result) => result.status === 'breach').map((result) => result.series_id));
+    const breachTickets = run.tickets.records.filter((record) => record.check === 'reconcile_breach');
+    expect(new Set(breachTickets.flatMap((record) => record.series_ids))).toEqual(breaches);
+    // One vendor-level ticket per shared cause the reconciliation found.
+    expect(run.tickets.records.filter((record) => record.check === 'vendor_explanation')).toHaveLength(run.reconciliation!.summary.vendor_patterns.length);
+    expect(run.report.reconciliation!.results).toHaveLength(run.reconciliation!.results.length);
   });
 
   it('gives library callers of the risk figures NAVs adjusted for corporate actions, as the commands', async () => {

@@ -2,6 +2,7 @@ import { Command, Option } from 'commander';
 import { lastMonthEndOnOrBefore, todayEpochDay } from '../../calendar/days.js';
 import { ConfigError } from '../../ingest/errors.js';
 import { loadDay } from '../../job/day.js';
+import { checkStage } from '../../job/stages/checks.js';
 import { metricsStage } from '../../job/stages/metrics.js';
 import { DEFAULT_METHODOLOGY, MethodologyChangesSchema, withChanges, type Methodology, type MethodologyChanges } from '../../metrics/methodology.js';
 import { loadRunConfig } from '../../config/run-config.js';
@@ -56,7 +57,9 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   printNotices(annualizationNotices(methodology));
   const paths = { nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions };
   const day = await loadDay({ paths, asOf, load: loadOptionsOf(config, asOf), constantRate });
-  const answer = metricsStage(day, { asOf, windows, methodology })!; // benchmarks and master are required options
+  // A figure whose window holds an error-level finding of the checks carries the finding keys.
+  const findings = (await checkStage(day, config?.checks)).findings;
+  const answer = metricsStage(day, { asOf, windows, methodology }, findings)!; // benchmarks and master are required options
   emit(render(chosenFormat(options.format), answer, metricsView(answer)), options.out);
   return 0;
 }
@@ -71,7 +74,7 @@ function collect(value: string, previous: string[]): string[] {
  * The configured (or default) methodology with the --set changes applied. With neither a rate
  * file nor a constant rate, a methodology that wants the master's rate series uses none.
  */
-function chosenMethodology(base: Methodology, settings: readonly string[], rateGiven: boolean): Methodology {
+export function chosenMethodology(base: Methodology, settings: readonly string[], rateGiven: boolean): Methodology {
   const changes = parseSettings(settings);
   const methodology = withChanges(base, changes);
   return !rateGiven && methodology.risk_free.source === 'series' ? { ...methodology, risk_free: { source: 'none' } } : methodology;
@@ -119,7 +122,7 @@ export function parseWindowList(text: string): string[] {
   return windows;
 }
 
-function parseRate(text: string): number {
+export function parseRate(text: string): number {
   const rate = Number(text);
   if (text.trim() === '' || !Number.isFinite(rate) || Math.abs(rate) >= 1) {
     throw new ConfigError(`--rf "${text}" is not an annual rate as a decimal; write 0.02 for 2 %.`);

@@ -2,13 +2,16 @@ import { Command } from 'commander';
 import { checkOutputsApart } from '../../config/output-paths.js';
 import { loadRunConfig, runInputs } from '../../config/run-config.js';
 import { runDailyJob } from '../../job/daily-job.js';
-import { checkView, failsOn } from '../../report/check-answer.js';
-import { metricsView } from '../../report/metrics-answer.js';
-import { render } from '../../report/render.js';
+import { join } from 'node:path';
+import { failsOn } from '../../report/check-answer.js';
+import { DAILY_FILES, renderDailyCsv, renderDailyHtml, renderDailyMarkdown, renderDailyTerminal, type DailyReport } from '../../report/daily/index.js';
+import type { OutputFormat } from '../../report/render.js';
 import { requireDirectoryLocation, requireFileLocation } from '../locations.js';
 import { annualizationNotices, printNotices, unknownSeriesNotices } from '../notices.js';
 import { asOfOption, chosenFormat, failOnOption, formatOption, outOption, parseAsOf, parseFailOn, parseThreads, threadsOption } from '../options.js';
 import { emit } from '../output.js';
+import { colourWanted, progressLine } from '../progress.js';
+import { reconcileFailsOn } from './reconcile.js';
 
 interface RunOptions {
   asOf?: string;
@@ -16,17 +19,19 @@ interface RunOptions {
   out?: string;
   failOn?: string;
   threads?: string;
+  quiet?: boolean;
 }
 
 export function runCommand(): Command {
   return new Command('run')
-    .description("the daily job from a run configuration: read the feed, check it, recompute risk figures, store the snapshot, write the reports")
+    .description("the daily job from a run configuration: read the feed, check it, recompute risk figures, reconcile the vendor's, carry the tickets, store the snapshot, write the day's report")
     .argument('<config>', 'run configuration (YAML)')
     .addOption(asOfOption("the configuration's as_of, else today"))
     .addOption(formatOption())
     .addOption(outOption())
     .addOption(failOnOption().default(undefined))
     .addOption(threadsOption())
+    .option('--quiet', 'no progress line and no notes on standard error')
     .action(async (configPath: string, options: RunOptions) => {
       process.exitCode = await runCommandLine(configPath, options);
     });
@@ -45,15 +50,32 @@ export async function runCommandLine(configPath: string, options: RunOptions): P
     requireFileLocation(options.out, '--out');
     checkOutputsApart('--out', runInputs(config), [{ key: '--out', path: options.out }]);
   }
-  printNotices(annualizationNotices(config.methodology));
+  const quiet = options.quiet === true;
+  if (!quiet) printNotices(annualizationNotices(config.methodology));
 
-  const run = await runDailyJob(config, asOf);
+  const progress = progressLine(quiet);
+  const run = await runDailyJob(config, asOf, (text) => progress.stage(text));
+  progress.done();
 
-  printNotices(unknownSeriesNotices(config.checks, run.day.feed));
-  const format = chosenFormat(options.format);
-  let text = render(format, run.check, checkView(run.check));
-  if (format === 'table' && run.metrics) text += '\n' + render(format, run.metrics, metricsView(run.metrics));
-  emit(text, options.out);
-  process.stderr.write(`navassay: reports written to ${config.output.dir} (${run.reportFiles.length} files); snapshot stored in ${config.store}\n`);
-  return failsOn(run.check.findings, failOn) ? 1 : 0;
+  if (!quiet) printNotices([...unknownSeriesNotices(config.checks, run.day.feed), ...run.notices]);
+  emit(renderDay(chosenFormat(options.format), run.report, config.output.dir), options.out);
+  if (!quiet) process.stderr.write(`navassay: reports written to ${config.output.dir} (${run.reportFiles.length} files); snapshot stored in ${config.store}\n`);
+  const reconcileFails = run.reconciliation !== null && reconcileFailsOn(run.reconciliation, failOn);
+  return failsOn(run.check.findings, failOn) || reconcileFails ? 1 : 0;
+}
+
+/** The whole day on standard output, in the chosen format: the day's report. */
+function renderDay(format: OutputFormat, report: DailyReport, outputDir: string): string {
+  switch (format) {
+    case 'json':
+      return JSON.stringify(report, null, 2) + '\n';
+    case 'html':
+      return renderDailyHtml(report);
+    case 'markdown':
+      return renderDailyMarkdown(report);
+    case 'csv':
+      return renderDailyCsv(report);
+    case 'table':
+      return renderDailyTerminal(report, { colour: colourWanted() }, [join(outputDir, DAILY_FILES.html)]);
+  }
 }

@@ -1,31 +1,120 @@
 import { join } from 'node:path';
 import { QUARANTINE_FILE, reportFileName } from '../../config/output-paths.js';
-import { writeFileAtomically, writeQuarantine } from '../../report/files.js';
+import type { Finding } from '../../findings.js';
 import type { MetricsAnswer } from '../../metrics/compute.js';
+import type { ReconcileAnswer } from '../../reconcile/reconcile.js';
 import { checkView, type CheckAnswer } from '../../report/check-answer.js';
+import { buildDailyReport, dailyFiles, navChart, type DailyReport, type NavChart } from '../../report/daily/index.js';
+import { writeFileAtomically, writeQuarantine } from '../../report/files.js';
 import { metricsView } from '../../report/metrics-answer.js';
+import { reconcileView } from '../../report/reconcile-answer.js';
 import { render, type OutputFormat } from '../../report/render.js';
+import type { TicketStageResult } from '../../tickets/stage.js';
+import type { TicketRecord } from '../../tickets/ticket.js';
 import type { Day } from '../day.js';
+import { reconciliationForTickets } from './tickets.js';
 
 export interface ReportPlace {
   readonly dir: string;
   readonly formats: readonly OutputFormat[];
 }
 
-/** The answers stage: each report in each configured format, and the quarantine; returns the paths written. */
-export function answersStage(day: Day, check: CheckAnswer, metrics: MetricsAnswer | null, place: ReportPlace): string[] {
+/** What the earlier stages answered, for the answers stage to report. */
+export interface StageAnswers {
+  readonly feed: string;
+  readonly check: CheckAnswer;
+  readonly metrics: MetricsAnswer | null;
+  readonly reconciliation: ReconcileAnswer | null;
+  readonly tickets: TicketStageResult;
+  /** What a person should know about the run (snapshot re-runs, pinned previous file, ledger …). */
+  readonly notices: readonly string[];
+}
+
+export interface WrittenAnswers {
+  readonly report: DailyReport;
+  /** Every path written. */
+  readonly files: readonly string[];
+  /** Notices of the answers stage itself (tables too long to be read, left out of html and markdown). */
+  readonly notices: readonly string[];
+}
+
+/**
+ * The answers stage: the day's report built from every stage (report.html, .md, .csv, .json,
+ * tickets.jsonl and .csv, figures.csv), each command's answer in each configured format
+ * (check.*, metrics.*, reconcile.*), and the quarantine.
+ */
+export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace): WrittenAnswers {
+  const { check, metrics, reconciliation, tickets } = answers;
+  const tooLong = tablesTooLongToRead(place, check, metrics, reconciliation);
+  const notices = tooLong.length
+    ? [`${tooLong.join(' and ')} ${tooLong.length > 1 ? 'have' : 'has'} more than ${READABLE_TABLE_ROWS} rows: written as json and csv only; report.html shows what needs a person.`]
+    : [];
+  const report = buildDailyReport({
+    feed: answers.feed,
+    previousAsOf: tickets.previousAsOf,
+    check,
+    patterns: tickets.patterns,
+    tickets: tickets.records,
+    history: tickets.history,
+    metrics,
+    reconciliation: reconciliation && reconciliationForTickets(reconciliation),
+    charts: chartsOf(day, tickets.records, check.findings),
+    notices: [...answers.notices, ...tickets.notices, ...notices],
+  });
   const written: string[] = [];
   const write = (name: string, text: string) => {
     const path = join(place.dir, name);
     writeFileAtomically(path, text);
     written.push(path);
   };
+  for (const [name, text] of Object.entries(dailyFiles(report, metrics, check.findings))) write(name, text);
+  const writeTable = (name: CommandAnswer, format: OutputFormat, text: () => string) => {
+    if (!(FOR_READING.has(format) && tooLong.includes(name))) write(reportFileName(name, format), text());
+  };
   for (const format of place.formats) {
-    write(reportFileName('check', format), render(format, check, checkView(check)));
-    if (metrics) write(reportFileName('metrics', format), render(format, metrics, metricsView(metrics)));
+    writeTable('check', format, () => render(format, check, checkView(check)));
+    if (metrics) writeTable('metrics', format, () => render(format, metrics, metricsView(metrics)));
+    if (reconciliation) writeTable('reconcile', format, () => render(format, reconciliation, reconcileView(reconciliation)));
   }
   const quarantine = join(place.dir, QUARANTINE_FILE);
   writeQuarantine(quarantine, day.feed.rejected);
   written.push(quarantine);
-  return written;
+  return { report, files: written, notices };
+}
+
+type CommandAnswer = 'check' | 'metrics' | 'reconcile';
+
+/**
+ * Above this many rows a table is not written as html, markdown or text: nobody reads a table
+ * that long in a browser, and the day's report shows what needs a person and links the csv.
+ */
+const READABLE_TABLE_ROWS = 2000;
+const FOR_READING: ReadonlySet<OutputFormat> = new Set(['html', 'markdown', 'table']);
+
+/** The per-command tables too long to be read as html, markdown or text. */
+function tablesTooLongToRead(place: ReportPlace, check: CheckAnswer, metrics: MetricsAnswer | null, reconciliation: ReconcileAnswer | null): CommandAnswer[] {
+  if (!place.formats.some((format) => FOR_READING.has(format))) return [];
+  const rows: Array<[CommandAnswer, number]> = [
+    ['check', check.findings.length],
+    ['metrics', metrics?.metrics.length ?? 0],
+    ['reconcile', reconciliation?.results.length ?? 0],
+  ];
+  return rows.filter(([, count]) => count > READABLE_TABLE_ROWS).map(([name]) => name);
+}
+
+/** Charts for the series of the worst tickets that need a person. */
+const CHARTS_AT_MOST = 12;
+
+function chartsOf(day: Day, records: readonly TicketRecord[], findings: readonly Finding[]): NavChart[] {
+  const { nav, benchmarks, master } = day.feed;
+  const benchmarkOf = new Map((master ?? []).map((record) => [record.series_id, record.benchmark_id]));
+  const wanted: string[] = [];
+  for (const record of records) {
+    if (record.state === 'resolved' || record.silenced || record.kind !== 'series') continue;
+    for (const id of record.series_ids) if (!wanted.includes(id)) wanted.push(id);
+  }
+  return wanted
+    .map((id) => navChart(nav, benchmarks, id, benchmarkOf.get(id) ?? null, findings, day.asOf))
+    .filter((chart): chart is NavChart => chart !== null)
+    .slice(0, CHARTS_AT_MOST);
 }

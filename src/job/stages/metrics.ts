@@ -1,5 +1,7 @@
+import type { Finding } from '../../findings.js';
 import { computeMetrics, type MetricsAnswer } from '../../metrics/compute.js';
 import type { Methodology } from '../../metrics/methodology.js';
+import { markSuspectFigures } from '../../reconcile/suspect-data.js';
 import type { Day } from '../day.js';
 
 export interface FigureRequest {
@@ -9,8 +11,13 @@ export interface FigureRequest {
   readonly methodology: Methodology;
 }
 
-/** The metrics stage: every figure on the day's adjusted NAVs; null when the day has no benchmarks or master. */
-export function metricsStage(day: Day, request: FigureRequest): MetricsAnswer | null {
+/**
+ * The metrics stage: every figure on the day's adjusted NAVs; null when the day has no
+ * benchmarks or master. Given the check stage's findings, a figure whose window holds an
+ * error-level finding carries their keys as `suspect_data`.
+ */
+export function metricsStage(day: Day, request: FigureRequest, findings: readonly Finding[] = []): MetricsAnswer | null {
   if (!day.figures) return null;
-  return computeMetrics({ ...day.figures.inputs, ...request }, day.figures.calculator);
+  const answer = computeMetrics({ ...day.figures.inputs, ...request }, day.figures.calculator);
+  return markSuspectFigures(answer, findings, day.figures.inputs.master);
 }

@@ -1,0 +1,22 @@
+import type { VendorFigureRecord } from '../ingest/records.js';
+
+/**
+ * The precision a vendor printed, read from the figure's raw text: half a unit of the last
+ * printed digit, as a decimal. `0.1412` (four decimals) is ±0.00005; `14.12` in percent is
+ * ±0.005 % = ±0.00005; `14.1%` is ±0.05 % = ±0.0005; `1.2e-3` is ±0.00005.
+ * A figure that differs from navassay's by no more than this may be honest rounding.
+ */
+export function halfUnitOfPrinted(figure: Pick<VendorFigureRecord, 'raw_value' | 'unit'>): number {
+  const text = figure.raw_value.trim();
+  const inPercent = figure.unit === 'percent' || text.includes('%');
+  // 5 / 10^(d + 1) rather than 10^−d / 2, so that four decimals give 0.00005 exactly as printed.
+  return 5 / 10 ** (printedDecimals(text) + 1 + (inPercent ? 2 : 0));
+}
+
+/** Digits after the decimal separator (a point or a comma), less the exponent when there is one. */
+export function printedDecimals(text: string): number {
+  const match = /^[^\deE]*[\d\s'.,]*?(?:[.,](\d+))?\s*(?:[eE]([+-]?\d+))?\s*%?\s*$/.exec(text.trim());
+  const fraction = match?.[1]?.length ?? 0;
+  const exponent = match?.[2] === undefined ? 0 : Number(match[2]);
+  return fraction - exponent;
+}

@@ -1,0 +1,47 @@
+import { join } from 'node:path';
+import { csvLine } from '../safe-text.js';
+import { ticketsToCsv, ticketsToJsonLines } from '../../tickets/export.js';
+import type { MetricsAnswer } from '../../metrics/compute.js';
+import type { Finding } from '../../findings.js';
+import { flagFigures } from './figure-flags.js';
+import { renderDailyHtml } from './daily-html.js';
+import { renderDailyCsv, renderDailyMarkdown } from './daily-text.js';
+import type { DailyReport } from './daily-report.js';
+
+/** Names of the day's files in the output directory. */
+export const DAILY_FILES = {
+  html: 'report.html',
+  markdown: 'report.md',
+  csv: 'report.csv',
+  json: 'report.json',
+  ticketsJsonLines: 'tickets.jsonl',
+  ticketsCsv: 'tickets.csv',
+  figures: 'figures.csv',
+} as const;
+
+/** The day's files, by name, ready for the caller to write where it writes reports. */
+export function dailyFiles(report: DailyReport, metrics: MetricsAnswer | null, findings: readonly Finding[]): Record<string, string> {
+  const files: Record<string, string> = {
+    [DAILY_FILES.html]: renderDailyHtml(report),
+    [DAILY_FILES.markdown]: renderDailyMarkdown(report),
+    [DAILY_FILES.csv]: renderDailyCsv(report),
+    [DAILY_FILES.json]: JSON.stringify(report, null, 1) + '\n',
+    [DAILY_FILES.ticketsJsonLines]: ticketsToJsonLines(report.tickets.records),
+    [DAILY_FILES.ticketsCsv]: ticketsToCsv(report.tickets.records),
+  };
+  if (metrics) files[DAILY_FILES.figures] = figuresCsv(metrics, findings);
+  return files;
+}
+
+/** Every figure, flat, with the flag of an error-level finding in its window: the file the report links. */
+export function figuresCsv(metrics: MetricsAnswer, findings: readonly Finding[]): string {
+  const lines = [csvLine(['series_id', 'window', 'metric', 'value', 'observations', 'reason', 'flagged_by'])];
+  for (const f of flagFigures(metrics, findings)) {
+    lines.push(csvLine([f.series_id, f.window, f.metric, f.value, f.observations, f.reason ?? null, f.flagged_by.join(' ')]));
+  }
+  return lines.join('\n') + '\n';
+}
+
+export function dailyPaths(dir: string): Record<keyof typeof DAILY_FILES, string> {
+  return Object.fromEntries(Object.entries(DAILY_FILES).map(([k, name]) => [k, join(dir, name)])) as Record<keyof typeof DAILY_FILES, string>;
+}

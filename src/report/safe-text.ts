@@ -1,0 +1,40 @@
+/**
+ * Text from a feed (ids, names, categories, vendor values) reaches spreadsheets, chat windows
+ * and browsers. These are the only ways it is written into them, so none of it can act:
+ * no formula in a spreadsheet, no markup or link in Markdown, no element in HTML.
+ */
+
+/** Text that is a plain number: written as it is, so a spreadsheet still reads a number. */
+const NUMBER_TEXT = /^[+-]?(\d+(\.\d*)?|\.\d+)(e[+-]?\d+)?$/i;
+/** First characters that make a spreadsheet evaluate a cell (formula injection). */
+const FORMULA_START = /^[=+\-@\t\r]/;
+
+export function csvCell(value: string | number | boolean | null | undefined): string {
+  if (value === null || value === undefined) return '';
+  if (typeof value === 'number') return Number.isFinite(value) ? String(value) : '';
+  let text = String(value);
+  // A leading apostrophe is how spreadsheets themselves mark a cell as text.
+  if (FORMULA_START.test(text) && !NUMBER_TEXT.test(text)) text = `'${text}`;
+  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+export function csvLine(values: ReadonlyArray<string | number | boolean | null | undefined>): string {
+  return values.map(csvCell).join(',');
+}
+
+export function escapeHtml(text: string): string {
+  return text.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
+}
+
+/**
+ * Markdown text that renders as the same characters: markup and HTML become literal. The
+ * underscore is left alone: inside a word (check ids, series ids) it never emphasises.
+ */
+export function markdownText(text: string): string {
+  return text
+    .replace(/\r?\n|\r/g, ' ')
+    .replace(/&/g, '&amp;')
+    .replace(/</g, '&lt;')
+    .replace(/>/g, '&gt;')
+    .replace(/([\\`*{}[\]()#+!|~])/g, '\\$1');
+}
