@@ -122,6 +122,37 @@ describe('date_shift', () => {
   });
 });
 
+describe('date_shift: a recent change of lag, against a constant lag since inception', () => {
+  // 320 business days of a fund tracking its benchmark with 0.1 % daily noise: its daily
+  // returns are independent from day to day, so a lagged fit and the fit as stamped cannot
+  // both be good; the recent shift covers only the last 50 or 60 days (under a calendar quarter).
+  const { dates, fund, bench } = trackingPair(21, 320);
+  const stampedLate = (from: number, lag: number) => fund.map((v, i) => (i >= from ? fund[i - lag] : v));
+
+  it.each([[270, 1], [260, 2]])('finds the last days from row %i stamped %i business day(s) late, as one shift with its span', (from, lag) => {
+    const { series, context } = linked(dates, stampedLate(from, lag), bench);
+    const findings = dateShift.run(series, context, dateShift.defaults);
+    expect(findings).toHaveLength(1);
+    expect(findings[0]).toMatchObject({ end: iso(dates[dates.length - 1]), evidence: { stamped_late_by_business_days: lag } });
+    const start = dates.indexOf(day(findings[0].start!));
+    expect(start - from).toBeGreaterThanOrEqual(0);
+    expect(start - from).toBeLessThanOrEqual(3);
+    expect(findings[0].evidence.correlation_at_lag).toBeGreaterThan(0.8); // the switch day itself fits neither lag
+    expect(findings[0].evidence.correlation_as_stamped).toBeLessThan(0.3);
+  });
+
+  it('reports the recent shift alone: no keying-error spikes or outliers inside it', () => {
+    const { series, context } = linked(dates, stampedLate(270, 1), bench);
+    expect(spikeReversal.run(series, context, spikeReversal.defaults)).toEqual([]);
+    expect(returnOutlier.run(series, context, returnOutlier.defaults)).toEqual([]);
+  });
+
+  it('stays quiet on a fund valued a day behind its benchmark since its first day (a constant lag is the fund’s valuation point)', () => {
+    const { series, context } = linked(dates, stampedLate(1, 1), bench);
+    expect(dateShift.run(series, context, dateShift.defaults)).toEqual([]);
+  });
+});
+
 describe('a date-shifted span silences spikes by the run’s own date_shift settings', () => {
   const { dates, fund, bench } = trackingPair(14, 320);
   const SHIFT_FROM = 190;
