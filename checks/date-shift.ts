@@ -84,7 +84,28 @@ export function findShifts(series: SeriesSlice, returns: ResidualMoves, benchmar
   return shiftedSpans(verdicts)
     .filter((span) => besideStampedFit(verdicts, span, size))
     .map((span) => placeSpan(returns, benchmark, usable, span, size, params))
-    .filter((shift) => shift.correlationAtLag >= params.min_correlation && !(shift.correlationAtLag - shift.correlationAsStamped < params.min_gain));
+    .filter((shift) => holdsOverSpan(shift, params));
+}
+
+/**
+ * A z score of 4.5 for the span's lagged correlation: a chance of about 3 in a million per
+ * window and lag, 0.001–0.003 over the 300–750 windows × lags searched in 2–10 years of
+ * daily returns, so a loosely fitting fund's one lucky window is not a shift.
+ */
+const SHIFT_Z = 4.5;
+
+/**
+ * The placed span must carry the claim by itself: the lag correlating `min_correlation` and beating the dates as stamped by `min_gain`, and that
+ * correlation beyond chance (Fisher's z, atanh(r)·√(n − 3), at least SHIFT_Z).
+ */
+function holdsOverSpan(shift: Shift, params: ShiftParams): boolean {
+  const r = shift.correlationAtLag;
+  return (
+    shift.observations > 3 &&
+    r >= params.min_correlation &&
+    !(r - shift.correlationAsStamped < params.min_gain) &&
+    Math.atanh(Math.min(r, 0.999999)) * Math.sqrt(shift.observations - 3) >= SHIFT_Z
+  );
 }
 
 /**
