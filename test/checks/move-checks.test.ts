@@ -122,6 +122,34 @@ describe('date_shift', () => {
   });
 });
 
+describe('spike_reversal: two adjacent digits swapped', () => {
+  // An index-like fund at a NAV near 10, printed to 4 decimals, 0.02 % daily noise: swapping
+  // the first two decimals (10.1234 → 10.2134) moves it by under 1 % (below the size floor of
+  // an ordinary spike) but by dozens of its robust standard deviations.
+  const pair = trackingPair(31, 300, 0.0002);
+  const fund = pair.fund.map((v) => Math.round(v * 1000) / 10000);
+  const at = fund.findIndex((v, i) => i >= 120 && Math.abs(Number(v.toFixed(4)[3]) - Number(v.toFixed(4)[4])) === 1 && v.toFixed(4).length === 7);
+  const text = fund[at].toFixed(4);
+  const typed = text.slice(0, 3) + text[4] + text[3] + text.slice(5);
+  const keyed = fund.map((v, i) => (i === at ? Number(typed) : v));
+
+  it('reports the day as a spike and names the swap with the value meant', () => {
+    expect(at).toBeGreaterThan(0);
+    expect(Math.abs(Math.log(Number(typed) / fund[at]))).toBeLessThan(0.01);
+    const { series, context } = linked(pair.dates, keyed, pair.bench);
+    const findings = spikeReversal.run(series, context, spikeReversal.defaults);
+    expect(findings).toHaveLength(1);
+    expect(findings[0]).toMatchObject({ start: iso(pair.dates[at]), evidence: { likely_cause: 'swapped_digits', likely_intended: Number(text) } });
+    expect(findings[0].message).toContain(`NAV of ${typed} on ${iso(pair.dates[at])} looks like ${text} with two adjacent digits swapped`);
+    expect(returnOutlier.run(series, context, returnOutlier.defaults)).toEqual([]);
+  });
+
+  it('finds nothing on the same fund without the swap', () => {
+    const { series, context } = linked(pair.dates, fund, pair.bench);
+    expect(spikeReversal.run(series, context, spikeReversal.defaults)).toEqual([]);
+  });
+});
+
 describe('date_shift: a recent change of lag, against a constant lag since inception', () => {
   // 320 business days of a fund tracking its benchmark with 0.1 % daily noise: its daily
   // returns are independent from day to day, so a lagged fit and the fit as stamped cannot
