@@ -77,7 +77,7 @@ export function findShifts(series: SeriesSlice, returns: ResidualMoves, benchmar
   const usable = usableSteps(returns, benchmark, params.max_lag);
   const size = Math.max(2, Math.floor(params.min_steps));
   if (usable.length < size) return [];
-  const work = { fund: new Float64Array(size), bench: new Float64Array(size) };
+  const work: Work = { fund: new Float64Array(size), bench: new Float64Array(size), correlations: new Float64Array(2 * params.max_lag + 1) };
   const verdicts = windowStarts(usable.length, size).map((first) => judgeWindow(returns, benchmark, usable, first, first + size - 1, params, work));
   // A lag is a fault only as a change: the dates as stamped must fit somewhere in the history.
   if (!verdicts.some((v) => v.fitsAsStamped)) return [];
@@ -137,6 +137,13 @@ function usableSteps(returns: ResidualMoves, benchmark: SeriesSlice, maxLag: num
   return steps.subarray(0, n);
 }
 
+/** Buffers one series' window judgements reuse (`lagCorrelations` writes into them). */
+interface Work {
+  fund: Float64Array;
+  bench: Float64Array;
+  correlations: Float64Array;
+}
+
 /** Window starts, ascending: back from the latest full window by half a window, and the very first. */
 function windowStarts(count: number, size: number): number[] {
   const stride = Math.max(1, size >> 1);
@@ -146,7 +153,7 @@ function windowStarts(count: number, size: number): number[] {
   return starts.reverse();
 }
 
-function judgeWindow(returns: ResidualMoves, benchmark: SeriesSlice, usable: Int32Array, first: number, last: number, params: ShiftParams, work: { fund: Float64Array; bench: Float64Array }): WindowVerdict {
+function judgeWindow(returns: ResidualMoves, benchmark: SeriesSlice, usable: Int32Array, first: number, last: number, params: ShiftParams, work: Work): WindowVerdict {
   const correlations = lagCorrelations(returns, benchmark, usable, first, last, params, work);
   const atZero = correlations[params.max_lag];
   let best = 0;
@@ -162,11 +169,11 @@ function judgeWindow(returns: ResidualMoves, benchmark: SeriesSlice, usable: Int
  * stamped already correlate above 1 − `min_gain` + 0.1, no other lag can beat them by
  * `min_gain`, and the others are not tried.
  */
-function lagCorrelations(returns: ResidualMoves, benchmark: SeriesSlice, usable: Int32Array, first: number, last: number, params: ShiftParams, work: { fund: Float64Array; bench: Float64Array }): Float64Array {
+function lagCorrelations(returns: ResidualMoves, benchmark: SeriesSlice, usable: Int32Array, first: number, last: number, params: ShiftParams, work: Work): Float64Array {
   const n = last - first + 1;
   const fund = work.fund.length >= n ? work.fund.subarray(0, n) : new Float64Array(n);
   const bench = work.bench.length >= n ? work.bench.subarray(0, n) : new Float64Array(n);
-  const correlations = new Float64Array(2 * params.max_lag + 1).fill(NaN);
+  const correlations = work.correlations.length === 2 * params.max_lag + 1 ? work.correlations.fill(NaN) : new Float64Array(2 * params.max_lag + 1).fill(NaN);
   for (let i = 0; i < n; i++) {
     fund[i] = returns.fund[usable[first + i]];
     bench[i] = returns.bench[usable[first + i]];
@@ -203,7 +210,7 @@ function placeSpan(returns: ResidualMoves, benchmark: SeriesSlice, usable: Int32
   const lastStep = bestEnd(tail, gain);
   const first = lowerIndex(usable, firstStep);
   const last = lowerIndex(usable, lastStep);
-  const correlations = lagCorrelations(returns, benchmark, usable, first, last, { ...params, min_gain: -Infinity }, { fund: new Float64Array(0), bench: new Float64Array(0) });
+  const correlations = lagCorrelations(returns, benchmark, usable, first, last, { ...params, min_gain: -Infinity }, { fund: new Float64Array(0), bench: new Float64Array(0), correlations: new Float64Array(0) });
   return {
     firstStep: firstStep <= usable[0] ? 0 : firstStep,
     lastStep: lastStep >= usable[usable.length - 1] ? returns.count - 1 : lastStep,
