@@ -33,9 +33,11 @@ export interface WindowVerdict {
  * placed where the lagged fit starts and stops winning. Returns are winsorised at four robust
  * standard deviations before correlating, so fat tails do not decide the lag.
  *
- * A fund whose dates as stamped fit its benchmark in no window at all, while a lag does, is
- * priced that way by design (its valuation point falls before the benchmark's close): a
- * constant lag is a property of the fund, not a misdated feed, and is not reported.
+ * A fund whose dates as stamped fit its benchmark in no window at all, while one lag does
+ * throughout, is most likely priced that way by design (its valuation point falls before the
+ * benchmark's close): a constant lag is a property of the fund, reported as information (it
+ * could also be a feed stamped with publication dates since its first row; the data cannot
+ * tell), never as a fault.
  */
 export const dateShift: SeriesCheck<ShiftParams> = {
   id: 'date_shift',
@@ -49,8 +51,9 @@ export const dateShift: SeriesCheck<ShiftParams> = {
     const analysis = movesOf(series, context);
     const returns = analysis.model;
     // The runner already found the spans with these very parameters.
-    const shifts = analysis.shiftParams === params ? analysis.shifts : findShifts(series, returns, benchmark, params);
-    return shifts.map((shift) => describe(series, returns, shift, context.master?.benchmark_id ?? benchmark.id));
+    const shifts = analysis.shiftParams === params ? [...analysis.shifts, ...(analysis.constantLag ? [analysis.constantLag] : [])] : findShifts(series, returns, benchmark, params);
+    const benchmarkId = context.master?.benchmark_id ?? benchmark.id;
+    return shifts.map((shift) => (shift.constant ? describeConstant(series, returns, shift, benchmarkId) : describe(series, returns, shift, benchmarkId)));
   },
 };
 
@@ -70,6 +73,8 @@ export interface Shift {
   readonly observations: number;
   /** Rolling windows that found the lag. */
   readonly windows: number;
+  /** The whole history at this lag: most likely the fund's valuation point, not a fault. */
+  readonly constant?: boolean;
 }
 
 /** Shifted spans of the series, their edges placed where the lagged fit starts and stops winning. */
@@ -80,7 +85,7 @@ export function findShifts(series: SeriesSlice, returns: ResidualMoves, benchmar
   const work: Work = { fund: new Float64Array(size), bench: new Float64Array(size), correlations: new Float64Array(2 * params.max_lag + 1) };
   const verdicts = windowStarts(usable.length, size).map((first) => judgeWindow(returns, benchmark, usable, first, first + size - 1, params, work));
   // A lag is a fault only as a change: the dates as stamped must fit somewhere in the history.
-  if (!verdicts.some((v) => v.fitsAsStamped)) return [];
+  if (!verdicts.some((v) => v.fitsAsStamped)) return constantLag(returns, benchmark, usable, verdicts, params);
   return shiftedSpans(verdicts)
     .filter((span) => besideStampedFit(verdicts, span, size))
     .map((span) => placeSpan(returns, benchmark, usable, span, size, params))
@@ -106,6 +111,30 @@ function holdsOverSpan(shift: Shift, params: ShiftParams): boolean {
     !(r - shift.correlationAsStamped < params.min_gain) &&
     Math.atanh(Math.min(r, 0.999999)) * Math.sqrt(shift.observations - 3) >= SHIFT_Z
   );
+}
+
+/**
+ * The whole history at one lag: no window fits as stamped, at least half of them find the same
+ * lag and no other, and the lag holds over all usable returns. Returned as one span marked
+ * `constant`, reported as information, never as a fault (see `dateShift`).
+ */
+function constantLag(returns: ResidualMoves, benchmark: SeriesSlice, usable: Int32Array, verdicts: readonly WindowVerdict[], params: ShiftParams): Shift[] {
+  const lags = verdicts.filter((v) => v.lag !== 0);
+  const lag = lags[0]?.lag ?? 0;
+  if (lag === 0 || lags.some((v) => v.lag !== lag) || 2 * lags.length < verdicts.length) return [];
+  const work: Work = { fund: new Float64Array(0), bench: new Float64Array(0), correlations: new Float64Array(0) };
+  const correlations = lagCorrelations(returns, benchmark, usable, 0, usable.length - 1, { ...params, min_gain: -Infinity }, work);
+  const shift: Shift = {
+    firstStep: 0,
+    lastStep: returns.count - 1,
+    lag,
+    correlationAsStamped: correlations[params.max_lag],
+    correlationAtLag: correlations[lag + params.max_lag],
+    observations: usable.length,
+    windows: lags.length,
+    constant: true,
+  };
+  return holdsOverSpan(shift, params) ? [shift] : [];
 }
 
 /**
@@ -319,5 +348,30 @@ function describe(series: SeriesSlice, returns: ResidualMoves, shift: Shift, ben
       last_line: series.lines[last],
     },
     identity: [lateBy, isoDate(series.dates[first])],
+  });
+}
+
+function describeConstant(series: SeriesSlice, returns: ResidualMoves, shift: Shift, benchmarkId: string) {
+  const first = returns.to[0];
+  const last = returns.to[returns.count - 1];
+  const days = Math.abs(shift.lag);
+  const plural = days > 1 ? 's' : '';
+  const later = shift.lag < 0;
+  return makeFinding({
+    check: 'date_shift',
+    severity: 'info',
+    seriesId: series.id,
+    start: series.dates[first],
+    end: series.dates[last],
+    message: `Throughout its history, ${series.id}'s returns match ${benchmarkId}'s returns ${days} business day${plural} ${later ? 'earlier' : 'later'} (correlation ${round(shift.correlationAtLag, 2)} against ${round(shift.correlationAsStamped, 2)} as stamped): most likely the fund is valued at a different point than the benchmark's close, a constant lag and not a fault; if its NAVs carry publication dates instead, every date is ${days} business day${plural} ${later ? 'late' : 'early'}. Daily figures against this benchmark understate the fit.`,
+    evidence: {
+      lag_business_days: -shift.lag,
+      benchmark_id: benchmarkId,
+      correlation_as_stamped: round(shift.correlationAsStamped, 3),
+      correlation_at_lag: round(shift.correlationAtLag, 3),
+      observations: shift.observations,
+      windows: shift.windows,
+    },
+    identity: ['constant', -shift.lag],
   });
 }

@@ -175,9 +175,12 @@ describe('date_shift: a recent change of lag, against a constant lag since incep
     expect(returnOutlier.run(series, context, returnOutlier.defaults)).toEqual([]);
   });
 
-  it('stays quiet on a fund valued a day behind its benchmark since its first day (a constant lag is the fund’s valuation point)', () => {
+  it('raises no alarm on a fund valued a day behind its benchmark since its first day: one information finding names the constant lag', () => {
     const { series, context } = linked(dates, stampedLate(1, 1), bench);
-    expect(dateShift.run(series, context, dateShift.defaults)).toEqual([]);
+    const findings = dateShift.run(series, context, dateShift.defaults);
+    expect(findings).toHaveLength(1);
+    expect(findings[0]).toMatchObject({ severity: 'info', end: iso(dates[dates.length - 1]), evidence: { lag_business_days: 1 }, key: 'date_shift|F1|constant|1' });
+    expect(findings[0].message).toContain('most likely the fund is valued at a different point');
   });
 });
 
