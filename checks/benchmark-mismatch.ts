@@ -4,13 +4,14 @@ import { isoWeekStart } from '../src/calendar/days.js';
 import { seriesAt } from '../src/series/frame.js';
 import { movesOf } from '../src/checks/move-analysis.js';
 import { GROSS_Z, type ResidualMoves } from '../src/checks/residual-moves.js';
-import { correlation, exactPosition, isoDate, makeFinding, round } from '../src/checks/support.js';
+import { exactPosition, isoDate, makeFinding, round } from '../src/checks/support.js';
 
 interface MismatchParams {
   index_r2: number;
   poor_r2: number;
   good_r2: number;
   min_gain: number;
+  min_sibling_gain: number;
   window_weeks: number;
   min_weeks: number;
   [key: string]: number;
@@ -32,29 +33,39 @@ interface Week {
  * close) over the last `window_weeks` weeks. An index fund (category containing "index",
  * "indexed", "tracker", "passive" or "ETF") is expected to reach R² ≥ `index_r2` (0.99); it is
  * flagged when it falls short and another benchmark reaches it. Any other fund is flagged when
- * its R² is below `poor_r2` (0.6, well under the 0.80–0.95 usual for an active fund against a
- * fitting benchmark) and another benchmark reaches `good_r2` (0.7) and beats the assigned one
- * by `min_gain` (0.2), so two loosely related indices do not trade places on noise.
+ * another benchmark reaches `good_r2` (0.7) and either
+ * - the assigned R² is below `poor_r2` (0.6, well under the 0.80–0.95 usual for an active fund
+ *   against a fitting benchmark) and the other beats it by `min_gain` (0.2), or
+ * - the other fits better by `min_sibling_gain` (0.1 of R²: smaller gaps between indices of
+ *   one asset class move with the period chosen, and funds are not re-mapped for them) and
+ *   explains what the assigned one cannot: its t in a
+ *   regression on both at least 3.719, a chance of about 0.01 over the whole search (see
+ *   `addedByOther`). A sibling index of the same asset class (R²
+ *   0.74 where the right one gives 0.94) is caught this way, while two indices that explain
+ *   the fund about equally well never trade places.
+ * Active funds are also judged on the weeks since each quarter (13 weeks) of the window, with
+ * at least `min_weeks` weeks after it: a fund that moved to another index's universe from
+ * some date on, its master left as it was, is reported from the quarter where the other index
+ * starts to explain it best (the largest t).
  */
 export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
   id: 'benchmark_mismatch',
   scope: 'series',
   purpose: 'The fund fits its assigned benchmark poorly while another benchmark fits it well.',
-  defaults: { index_r2: 0.99, poor_r2: 0.6, good_r2: 0.7, min_gain: 0.2, window_weeks: 156, min_weeks: 26 },
+  defaults: { index_r2: 0.99, poor_r2: 0.6, good_r2: 0.7, min_gain: 0.2, min_sibling_gain: 0.1, window_weeks: 156, min_weeks: 26 },
   readsMoves: true,
   run(series, context, params) {
     const { benchmark, benchmarks, master } = context;
     if (!benchmark || !benchmarks) return [];
     const weeks = weeklyReturns(series, movesOf(series, context).model).slice(-params.window_weeks);
-    const assigned = rSquared(weeks, benchmark, params.min_weeks);
+    if (weeks.length < params.min_weeks) return [];
     const isIndexFund = INDEX_CATEGORY.test(master?.category ?? '');
-    const expected = isIndexFund ? params.index_r2 : params.poor_r2;
-    if (!(assigned < expected)) return [];
-    const better = bestAlternative(weeks, benchmarks, benchmark.id, params.min_weeks);
-    const bar = isIndexFund ? params.index_r2 : Math.max(params.good_r2, assigned + params.min_gain);
-    if (!better || better.r2 < bar) return [];
-    const start = weeks[0].start;
+    const verdict = isIndexFund ? judgeIndexFund(weeks, benchmark, benchmarks, params) : judgeActiveFund(weeks, benchmark, benchmarks, params);
+    if (!verdict) return [];
+    const { assigned, better, from } = verdict;
+    const start = weeks[from].start;
     const end = weeks[weeks.length - 1].end;
+    const since = from > 0 ? ` since ${isoDate(start).slice(0, 7)}` : '';
     return [
       makeFinding({
         check: 'benchmark_mismatch',
@@ -62,7 +73,9 @@ export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
         seriesId: series.id,
         start,
         end,
-        message: `${series.id} fits its assigned benchmark ${benchmark.id} poorly (R² ${round(assigned, 3)} on weekly returns${isIndexFund ? ', below the 0.99 an index fund should reach' : ''}) while ${better.id} fits it with R² ${round(better.r2, 3)}; the benchmark mapping looks wrong.`,
+        message: since
+          ? `${series.id} fits ${better.id} better than its assigned benchmark ${benchmark.id}${since} (R² ${round(better.r2, 3)} against ${round(assigned, 3)} on weekly returns); the fund looks re-mapped or its benchmark mapping out of date.`
+          : `${series.id} fits its assigned benchmark ${benchmark.id} poorly (R² ${round(assigned, 3)} on weekly returns${isIndexFund ? ', below the 0.99 an index fund should reach' : ''}) while ${better.id} fits it with R² ${round(better.r2, 3)}; the benchmark mapping looks wrong.`,
         evidence: {
           assigned_benchmark: benchmark.id,
           assigned_r2: round(assigned, 4),
@@ -70,7 +83,7 @@ export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
           better_r2: round(better.r2, 4),
           index_fund: isIndexFund,
           category: master?.category ?? null,
-          weeks: weeks.length,
+          weeks: weeks.length - from,
           from: isoDate(start),
           to: isoDate(end),
           master_line: master?.line ?? null,
@@ -80,6 +93,87 @@ export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
     ];
   },
 };
+
+interface Verdict {
+  assigned: number;
+  better: { id: string; r2: number };
+  /** First week of the judged weeks. */
+  from: number;
+}
+
+function judgeIndexFund(weeks: Week[], benchmark: SeriesSlice, benchmarks: SeriesFrame, params: MismatchParams): Verdict | null {
+  const assigned = suffixFits(weeks, benchmark, params.min_weeks)[0];
+  if (!(assigned < params.index_r2)) return null;
+  const better = bestAt(alternativeFits(weeks, benchmarks, benchmark.id, params.min_weeks), 0);
+  return better && better.r2 >= params.index_r2 ? { assigned, better, from: 0 } : null;
+}
+
+/** The weeks from the quarter where another benchmark explains the fund best, if one does. */
+function judgeActiveFund(weeks: Week[], benchmark: SeriesSlice, benchmarks: SeriesFrame, params: MismatchParams): Verdict | null {
+  const assignedFits = suffixFits(weeks, benchmark, params.min_weeks);
+  const others = alternativeFits(weeks, benchmarks, benchmark.id, params.min_weeks);
+  let verdict: Verdict | null = null;
+  let bestScore = 0;
+  for (let from = 0; from < weeks.length; from += QUARTER_WEEKS) {
+    const assigned = assignedFits[from];
+    if (!Number.isFinite(assigned)) break;
+    const better = bestAt(others, from);
+    if (!better || better.r2 < params.good_r2 || !(better.r2 >= assigned + params.min_sibling_gain)) continue;
+    const poorAndBeaten = from === 0 && assigned < params.poor_r2 && better.r2 >= assigned + params.min_gain;
+    const t = addedByOther(weeks, from, benchmark, seriesAt(benchmarks, better.index));
+    if (!poorAndBeaten && !(t >= Z_PER_COMPARISON)) continue;
+    // The start where the evidence for the other benchmark is strongest.
+    const score = poorAndBeaten ? Infinity : t;
+    if (score > bestScore) [bestScore, verdict] = [score, { assigned, better, from }];
+  }
+  return verdict;
+}
+
+const QUARTER_WEEKS = 13;
+
+/**
+ * Standard normal quantile for a chance of 1 in 10,000 (3.719, from normal tables): about 0.01
+ * over the whole search, 7 other benchmarks × 12 starting quarters ≈ 100 comparisons.
+ */
+const Z_PER_COMPARISON = 3.719;
+
+/**
+ * How much `other` adds to `assigned` in explaining the fund's weekly returns over the weeks
+ * from `from` that both price: the t statistic of other's coefficient when the fund's returns
+ * are regressed on both benchmarks at once (an encompassing test). When the assigned index is
+ * the fund's own, a sibling's own moves are unrelated to the fund and its t is about standard
+ * normal; when the fund follows the sibling, the sibling's moves explain what the assigned
+ * index cannot and its t runs to 10 and more within a few quarters.
+ */
+function addedByOther(weeks: Week[], from: number, assigned: SeriesSlice, other: SeriesSlice): number {
+  let n = 0, sy = 0, sa = 0, sb = 0, syy = 0, saa = 0, sbb = 0, sab = 0, sya = 0, syb = 0;
+  for (let i = from; i < weeks.length; i++) {
+    const a = weekMove(weeks[i], assigned);
+    const b = weekMove(weeks[i], other);
+    if (!Number.isFinite(a) || !Number.isFinite(b)) continue;
+    const y = weeks[i].fund;
+    n++;
+    sy += y; sa += a; sb += b;
+    syy += y * y; saa += a * a; sbb += b * b; sab += a * b; sya += y * a; syb += y * b;
+  }
+  if (n < 4) return NaN;
+  const caa = saa - (sa * sa) / n, cbb = sbb - (sb * sb) / n, cab = sab - (sa * sb) / n;
+  const cya = sya - (sy * sa) / n, cyb = syb - (sy * sb) / n, cyy = syy - (sy * sy) / n;
+  const det = caa * cbb - cab * cab;
+  if (!(det > 0)) return NaN;
+  const betaA = (cbb * cya - cab * cyb) / det;
+  const betaB = (caa * cyb - cab * cya) / det;
+  const residualVariance = (cyy - betaA * cya - betaB * cyb) / (n - 3);
+  return residualVariance > 0 ? betaB / Math.sqrt((residualVariance * caa) / det) : NaN;
+}
+
+/** The benchmark's log move over the week's two dates; NaN unless it has both exactly. */
+function weekMove(week: Week, benchmark: SeriesSlice): number {
+  // Exact dates only: a level carried over a benchmark gap would misalign the whole week.
+  const p = exactPosition(benchmark.dates, week.start);
+  const q = exactPosition(benchmark.dates, week.end);
+  return p >= 0 && q > p && benchmark.values[p] > 0 && benchmark.values[q] > 0 ? Math.log(benchmark.values[q] / benchmark.values[p]) : NaN;
+}
 
 /** Sums of the steps ending in each ISO week; weeks holding a gross error are left out. */
 function weeklyReturns(series: SeriesSlice, returns: ResidualMoves): Week[] {
@@ -104,29 +198,56 @@ function weeklyReturns(series: SeriesSlice, returns: ResidualMoves): Week[] {
   return weeks;
 }
 
-function rSquared(weeks: Week[], benchmark: SeriesSlice, minWeeks: number): number {
-  const fund = new Float64Array(weeks.length);
-  const bench = new Float64Array(weeks.length);
-  let n = 0;
-  for (const week of weeks) {
-    // Exact dates only: a level carried over a benchmark gap would misalign the whole week.
-    const p = exactPosition(benchmark.dates, week.start);
-    const q = exactPosition(benchmark.dates, week.end);
-    if (p < 0 || q <= p || !(benchmark.values[p] > 0) || !(benchmark.values[q] > 0)) continue;
-    fund[n] = week.fund;
-    bench[n++] = Math.log(benchmark.values[q] / benchmark.values[p]);
+/**
+ * R² of the fund's weekly returns against the benchmark's over weeks from…end, for every
+ * start `from` (NaN where fewer than `minWeeks` weeks the benchmark prices exactly remain).
+ * One pass from the end with running sums.
+ */
+function suffixFits(weeks: Week[], benchmark: SeriesSlice, minWeeks: number): Float64Array {
+  const fits = new Float64Array(weeks.length).fill(NaN);
+  let n = 0, sx = 0, sy = 0, sxx = 0, syy = 0, sxy = 0;
+  for (let i = weeks.length - 1; i >= 0; i--) {
+    const y = weekMove(weeks[i], benchmark);
+    if (Number.isFinite(y)) {
+      const x = weeks[i].fund;
+      n++;
+      sx += x;
+      sy += y;
+      sxx += x * x;
+      syy += y * y;
+      sxy += x * y;
+    }
+    if (n < minWeeks) continue;
+    const cxy = sxy - (sx * sy) / n;
+    const cxx = sxx - (sx * sx) / n;
+    const cyy = syy - (sy * sy) / n;
+    fits[i] = cxx > 0 && cyy > 0 ? (cxy * cxy) / (cxx * cyy) : NaN;
   }
-  if (n < minWeeks) return NaN;
-  const r = correlation(fund, bench, n);
-  return r * r;
+  return fits;
 }
 
-function bestAlternative(weeks: Week[], benchmarks: SeriesFrame, assignedId: string, minWeeks: number) {
-  let best: { id: string; r2: number } | undefined;
+/** Every other benchmark's R² per start (see `suffixFits`). */
+function alternativeFits(weeks: Week[], benchmarks: SeriesFrame, assignedId: string, minWeeks: number): Alternative[] {
+  const others: Alternative[] = [];
   for (let i = 0; i < benchmarks.ids.length; i++) {
-    if (benchmarks.ids[i] === assignedId) continue;
-    const r2 = rSquared(weeks, seriesAt(benchmarks, i), minWeeks);
-    if (Number.isFinite(r2) && (!best || r2 > best.r2)) best = { id: benchmarks.ids[i], r2 };
+    if (benchmarks.ids[i] !== assignedId) others.push({ id: benchmarks.ids[i], index: i, fits: suffixFits(weeks, seriesAt(benchmarks, i), minWeeks) });
+  }
+  return others;
+}
+
+interface Alternative {
+  id: string;
+  /** Position in the benchmark frame. */
+  index: number;
+  fits: Float64Array;
+}
+
+/** The other benchmark with the highest R² over the weeks from `from`. */
+function bestAt(others: readonly Alternative[], from: number): { id: string; index: number; r2: number } | undefined {
+  let best: { id: string; index: number; r2: number } | undefined;
+  for (const other of others) {
+    const r2 = other.fits[from];
+    if (Number.isFinite(r2) && (!best || r2 > best.r2)) best = { id: other.id, index: other.index, r2 };
   }
   return best;
 }

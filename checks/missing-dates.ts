@@ -23,7 +23,9 @@ export const missingDates: SeriesCheck<{ min_days: number }> = {
     // is the cause and date_shift reports it. A span needs a quarter of steps to be judged, so
     // one found within the first two quarters' worth may well have started with the first row.
     const moves = context.moves;
-    const shiftedFromFirst = moves?.shiftParams !== undefined && moves.shifts.some((shift) => shift.firstStep < 2 * moves.shiftParams!.min_steps);
+    // A lag the whole history shows may be that same stamping from the first row (date_shift
+    // says so as information), so its inception gap is left to that finding too.
+    const shiftedFromFirst = moves?.shiftParams !== undefined && (moves.constantLag !== undefined || moves.shifts.some((shift) => shift.firstStep < 2 * moves.shiftParams!.min_steps));
     if (inception !== null && series.dates.length > 0 && series.dates[0] > inception && inception <= context.asOf && !shiftedFromFirst) {
       const missing = [...(context.calendars.isBusinessDay(calendar, inception) ? [inception] : []), ...context.calendars.businessDaysBetween(calendar, inception, series.dates[0])];
       if (missing.length >= params.min_days && missing.length > 0) findings.push(describe(series, missing, calendar, null, 0, inception));

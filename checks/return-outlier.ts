@@ -3,7 +3,7 @@ import type { SeriesSlice } from '../src/series/frame.js';
 import { inShiftedSpan, movesOf, type MoveAnalysis } from '../src/checks/move-analysis.js';
 import { bridgedStep, endsOnConflict, tailBar, sharedWithMarket, type Bridge, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
-import { isSpikeReversal } from './spike-reversal.js';
+import { isSpikeReversal, swappedDigitsSpike } from './spike-reversal.js';
 import { splitLikeRatio } from './split-like-jump.js';
 
 interface OutlierParams {
@@ -45,7 +45,7 @@ export const returnOutlier: SeriesCheck<OutlierParams> = {
       if (!clearsBar(returns, returns.z[k], returns.residual[k], k, params)) continue;
       const bridge = bridgedStep(returns, context.benchmark, k);
       if (bridge && !clearsBar(returns, bridge.z, bridge.residual, k, params)) continue;
-      if (explainedElsewhere(analysis, k)) continue;
+      if (explainedElsewhere(series, analysis, k)) continue;
       if (inShiftedSpan(analysis, k)) continue;
       if (endsOnConflict(series, returns, k) || sharedWithMarket(series, returns, context.benchmarks, [k])) continue;
       const before = returns.from[k];
@@ -102,10 +102,8 @@ function bridgeEvidence(series: SeriesSlice, returns: ResidualMoves, bridge: Bri
 }
 
 /** Step `k` is a split-like jump or part of a spike reversal, judged with the run's parameters of those checks (when they are on). */
-function explainedElsewhere(analysis: MoveAnalysis, k: number): boolean {
+function explainedElsewhere(series: SeriesSlice, analysis: MoveAnalysis, k: number): boolean {
   const { model, split, spike } = analysis;
-  return (
-    (split !== undefined && splitLikeRatio(model, k, split) !== null) ||
-    (spike !== undefined && (isSpikeReversal(model, k, spike) || (k > 0 && isSpikeReversal(model, k - 1, spike))))
-  );
+  const spikeAt = (j: number) => j >= 0 && (isSpikeReversal(model, j, spike!) || swappedDigitsSpike(series, model, j, spike!) !== null);
+  return (split !== undefined && splitLikeRatio(model, k, split) !== null) || (spike !== undefined && (spikeAt(k) || spikeAt(k - 1)));
 }

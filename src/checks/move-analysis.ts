@@ -17,6 +17,8 @@ export interface MoveAnalysis {
   readonly model: ResidualMoves;
   /** Date-shifted spans found with `shiftParams`; empty when date_shift is off or there is no benchmark. */
   readonly shifts: readonly Shift[];
+  /** A lag the whole history shows (a valuation point, not a fault): claims no steps. */
+  readonly constantLag?: Shift;
   /** The run's date_shift parameters for this series; absent when the check is off. */
   readonly shiftParams?: ShiftParams;
   /** The run's split_like_jump parameters for this series; absent when the check is off. */
@@ -36,8 +38,10 @@ export interface ClaimingParams {
 export function analyseMoves(series: SeriesSlice, context: SeriesContext, claiming: ClaimingParams): MoveAnalysis {
   const model = residualMoves(series, context);
   const shiftParams = claiming.date_shift;
-  const shifts = shiftParams && context.benchmark ? findShifts(series, model, context.benchmark, shiftParams) : [];
-  return { model, shifts, shiftParams, split: claiming.split_like_jump, spike: claiming.spike_reversal };
+  const found = shiftParams && context.benchmark ? findShifts(series, model, context.benchmark, shiftParams) : [];
+  const shifts = found.filter((shift) => !shift.constant);
+  const constantLag = found.find((shift) => shift.constant);
+  return { model, shifts, constantLag, shiftParams, split: claiming.split_like_jump, spike: claiming.spike_reversal };
 }
 
 /**

@@ -7,7 +7,7 @@ import { invalidIdentifier } from '../../checks/invalid-identifier.js';
 import { benchmarkMismatch } from '../../checks/benchmark-mismatch.js';
 import { seriesAt } from '../../src/series/frame.js';
 import { SeededRandom as Random } from '../../src/random.js';
-import { contextFor, day, frameOf, frameOfArrays, master, weekdays } from './helpers.js';
+import { contextFor, day, frameOf, frameOfArrays, iso, master, weekdays } from './helpers.js';
 
 function feed(overrides: Partial<FeedContext>): FeedContext {
   return {
@@ -66,7 +66,10 @@ describe('benchmark_mismatch', () => {
   const random = new Random(21);
   const dates = weekdays('2024-01-01', 400);
   const levels = { EQ_A: [1000], EQ_B: [1000], BOND: [1000] };
-  const fundLevels = { index: [100], active: [50] };
+  // `moved` follows EQ_A like `active` for 200 days, then EQ_B: a fund re-pointed at another
+  // index's universe whose master still names the old one.
+  const MOVED_AT = 200;
+  const fundLevels = { index: [100], active: [50], moved: [50] };
   for (let t = 1; t < dates.length; t++) {
     const market = 0.009 * random.normal();
     const a = market + 0.006 * random.normal();
@@ -75,7 +78,9 @@ describe('benchmark_mismatch', () => {
     levels.EQ_B.push(levels.EQ_B[t - 1] * Math.exp(b));
     levels.BOND.push(levels.BOND[t - 1] * Math.exp(0.0025 * random.normal()));
     fundLevels.index.push(fundLevels.index[t - 1] * Math.exp(a + 0.0002 * random.normal()));
-    fundLevels.active.push(fundLevels.active[t - 1] * Math.exp(0.9 * a + 0.004 * random.normal()));
+    const own = 0.004 * random.normal();
+    fundLevels.active.push(fundLevels.active[t - 1] * Math.exp(0.9 * a + own));
+    fundLevels.moved.push(fundLevels.moved[t - 1] * Math.exp(0.9 * (t < MOVED_AT ? a : b) + own));
   }
   const benchmarks = frameOfArrays(Object.entries(levels).map(([id, values]) => ({ id, dates, values })));
   const run = (fund: number[], assigned: string, category: string) => {
@@ -94,6 +99,24 @@ describe('benchmark_mismatch', () => {
     expect(finding).toMatchObject({ severity: 'error', key: 'benchmark_mismatch|F1|EQ_B|EQ_A', evidence: { better_benchmark: 'EQ_A', index_fund: true } });
     expect(finding.evidence.better_r2 as number).toBeGreaterThan(0.99);
     expect(finding.evidence.assigned_r2 as number).toBeLessThan(0.8);
+  });
+
+  it('flags an active fund mapped to a sibling equity index that fits it far worse (R² about 0.4 against 0.86)', () => {
+    // Expected R²s from the construction: var(a) = 0.009² + 0.006²; fund = 0.9a + 0.004 noise.
+    const [finding] = run(fundLevels.active, 'EQ_B', 'Equity');
+    expect(finding).toMatchObject({ key: 'benchmark_mismatch|F1|EQ_B|EQ_A', evidence: { better_benchmark: 'EQ_A', index_fund: false } });
+    expect(finding.message).toContain('poorly');
+  });
+
+  it('says since when a sibling index fits better, for a fund that moved to it mid-history', () => {
+    const findings = run(fundLevels.moved, 'EQ_A', 'Equity');
+    expect(findings).toHaveLength(1);
+    expect(findings[0]).toMatchObject({ key: 'benchmark_mismatch|F1|EQ_A|EQ_B', end: iso(dates[dates.length - 1]), evidence: { better_benchmark: 'EQ_B' } });
+    // Judged from quarter (13-week) starts: the start lies within a quarter of the move.
+    const start = dates.indexOf(day(findings[0].start!));
+    expect(Math.abs(start - MOVED_AT)).toBeLessThanOrEqual(65);
+    expect(findings[0].message).toMatch(/^F1 fits EQ_B better than its assigned benchmark EQ_A since \d{4}-\d{2} /);
+    expect(findings[0].evidence.better_r2 as number).toBeGreaterThan(findings[0].evidence.assigned_r2 as number);
   });
 
   it('flags an active fund mapped to a bond index, but not one mapped to a loosely related equity index', () => {

@@ -122,6 +122,68 @@ describe('date_shift', () => {
   });
 });
 
+describe('spike_reversal: two adjacent digits swapped', () => {
+  // An index-like fund at a NAV near 10, printed to 4 decimals, 0.02 % daily noise: swapping
+  // the first two decimals (10.1234 → 10.2134) moves it by under 1 % (below the size floor of
+  // an ordinary spike) but by dozens of its robust standard deviations.
+  const pair = trackingPair(31, 300, 0.0002);
+  const fund = pair.fund.map((v) => Math.round(v * 1000) / 10000);
+  const at = fund.findIndex((v, i) => i >= 120 && Math.abs(Number(v.toFixed(4)[3]) - Number(v.toFixed(4)[4])) === 1 && v.toFixed(4).length === 7);
+  const text = fund[at].toFixed(4);
+  const typed = text.slice(0, 3) + text[4] + text[3] + text.slice(5);
+  const keyed = fund.map((v, i) => (i === at ? Number(typed) : v));
+
+  it('reports the day as a spike and names the swap with the value meant', () => {
+    expect(at).toBeGreaterThan(0);
+    expect(Math.abs(Math.log(Number(typed) / fund[at]))).toBeLessThan(0.01);
+    const { series, context } = linked(pair.dates, keyed, pair.bench);
+    const findings = spikeReversal.run(series, context, spikeReversal.defaults);
+    expect(findings).toHaveLength(1);
+    expect(findings[0]).toMatchObject({ start: iso(pair.dates[at]), evidence: { likely_cause: 'swapped_digits', likely_intended: Number(text) } });
+    expect(findings[0].message).toContain(`NAV of ${typed} on ${iso(pair.dates[at])} looks like ${text} with two adjacent digits swapped`);
+    expect(returnOutlier.run(series, context, returnOutlier.defaults)).toEqual([]);
+  });
+
+  it('finds nothing on the same fund without the swap', () => {
+    const { series, context } = linked(pair.dates, fund, pair.bench);
+    expect(spikeReversal.run(series, context, spikeReversal.defaults)).toEqual([]);
+  });
+});
+
+describe('date_shift: a recent change of lag, against a constant lag since inception', () => {
+  // 320 business days of a fund tracking its benchmark with 0.1 % daily noise: its daily
+  // returns are independent from day to day, so a lagged fit and the fit as stamped cannot
+  // both be good; the recent shift covers only the last 50 or 60 days (under a calendar quarter).
+  const { dates, fund, bench } = trackingPair(21, 320);
+  const stampedLate = (from: number, lag: number) => fund.map((v, i) => (i >= from ? fund[i - lag] : v));
+
+  it.each([[270, 1], [260, 2]])('finds the last days from row %i stamped %i business day(s) late, as one shift with its span', (from, lag) => {
+    const { series, context } = linked(dates, stampedLate(from, lag), bench);
+    const findings = dateShift.run(series, context, dateShift.defaults);
+    expect(findings).toHaveLength(1);
+    expect(findings[0]).toMatchObject({ end: iso(dates[dates.length - 1]), evidence: { stamped_late_by_business_days: lag } });
+    const start = dates.indexOf(day(findings[0].start!));
+    expect(start - from).toBeGreaterThanOrEqual(0);
+    expect(start - from).toBeLessThanOrEqual(3);
+    expect(findings[0].evidence.correlation_at_lag).toBeGreaterThan(0.8); // the switch day itself fits neither lag
+    expect(findings[0].evidence.correlation_as_stamped).toBeLessThan(0.3);
+  });
+
+  it('reports the recent shift alone: no keying-error spikes or outliers inside it', () => {
+    const { series, context } = linked(dates, stampedLate(270, 1), bench);
+    expect(spikeReversal.run(series, context, spikeReversal.defaults)).toEqual([]);
+    expect(returnOutlier.run(series, context, returnOutlier.defaults)).toEqual([]);
+  });
+
+  it('raises no alarm on a fund valued a day behind its benchmark since its first day: one information finding names the constant lag', () => {
+    const { series, context } = linked(dates, stampedLate(1, 1), bench);
+    const findings = dateShift.run(series, context, dateShift.defaults);
+    expect(findings).toHaveLength(1);
+    expect(findings[0]).toMatchObject({ severity: 'info', end: iso(dates[dates.length - 1]), evidence: { lag_business_days: 1 }, key: 'date_shift|F1|constant|1' });
+    expect(findings[0].message).toContain('most likely the fund is valued at a different point');
+  });
+});
+
 describe('a date-shifted span silences spikes by the run’s own date_shift settings', () => {
   const { dates, fund, bench } = trackingPair(14, 320);
   const SHIFT_FROM = 190;
