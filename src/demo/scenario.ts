@@ -60,6 +60,7 @@ export const DEMO_EVENTS = {
   restated: epochDay(2026, 10, 20), // NVA0005's value changed since yesterday's snapshot
   dropped: epochDay(2026, 9, 9), // NVA0001's row present yesterday, absent today
   zeroNav: epochDay(2026, 7, 7), // NVA0005 is sent a NAV of zero
+  stampedLateFrom: epochDay(2026, 6, 1), // NVA0012's NAVs carry the next business day's date from here on
 } as const;
 
 export interface DemoFiles {
@@ -140,7 +141,7 @@ function plantEvents(paths: Map<string, NavRow[]>, calendars: BusinessCalendars)
   edit('NVA0009', (row) => (row.day >= e.centsFrom ? { ...row, nav: row.nav * 100 } : row));
   edit('NVA0010', (row) => (row.day === e.keyingError ? { ...row, nav: row.nav * 1.08 } : row));
   edit('NVA0011', (row) => ((row.day >= e.gapFrom && row.day <= e.gapTo) || row.day > e.lateAfter ? null : row));
-  edit('NVA0012', (row) => ({ ...row, day: nextBusinessDay(calendars, 'VESTRA', row.day) }));
+  edit('NVA0012', (row) => (row.day >= e.stampedLateFrom ? { ...row, day: nextBusinessDay(calendars, 'VESTRA', row.day) } : row));
   edit('NVA0013', (row) => (row.day >= e.distribution ? { ...row, nav: row.nav - 0.85 } : row));
   edit('NVA0001', (row) => (row.day === e.dropped ? null : row));
   edit('NVA0005', (row) => (row.day === e.zeroNav ? { ...row, nav: 0 } : row));

@@ -4,8 +4,9 @@
  * fault-planting generators (the recall/precision tests score the plain runner against the
  * planted faults, so equality here carries their scores over to the fast path).
  */
+import { writeFiles } from '../cli/run-cli.js';
 import { describe, expect, it } from 'vitest';
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { generateUniverse } from '../../fixtures/universe/generate.js';
@@ -50,7 +51,7 @@ describe('checks on worker threads', () => {
 
   it('find exactly what the plain runner finds on the demo feed, with its previous snapshot', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'navassay-parallel-'));
-    for (const [name, text] of Object.entries(demoFiles())) writeFileSync(join(dir, name), text);
+    writeFiles(dir, demoFiles());
     const indexVendor = FeedProfileSchema.parse({ columns: { benchmark_id: 'Index Code', date: 'Value Date', level: 'Close' }, delimiter: ';', decimal: ',', date_format: 'day-first' });
     const at = (name: string) => join(dir, name);
     const feed = await loadFeed(
