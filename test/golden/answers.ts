@@ -1,5 +1,5 @@
 import { readdirSync, readFileSync } from 'node:fs';
-import { join } from 'node:path';
+import { join, relative } from 'node:path';
 import { generateUniverse } from '../../fixtures/universe/generate.js';
 import { generateAltUniverse } from '../../fixtures/universe-alt/generate.js';
 import { lastMonthEndOnOrBefore } from '../../src/calendar/days.js';
@@ -24,7 +24,7 @@ export async function goldenAnswers(): Promise<Record<string, string>> {
   // The scratch directory, absolute or relative to the working directory, reads <dir>.
   // The times a snapshot or a ticket run was stored read <time>: it is the clock's, not the code's.
   const placed = (text: string) =>
-    text.split(dir).join('<dir>').replace(/(?:\.\.\/)*\.\.<dir>/g, '<dir>').replace(/(stored at |"recorded_at": ")\d{4}-\d\d-\d\dT[\d:.]+Z/g, '$1<time>');
+    text.split(dir).join('<dir>').replace(/(?:\.\.\/)*\.\.<dir>/g, '<dir>').split(relative(process.cwd(), dir)).join('<dir>').replace(/(stored at |"recorded_at": ")\d{4}-\d\d-\d\dT[\d:.]+Z/g, '$1<time>');
   const record = async (name: string, ...argv: string[]) => {
     const { status, stdout, stderr } = await runCli(...argv);
     answers[name] = placed(`status ${status}\n--- stderr\n${stderr}--- stdout\n${stdout}`);
