@@ -1,4 +1,4 @@
-import { Option } from 'commander';
+import { type Command, Option } from 'commander';
 import { formatIsoDate, parseIsoDate, todayEpochDay } from '../calendar/days.js';
 import { isSeverity, type Severity } from '../findings.js';
 import { ConfigError } from '../ingest/errors.js';
@@ -16,6 +16,21 @@ export const failOnOption = () =>
     .choices(['info', 'warning', 'error', 'critical', 'none'])
     .default('error');
 export const asOfOption = (what: string) => new Option('--as-of <date>', `as-of date, YYYY-MM-DD (default: ${what})`);
+
+/** Adds the files risk figures are computed from, shared by `metrics` and `reconcile`. */
+export function withFigureInputs(command: Command): Command {
+  for (const option of figureInputOptions()) command.addOption(option);
+  return command;
+}
+
+const figureInputOptions = (): Option[] => [
+  new Option('--nav <file>', 'NAV feed (series_id, date, nav)').makeOptionMandatory(),
+  new Option('--benchmarks <file>', 'benchmark levels (benchmark_id, date, level)').makeOptionMandatory(),
+  new Option('--master <file>', 'series master (series_id, benchmark_id, [rate_id] …)').makeOptionMandatory(),
+  new Option('--rates <file>', "risk-free rates (rate_id, date, rate), matched by the master's rate_id").conflicts('rf'),
+  new Option('--rf <rate>', "a constant annual risk-free rate as a decimal, such as 0.02 (with neither --rates nor --rf the rate is zero, and the answer's methodology says risk_free: none)"),
+  new Option('--actions <file>', 'corporate actions: NAVs are adjusted for the splits and distributions it lists, so returns are total returns'),
+];
 
 export const threadsOption = () =>
   new Option('--threads <count>', "worker threads for the checks (default: the configuration's threads, else one per core, at most 8)");

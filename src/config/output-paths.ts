@@ -29,6 +29,16 @@ export function reportFileName(report: 'check' | 'metrics' | 'reconcile', format
 export const QUARANTINE_FILE = 'quarantine.csv';
 
 /**
+ * The input paths a command was given, each named by its key (`--nav`, or `files.nav` with the
+ * prefix `files.`); absent inputs are left out.
+ */
+export function namedInputs(paths: Readonly<Record<string, string | undefined>>, prefix = '--'): NamedPath[] {
+  return Object.entries(paths)
+    .filter((entry): entry is [string, string] => entry[1] !== undefined)
+    .map(([kind, path]) => ({ key: `${prefix}${kind}`, path }));
+}
+
+/**
  * Every file a run writes into its output directory, each named by the key that decides it: the
  * commands' answers, the day's report, tickets and figures (DAILY_FILES), and the quarantine.
  */

@@ -13,7 +13,7 @@ import { MethodologySchema } from '../metrics/methodology.js';
 import { isWindowLabel } from '../metrics/windows.js';
 import { ToleranceSettingsSchema } from '../reconcile/tolerances.js';
 import { OUTPUT_FORMATS } from '../report/render.js';
-import { checkOutputsApart, runOutputFiles, type NamedPath } from './output-paths.js';
+import { checkOutputsApart, namedInputs, runOutputFiles, type NamedPath } from './output-paths.js';
 import { parseYaml, validateYaml, type LocatedYaml } from './yaml-errors.js';
 
 /**
@@ -126,10 +126,7 @@ export function loadRunConfig(path: string): RunConfig {
 
 /** Every file a run reads, each named by its configuration key. */
 export function runInputs(config: Pick<RunConfig, 'paths' | 'previous'>): NamedPath[] {
-  const inputs: NamedPath[] = FILE_KINDS.flatMap((kind) => {
-    const path = config.paths[kind];
-    return path === undefined ? [] : [{ key: `files.${kind}`, path }];
-  });
+  const inputs = namedInputs(config.paths, 'files.');
   return config.previous === undefined ? inputs : [...inputs, { key: 'previous', path: config.previous }];
 }
 

@@ -1,5 +1,5 @@
 import { Command } from 'commander';
-import { checkOutputsApart } from '../../config/output-paths.js';
+import { checkOutputsApart, namedInputs } from '../../config/output-paths.js';
 import type { FeedPaths } from '../../ingest/feed.js';
 import { loadDay } from '../../job/day.js';
 import { checkStage } from '../../job/stages/checks.js';
@@ -55,9 +55,7 @@ async function runCheckCommand(options: CheckOptions): Promise<number> {
     vendor: options.vendor,
   };
   if (options.out !== undefined) {
-    const inputs = Object.entries({ ...paths, previous: options.previous })
-      .filter((entry): entry is [string, string] => entry[1] !== undefined)
-      .map(([kind, path]) => ({ key: `--${kind}`, path }));
+    const inputs = namedInputs({ ...paths, previous: options.previous });
     const outputs = [{ key: '--out', path: options.out }, { key: '--out', path: quarantinePathFor(options.out) }];
     checkOutputsApart('--out', inputs, outputs);
   }

@@ -1,6 +1,6 @@
 import { Command } from 'commander';
 import { formatIsoDate } from '../../calendar/days.js';
-import { checkOutputsApart } from '../../config/output-paths.js';
+import { checkOutputsApart, namedInputs } from '../../config/output-paths.js';
 import { loadRunConfig } from '../../config/run-config.js';
 import { ConfigError } from '../../ingest/errors.js';
 import type { FeedPaths } from '../../ingest/feed.js';
@@ -57,9 +57,7 @@ async function runIngest(options: IngestOptions): Promise<number> {
   const store = options.store ?? config?.store ?? 'navassay-store';
   const feedName = options.feed ?? config?.feed ?? 'feed';
   requireDirectoryLocation(store, 'the snapshot store');
-  const inputs = Object.entries(paths)
-    .filter((entry): entry is [string, string] => entry[1] !== undefined)
-    .map(([kind, path]) => ({ key: config ? `files.${kind}` : `--${kind}`, path }));
+  const inputs = namedInputs(paths, config ? 'files.' : '--');
   const storeKey = options.store !== undefined || !config ? '--store' : 'store';
   checkOutputsApart(config ? config.path : '--store', inputs, options.out === undefined ? [] : [{ key: '--out', path: options.out }], [
     { key: storeKey, path: store },

@@ -1,4 +1,4 @@
-import { Command, Option } from 'commander';
+import { Command } from 'commander';
 import { lastMonthEndOnOrBefore, todayEpochDay } from '../../calendar/days.js';
 import { ConfigError } from '../../ingest/errors.js';
 import { loadDay } from '../../job/day.js';
@@ -9,7 +9,7 @@ import { loadRunConfig } from '../../config/run-config.js';
 import { parseWindow } from '../../metrics/windows.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { render } from '../../report/render.js';
-import { asOfOption, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf, profilesOption } from '../options.js';
+import { asOfOption, withFigureInputs, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf, profilesOption } from '../options.js';
 import { annualizationNotices, printNotices } from '../notices.js';
 import { emit } from '../output.js';
 
@@ -29,14 +29,7 @@ interface MetricsOptions {
 }
 
 export function metricsCommand(): Command {
-  return new Command('metrics')
-    .description('recompute risk figures from NAVs, benchmark levels and the risk-free rate (default methodology: monthly)')
-    .requiredOption('--nav <file>', 'NAV feed (series_id, date, nav)')
-    .requiredOption('--benchmarks <file>', 'benchmark levels (benchmark_id, date, level)')
-    .requiredOption('--master <file>', 'series master (series_id, benchmark_id, [rate_id] …)')
-    .addOption(new Option('--rates <file>', 'risk-free rates (rate_id, date, rate), matched by the master\'s rate_id').conflicts('rf'))
-    .addOption(new Option('--rf <rate>', 'a constant annual risk-free rate as a decimal, such as 0.02 (with neither --rates nor --rf the rate is zero, and the answer\'s methodology says risk_free: none)'))
-    .option('--actions <file>', 'corporate actions: NAVs are adjusted for the splits and distributions it lists, so returns are total returns')
+  return withFigureInputs(new Command('metrics').description('recompute risk figures from NAVs, benchmark levels and the risk-free rate (default methodology: monthly)'))
     .addOption(profilesOption())
     .option('--set <dimension=value>', 'change one methodology setting, such as sd_denominator=population or frequency=weekly (repeatable; see docs/methodology.md)', collect, [])
     .addOption(asOfOption('the last month-end on or before today'))

@@ -1,6 +1,6 @@
-import { Command, Option } from 'commander';
+import { Command } from 'commander';
 import { todayEpochDay } from '../../calendar/days.js';
-import { checkOutputsApart } from '../../config/output-paths.js';
+import { checkOutputsApart, namedInputs } from '../../config/output-paths.js';
 import { loadRunConfig } from '../../config/run-config.js';
 import { severityRank } from '../../findings.js';
 import { loadDay } from '../../job/day.js';
@@ -11,7 +11,7 @@ import type { ReconcileAnswer } from '../../reconcile/reconcile.js';
 import { loadToleranceFile } from '../../reconcile/tolerance-file.js';
 import { reconcileView } from '../../report/reconcile-answer.js';
 import { render } from '../../report/render.js';
-import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn, profilesOption } from '../options.js';
+import { asOfOption, withFigureInputs, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn, profilesOption } from '../options.js';
 import { emit } from '../output.js';
 import { chosenMethodology, parseRate } from './metrics.js';
 
@@ -32,15 +32,8 @@ interface ReconcileOptions {
 }
 
 export function reconcileCommand(): Command {
-  return new Command('reconcile')
-    .description("judge every vendor figure against navassay's (match, rounding, breach, not_computable) and explain each breach")
-    .requiredOption('--nav <file>', 'NAV feed (series_id, date, nav)')
-    .requiredOption('--benchmarks <file>', 'benchmark levels (benchmark_id, date, level)')
-    .requiredOption('--master <file>', 'series master (series_id, benchmark_id, [rate_id] …)')
+  return withFigureInputs(new Command('reconcile').description("judge every vendor figure against navassay's (match, rounding, breach, not_computable) and explain each breach"))
     .requiredOption('--vendor <file>', 'vendor figures (series_id, as_of, window, metric, value, [unit])')
-    .addOption(new Option('--rates <file>', "risk-free rates (rate_id, date, rate), matched by the master's rate_id").conflicts('rf'))
-    .addOption(new Option('--rf <rate>', 'a constant annual risk-free rate as a decimal, such as 0.02'))
-    .option('--actions <file>', 'corporate actions: NAVs are adjusted for the splits and distributions it lists')
     .addOption(profilesOption())
     .option('--tolerances <file>', 'tolerances per metric, category and series (YAML: run, categories, series); replaces the configuration\'s')
     .addOption(asOfOption("every as-of in the vendor file; with a date, only the vendor's figures of that date"))
@@ -61,10 +54,7 @@ async function runReconcileCommand(options: ReconcileOptions): Promise<number> {
   const methodology = chosenMethodology(config?.methodology ?? DEFAULT_METHODOLOGY, [], options.rates !== undefined || constantRate !== undefined);
   const paths = { nav: options.nav, benchmarks: options.benchmarks, master: options.master, rates: options.rates, actions: options.actions, vendor: options.vendor };
   if (options.out !== undefined) {
-    const inputs = Object.entries({ ...paths, tolerances: options.tolerances, config: options.config })
-      .filter((entry): entry is [string, string] => entry[1] !== undefined)
-      .map(([kind, path]) => ({ key: `--${kind}`, path }));
-    checkOutputsApart('--out', inputs, [{ key: '--out', path: options.out }]);
+    checkOutputsApart('--out', namedInputs({ ...paths, tolerances: options.tolerances, config: options.config }), [{ key: '--out', path: options.out }]);
   }
   const loaded = await loadDay({ paths, asOf: asOf ?? todayEpochDay(), load: loadOptionsOf(config, asOf), constantRate });
   // The checks judge the data as of its own last day unless told otherwise, so nothing in it is "future".
