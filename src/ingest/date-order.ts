@@ -1,7 +1,7 @@
 import { CsvRowScanner } from './csv-rows.js';
 import { ConfigError } from './errors.js';
 import type { DateFormat, FeedProfile } from './profile.js';
-import { numericDateReadings, parseDateText } from './scalars.js';
+import { numericDateReadings, parseDateText, trimSpacesAndTabs } from './scalars.js';
 import type { ColumnSpec } from './schema.js';
 
 /**
@@ -88,7 +88,7 @@ function gatherEvidence(scanner: CsvRowScanner, bytes: Buffer, dateFields: reado
     for (const field of dateFields) {
       // No written date is longer; a huge field is rejected by the row reader, not decoded here.
       if (scanner.ends[field] - scanner.starts[field] > LONGEST_DATE) continue;
-      const text = bytes.toString('utf8', scanner.starts[field], scanner.ends[field]).trim();
+      const text = trimSpacesAndTabs(bytes.toString('utf8', scanner.starts[field], scanner.ends[field]));
       if (text === '' || evidence.record(text, () => scanner.line)) continue;
       if (!evidence.sawNumeric && parseDateText(text, 'auto') !== null) return null;
     }

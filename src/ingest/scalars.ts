@@ -211,7 +211,7 @@ interface DateParts {
  * date at all, rather than 27 November read through its padding.
  */
 function splitDate(text: string): DateParts | null {
-  const parts = text.trim().split(/[-/. ]/);
+  const parts = text.split(/[-/. ]/);
   if (parts.length !== 3) return null;
   let monthNameAt = -1;
   let years = 0;
@@ -248,10 +248,18 @@ export interface DateReadings {
 }
 
 export function numericDateReadings(text: string): DateReadings | null {
-  const parts = splitDate(text);
+  const parts = splitDate(trimSpacesAndTabs(text));
   if (!parts || parts.monthNameAt >= 0 || parts.widths[2] !== 4) return null;
   const [a, b, year] = parts.numbers;
   return { dayFirst: isValidCivilDate(year, b, a), monthFirst: isValidCivilDate(year, a, b) };
+}
+
+/**
+ * Drops the spaces and tabs around a value, as docs/ingestion.md promises for every value, and
+ * nothing else: a vertical tab, form feed or no-break space beside a date is damage, not padding.
+ */
+export function trimSpacesAndTabs(text: string): string {
+  return text.replace(/^[ \t]+|[ \t]+$/g, '');
 }
 
 /**
@@ -260,7 +268,7 @@ export function numericDateReadings(text: string): DateReadings | null {
  * day–month orders need `day-first` or `month-first`.
  */
 export function parseDateText(text: string, format: DateFormat): number | null {
-  const trimmed = text.trim();
+  const trimmed = trimSpacesAndTabs(text);
   if (/^\d{8}$/.test(trimmed) && format !== 'day-first' && format !== 'month-first') {
     return validDay(Number(trimmed.slice(0, 4)), Number(trimmed.slice(4, 6)), Number(trimmed.slice(6, 8)));
   }

@@ -160,6 +160,23 @@ describe('dates', () => {
     );
   });
 
+  it('spaces and tabs around a date are padding; any other blank character is damage', () => {
+    // docs/ingestion.md: "surrounding spaces and tabs are trimmed from every value". A CI seed
+    // found `2019-04-14<vertical tab>` read as a date while the same rule rejects it for a NAV.
+    const day = epochDay(2019, 4, 14);
+    const blanks = fc.constantFrom(' ', '\t');
+    const damage = fc.constantFrom('\v', '\f', '\u00a0', '\u2028', '\ufeff');
+    fc.assert(
+      fc.property(fc.array(blanks, { maxLength: 3 }), fc.array(blanks, { maxLength: 3 }), damage, fc.boolean(), (before, after, odd, atEnd) => {
+        for (const written of ['2019-04-14', '2019/4/14', '20190414', '14-Apr-2019']) {
+          expect(parseDateText(`${before.join('')}${written}${after.join('')}`, 'auto')).toBe(day);
+          expect(parseDateText(atEnd ? `${written}${odd}` : `${odd}${written}`, 'auto')).toBeNull();
+        }
+      }),
+      RUNS,
+    );
+  });
+
   it('a zero-padded day, month or year is not a date: a day or month has one or two digits, a year four', () => {
     // docs/ingestion.md: ISO is exactly YYYY-MM-DD; the other forms allow an unpadded day or
     // month (`2026-1-5`) but never a three- or four-digit one. A tester found `2026-11-0027` read.
