@@ -98,6 +98,36 @@ export function parseNumberInto(bytes: Uint8Array, start: number, end: number, s
   return true;
 }
 
+/**
+ * The common case of `parseNumberInto` read in the pass that finds where the number ends: an
+ * optional minus, then digits with at most one `decimal` mark, 1 to 15 digits in all. Writes the
+ * value (formed exactly as `parseNumberInto` forms it) into `out[index]` and returns the position
+ * of the first byte after the number, or −1 when the text does not start with such a number
+ * (the caller then reads the field with `parseNumberInto`). The caller checks what follows.
+ */
+export function readPlainDecimal(bytes: Uint8Array, position: number, decimal: number, out: Float64Array, index: number): number {
+  const length = bytes.length;
+  const negative = position < length && bytes[position] === MINUS;
+  if (negative) position++;
+  let mantissa = 0;
+  let digits = 0;
+  let fractionDigits = -1; // −1 until the decimal mark
+  for (; position < length; position++) {
+    const digit = bytes[position] - ZERO;
+    if (digit >= 0 && digit <= 9) {
+      mantissa = mantissa * 10 + digit;
+      digits++;
+      if (fractionDigits >= 0) fractionDigits++;
+    } else if (bytes[position] === decimal && fractionDigits < 0) {
+      fractionDigits = 0;
+    } else break;
+  }
+  if (digits === 0 || digits > 15) return -1;
+  const magnitude = fractionDigits <= 0 ? mantissa : mantissa / POWERS_OF_TEN[fractionDigits];
+  out[index] = negative ? -magnitude : magnitude;
+  return position;
+}
+
 function storeSlowNumber(bytes: Uint8Array, start: number, end: number, style: NumberStyle, percent: boolean, out: Float64Array, index: number): boolean {
   const value = slowNumber(bytes, start, end, style, percent);
   out[index] = value;

@@ -1,7 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { civilFromEpochDay, epochDay, formatIsoDate, isValidCivilDate, parseIsoDate } from '../../src/calendar/days.js';
-import { numberStyle, numericDateReadings, parseDateText, parseIsoDateBytes, parseNumberBytes, parseNumberText } from '../../src/ingest/scalars.js';
+import { numberStyle, numericDateReadings, parseDateText, parseIsoDateBytes, parseNumberBytes, parseNumberText, readPlainDecimal } from '../../src/ingest/scalars.js';
 
 const RUNS = { numRuns: 20_000 };
 const finite = fc.double({ noNaN: true, noDefaultInfinity: true });
@@ -213,5 +213,42 @@ describe('dates', () => {
     expect(parseIsoDateBytes(Buffer.from('2024-02-29'), 0, 10)).toBe(epochDay(2024, 2, 29));
     expect(parseIsoDateBytes(Buffer.from('2100-02-29'), 0, 10)).toBeNull();
     expect(parseIsoDateBytes(Buffer.from('2000-02-29'), 0, 10)).toBe(11016);
+  });
+});
+
+/**
+ * The CSV reader's shortcut for plain decimals must give exactly what the general parser gives:
+ * `Number()` of the text is the outside oracle, `parseNumberBytes` the rule it stands in for.
+ */
+describe('readPlainDecimal equals Number() on plain decimals and leaves the rest to parseNumberBytes', () => {
+  it('toFixed(k) of random doubles up to 15 digits is read whole, to the last byte', () => {
+    fc.assert(
+      fc.property(fc.double({ noNaN: true, noDefaultInfinity: true, min: -1e9, max: 1e9 }), fc.integer({ min: 0, max: 5 }), (x, k) => {
+        const text = x.toFixed(k);
+        const bytes = Buffer.from(`${text},`, 'latin1');
+        const out = new Float64Array(1);
+        const end = readPlainDecimal(bytes, 0, 46, out, 0);
+        if (text.replace(/[-.]/g, '').length > 15) return expect(end).toBe(-1);
+        expect(end).toBe(text.length);
+        expect(Object.is(out[0], Number(text))).toBe(true);
+      }),
+      RUNS,
+    );
+  });
+
+  it('any text: either refused, or the number it stops after reads the same under parseNumberBytes', () => {
+    const text = fc.string({ unit: fc.constantFrom('0', '1', '9', '-', '+', '.', ',', 'e', '%', ' ', '"'), maxLength: 20 });
+    fc.assert(
+      fc.property(text, fc.constantFrom('.', ','), (written, decimal) => {
+        const bytes = Buffer.from(written, 'latin1');
+        const out = new Float64Array(1);
+        const end = readPlainDecimal(bytes, 0, decimal.charCodeAt(0), out, 0);
+        if (end < 0) return;
+        const style = numberStyle(decimal, '');
+        expect(Object.is(out[0], parseNumberBytes(bytes, 0, end, style))).toBe(true);
+        expect(/^-?\d*[.,]?\d*$/.test(written.slice(0, end))).toBe(true);
+      }),
+      RUNS,
+    );
   });
 });
