@@ -62,10 +62,55 @@ export function rowCount(frame: SeriesFrame): number {
 
 /**
  * Sorts observations by (id, date) with a counting sort on the id rank, then a date sort
- * only inside the series that arrive out of order; the common, already-sorted feed costs
- * two linear passes.
+ * only inside the series that arrive out of order. The common feed, already sorted, is
+ * recognised in one pass and keeps its columns as they are.
  */
 export function buildSeriesFrame(input: UnsortedObservations): SeriesFrame {
+  return framedInFileOrder(input) ?? sortedFrame(input);
+}
+
+/**
+ * The frame of a feed that arrives sorted (series in ascending id order, dates ascending within
+ * each), or null. It reads the ingested columns as they are instead of a second copy of every
+ * row (16 bytes a row, 400 MB at 25 M rows), and needs no row order array. Nothing writes to a
+ * frame's arrays; adjusted values are a copy (src/series/adjust.ts).
+ */
+function framedInFileOrder(input: UnsortedObservations): SeriesFrame | null {
+  const { codes, dates } = input;
+  const rankOfCode = rankOfEveryCode(input.dictionary);
+  const starts: number[] = [];
+  const runCodes: number[] = [];
+  let previousRank = -1;
+  for (let row = 0; row < codes.length; row++) {
+    const rank = rankOfCode[codes[row]];
+    if (rank === previousRank) {
+      if (dates[row] < dates[row - 1]) return null;
+      continue;
+    }
+    if (rank < previousRank) return null;
+    previousRank = rank;
+    starts.push(row);
+    runCodes.push(codes[row]);
+  }
+  starts.push(codes.length);
+  const ids = runCodes.map((code) => input.dictionary[code]);
+  const indexById = new Map(ids.map((id, i) => [id, i]));
+  return { ids, offsets: Int32Array.from(starts), dates, values: input.values, lines: input.lines, indexById };
+}
+
+/** The rank of every dictionary entry in ascending id order (as `rankDictionary` compares them). */
+function rankOfEveryCode(dictionary: readonly string[]): Int32Array {
+  const order = [...dictionary.keys()].sort(compareIdsOf(dictionary));
+  const rankOfCode = new Int32Array(dictionary.length);
+  order.forEach((code, rank) => (rankOfCode[code] = rank));
+  return rankOfCode;
+}
+
+function compareIdsOf(dictionary: readonly string[]) {
+  return (a: number, b: number) => (dictionary[a] < dictionary[b] ? -1 : dictionary[a] > dictionary[b] ? 1 : 0);
+}
+
+function sortedFrame(input: UnsortedObservations): SeriesFrame {
   const { rankOfCode, sortedIds } = rankDictionary(input.dictionary, input.codes);
   const seriesCount = sortedIds.length;
   const offsets = new Int32Array(seriesCount + 1);
@@ -78,12 +123,6 @@ export function buildSeriesFrame(input: UnsortedObservations): SeriesFrame {
   for (let s = 0; s < seriesCount; s++) sortByDateWithin(order.subarray(offsets[s], offsets[s + 1]), input.dates);
 
   const indexById = new Map(sortedIds.map((id, i) => [id, i]));
-  if (isIdentity(order)) {
-    // The common feed arrives sorted: the frame reads the ingested columns as they are instead
-    // of a second copy of every row (16 bytes a row, 400 MB at 25 M rows). Nothing writes to
-    // a frame's arrays; adjusted values are a copy (src/series/adjust.ts).
-    return { ids: sortedIds, offsets, dates: input.dates, values: input.values, lines: input.lines, indexById };
-  }
   const dates = new Int32Array(order.length);
   const values = new Float64Array(order.length);
   const lines = new Int32Array(order.length);
@@ -96,17 +135,12 @@ export function buildSeriesFrame(input: UnsortedObservations): SeriesFrame {
   return { ids: sortedIds, offsets, dates, values, lines, indexById };
 }
 
-function isIdentity(order: Int32Array): boolean {
-  for (let i = 0; i < order.length; i++) if (order[i] !== i) return false;
-  return true;
-}
-
 /** Ranks the dictionary's ids that occur, in ascending order; codes that never occur are dropped. */
 function rankDictionary(dictionary: readonly string[], codes: Int32Array) {
   const used = new Uint8Array(dictionary.length);
   for (let row = 0; row < codes.length; row++) used[codes[row]] = 1;
   const usedCodes = [...dictionary.keys()].filter((code) => used[code] === 1);
-  usedCodes.sort((a, b) => (dictionary[a] < dictionary[b] ? -1 : dictionary[a] > dictionary[b] ? 1 : 0));
+  usedCodes.sort(compareIdsOf(dictionary));
   const rankOfCode = new Int32Array(dictionary.length).fill(-1);
   usedCodes.forEach((code, rank) => (rankOfCode[code] = rank));
   return { rankOfCode, sortedIds: usedCodes.map((code) => dictionary[code]) };
