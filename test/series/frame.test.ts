@@ -44,7 +44,8 @@ describe('buildSeriesFrame', () => {
     fc.assert(
       fc.property(fc.array(observation, { maxLength: 40 }), (rows) => {
         const sorted = naiveFrame(rows);
-        const inOrder = sorted.dates.map((date, k) => ({ id: sorted.ids[sorted.offsets.findLastIndex((o) => o <= k)], date, value: sorted.values[k] }));
+        const seriesOfRow = (k: number) => sorted.offsets.filter((offset) => offset <= k).length - 1;
+        const inOrder = sorted.dates.map((date, k) => ({ id: sorted.ids[seriesOfRow(k)], date, value: sorted.values[k] }));
         const dictionary = [...new Set(['Z9', ...inOrder.map((row) => row.id).reverse()])];
         expect(framed(inOrder, dictionary)).toEqual(naiveFrame(inOrder));
       }),
