@@ -11,7 +11,11 @@ import { InputError } from './errors.js';
  */
 const PSEUDO_FILE_SYSTEMS = ['/proc/', '/sys/', '/dev/'];
 
-export function readInputFile(path: string, maxBytes: number, what = 'the file'): Buffer {
+/**
+ * `shared` reads the bytes into shared memory (a SharedArrayBuffer), so a worker thread can look
+ * at them without a copy (the Arrow watchdog, arrow-watchdog.ts).
+ */
+export function readInputFile(path: string, maxBytes: number, what = 'the file', shared = false): Buffer {
   const fd = openInput(path, what);
   try {
     const stat = fstatSync(fd);
@@ -20,7 +24,7 @@ export function readInputFile(path: string, maxBytes: number, what = 'the file')
       throw new InputError(`${path}: ${what} is on a system pseudo file system (/proc, /sys or /dev), which navassay does not read; copy the data to a regular file.`);
     }
     if (stat.size > maxBytes) throw tooLarge(path, what, maxBytes);
-    return readAtMost(fd, path, what, maxBytes, stat.size);
+    return readAtMost(fd, path, what, maxBytes, stat.size, shared ? sharedBuffer : Buffer.allocUnsafe);
   } finally {
     closeSync(fd);
   }
@@ -76,13 +80,13 @@ function tooLarge(path: string, what: string, maxBytes: number): InputError {
 }
 
 /** Reads up to `maxBytes`; one byte more means the file is over the limit, whatever its size said. */
-function readAtMost(fd: number, path: string, what: string, maxBytes: number, sizeHint: number): Buffer {
-  let buffer = Buffer.allocUnsafe(Math.min(Math.max(sizeHint, 0) + 1, maxBytes + 1, 1 << 30));
+function readAtMost(fd: number, path: string, what: string, maxBytes: number, sizeHint: number, allocate: (size: number) => Buffer): Buffer {
+  let buffer = allocate(Math.min(Math.max(sizeHint, 0) + 1, maxBytes + 1, 1 << 30));
   let filled = 0;
   for (;;) {
     if (filled === buffer.length) {
       if (filled > maxBytes) throw tooLarge(path, what, maxBytes);
-      const bigger = Buffer.allocUnsafe(Math.min(buffer.length * 2, maxBytes + 1));
+      const bigger = allocate(Math.min(buffer.length * 2, maxBytes + 1));
       buffer.copy(bigger, 0, 0, filled);
       buffer = bigger;
     }
@@ -92,4 +96,8 @@ function readAtMost(fd: number, path: string, what: string, maxBytes: number, si
   }
   if (filled > maxBytes) throw tooLarge(path, what, maxBytes);
   return buffer.subarray(0, filled);
+}
+
+function sharedBuffer(size: number): Buffer {
+  return Buffer.from(new SharedArrayBuffer(size));
 }

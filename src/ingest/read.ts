@@ -35,7 +35,7 @@ export async function readSourceFile(
   profile: FeedProfile,
   limits: ReadLimits = DEFAULT_READ_LIMITS,
 ): Promise<SourceRead> {
-  const bytes = readInputFile(path, limits.maxInputBytes);
+  const bytes = readInputFile(path, limits.maxInputBytes, 'the file', formatOf(path) === 'arrow');
   const sha256 = createHash('sha256').update(bytes).digest('hex');
   return { result: await parseFeedBytes(bytes, path, kind, profile, limits), sha256 };
 }
@@ -47,7 +47,7 @@ export async function readFeedFile(
   profile: FeedProfile,
   limits: ReadLimits = DEFAULT_READ_LIMITS,
 ): Promise<IngestResult> {
-  return parseFeedBytes(readInputFile(path, limits.maxInputBytes), path, kind, profile, limits);
+  return parseFeedBytes(readInputFile(path, limits.maxInputBytes, 'the file', formatOf(path) === 'arrow'), path, kind, profile, limits);
 }
 
 async function parseFeedBytes(bytes: Buffer, path: string, kind: FileKind, profile: FeedProfile, limits: ReadLimits): Promise<IngestResult> {
