@@ -167,8 +167,10 @@ function arrowText(vector: Vector): SourceColumn {
         builder.codeFor(entry === null || entry === undefined ? null : String(entry)),
       );
       const indices = data.values as ArrayLike<number | bigint>;
-      for (let i = 0; i < data.length; i++) {
-        builder.codes[firstRow + i] = isNull?.(i) ? -1 : codeOfEntry[Number(indices[i])];
+      if (!isNull && indices instanceof Int32Array) {
+        for (let i = 0; i < data.length; i++) builder.codes[firstRow + i] = codeOfEntry[indices[i]];
+      } else {
+        for (let i = 0; i < data.length; i++) builder.codes[firstRow + i] = isNull?.(i) ? -1 : codeOfEntry[Number(indices[i])];
       }
     } else {
       const chunk = makeVector(data);

@@ -63,10 +63,24 @@ function validityBitmap(length: number, isValid: (row: number) => boolean): { nu
   return { nullBitmap, nullCount };
 }
 
+/**
+ * A column with no missing value needs no bitmap: Arrow's writer stores none when the null
+ * count is 0, so the stored bytes are the same as with a full one, and the common column
+ * (every row holds a value) costs one counting loop instead of a bit per row.
+ */
+const NO_NULLS = { nullBitmap: new Uint8Array(0), nullCount: 0 };
+
+function countMissing(values: Int32Array | Float64Array | Uint8Array, missing: (value: number) => boolean): number {
+  let count = 0;
+  for (let row = 0; row < values.length; row++) if (missing(values[row])) count++;
+  return count;
+}
+
 function textVector(codes: Int32Array, dictionary: readonly string[]): Vector {
-  const { nullBitmap, nullCount } = validityBitmap(codes.length, (row) => codes[row] >= 0);
+  const complete = countMissing(codes, (code) => code < 0) === 0;
+  const { nullBitmap, nullCount } = complete ? NO_NULLS : validityBitmap(codes.length, (row) => codes[row] >= 0);
   // Null slots still need an index inside the dictionary; 0 is never read through the bitmap.
-  const indices = codes.map((code) => (code < 0 ? 0 : code));
+  const indices = complete ? codes : codes.map((code) => (code < 0 ? 0 : code));
   const type = new Dictionary(new Utf8(), new Int32());
   const values = vectorFromArray([...dictionary], new Utf8());
   return makeVector(makeData({ type, length: codes.length, nullCount, nullBitmap, data: indices, dictionary: values }));
@@ -77,12 +91,14 @@ function primitiveVector<T extends DateDay | Float64>(
   values: T['TArray'],
   holdsValue: (value: number) => boolean,
 ): Vector {
-  const { nullBitmap, nullCount } = validityBitmap(values.length, (row) => holdsValue(values[row] as number));
+  const complete = countMissing(values as Int32Array | Float64Array, (value) => !holdsValue(value)) === 0;
+  const { nullBitmap, nullCount } = complete ? NO_NULLS : validityBitmap(values.length, (row) => holdsValue(values[row] as number));
   return makeVector(makeData({ type, length: values.length, nullCount, nullBitmap, data: values } as never));
 }
 
 function booleanVector(values: Uint8Array, length: number): Vector {
-  const { nullBitmap, nullCount } = validityBitmap(length, (row) => values[row] !== NULL_BOOLEAN);
+  const complete = countMissing(values, (value) => value === NULL_BOOLEAN) === 0;
+  const { nullBitmap, nullCount } = complete ? NO_NULLS : validityBitmap(length, (row) => values[row] !== NULL_BOOLEAN);
   const bits = new Uint8Array(Math.ceil(length / 8));
   for (let row = 0; row < length; row++) if (values[row] === 1) bits[row >> 3] |= 1 << (row & 7);
   return makeVector(makeData({ type: new Bool(), length, nullCount, nullBitmap, data: bits }));
@@ -103,10 +119,14 @@ export function arrowToCanonical(kind: FileKind, arrow: Table, fileName = `${kin
     columns[field.name] = sourceToColumn(arrowSourceColumn(arrow.getChild(field.name)!, field.name, fileName));
   }
   const lineVector = arrow.getChild(LINE_COLUMN);
-  const lines = lineVector
-    ? Int32Array.from(lineVector.toArray() as ArrayLike<number>)
-    : Int32Array.from({ length: arrow.numRows }, (_, row) => row + 1);
+  const lines = lineVector ? copyOfLines(lineVector) : Int32Array.from({ length: arrow.numRows }, (_, row) => row + 1);
   return { kind, length: arrow.numRows, lines, columns };
+}
+
+/** The stored line column as a copy of its own (a view would keep the whole file's bytes alive). */
+function copyOfLines(vector: Vector): Int32Array {
+  const array = vector.toArray() as ArrayLike<number>;
+  return array instanceof Int32Array ? array.slice() : Int32Array.from(array);
 }
 
 function sourceToColumn(source: SourceColumn): Column {

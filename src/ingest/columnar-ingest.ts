@@ -145,7 +145,13 @@ function cleanIdColumn(name: string, column: TextColumn, mode: IdentifierMode): 
     }
     return code;
   });
-  const codes = column.codes.map((code) => (code < 0 ? code : newCode[code]));
+  // Ids that are all clean and distinct keep their codes: no second column of codes.
+  if (newCode.every((code, entry) => code === entry)) return { column: { type: 'text', codes: column.codes, dictionary }, complaints };
+  const codes = new Int32Array(column.codes.length);
+  for (let row = 0; row < codes.length; row++) {
+    const code = column.codes[row];
+    codes[row] = code < 0 ? code : newCode[code];
+  }
   return { column: { type: 'text', codes, dictionary }, complaints };
 }
 
@@ -307,19 +313,24 @@ function findProblems(found: readonly FoundColumn[], rowCount: number, limits: R
     forEachMissing(converted, (row) => {
       if (problemOf[row] === NO_PROBLEM && (!spec.nullable || isPresent(source, row))) problemOf[row] = index;
     });
-    if (converted.type === 'date') {
-      for (let row = 0; row < rowCount; row++) {
-        if (problemOf[row] === NO_PROBLEM && outsideRange(converted.values[row], limits)) problemOf[row] = index;
-      }
-    }
+    if (converted.type === 'date') markOutsideRange(converted.values, limits, problemOf, index);
     const complaintOfCode = complaints;
-    if (!complaintOfCode || converted.type !== 'text') return;
+    if (!complaintOfCode || converted.type !== 'text' || complaintOfCode.every((complaint) => complaint === null)) return;
     for (let row = 0; row < rowCount; row++) {
       const code = converted.codes[row];
       if (problemOf[row] === NO_PROBLEM && code >= 0 && complaintOfCode[code] !== null) problemOf[row] = index;
     }
   });
   return problemOf;
+}
+
+/** Marks the rows not marked yet whose date is present but outside the plausible range. */
+function markOutsideRange(days: Int32Array, limits: ReadLimits, problemOf: Int16Array, index: number): void {
+  const { firstDay, lastDay } = limits;
+  for (let row = 0; row < days.length; row++) {
+    const day = days[row];
+    if (day !== NULL_DATE && (day < firstDay || day > lastDay) && problemOf[row] === NO_PROBLEM) problemOf[row] = index;
+  }
 }
 
 /** A text column's validation run once per distinct value; null when the column has no rule. */
@@ -352,7 +363,8 @@ function assembleResult(file: ColumnarFile, kind: FileKind, found: readonly Foun
   }
   const length = file.rowCount - rejected.length;
   const lines = new Int32Array(length);
-  for (let i = 0; i < length; i++) lines[i] = lineOfRecord(keep ? keep[i] : i);
+  if (keep) for (let i = 0; i < length; i++) lines[i] = lineOfRecord(keep[i]);
+  else for (let i = 0; i < length; i++) lines[i] = lineOfRecord(i);
   const table: CanonicalTable = { kind, length, lines, columns };
   return { file: file.fileName, kind, table, rejected, rows: { read: file.rowCount, accepted: length, rejected: rejected.length } };
 }
