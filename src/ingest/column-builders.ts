@@ -83,7 +83,36 @@ export class TextBuilder implements ColumnBuilder {
     }
     return code;
   }
+  /**
+   * The column with its dictionary in order of first use by the kept rows. A rejected row may
+   * have added a string no kept row uses; dropping it makes the column the same whichever way
+   * the rows were read (whole or through a window, by the plain-row lane or the general path).
+   */
   finish(length: number): Column {
-    return { type: 'text', codes: filled(this.codes, length), dictionary: this.dictionary };
+    const codes = filled(this.codes, length);
+    if (inOrderOfFirstUse(codes, this.dictionary.length)) return { type: 'text', codes, dictionary: this.dictionary };
+    const newCodeOf = new Int32Array(this.dictionary.length).fill(-1);
+    const dictionary: string[] = [];
+    const renumbered = new Int32Array(length);
+    for (let row = 0; row < length; row++) {
+      const code = codes[row];
+      if (code < 0) renumbered[row] = code;
+      else {
+        if (newCodeOf[code] < 0) newCodeOf[code] = dictionary.push(this.dictionary[code]) - 1;
+        renumbered[row] = newCodeOf[code];
+      }
+    }
+    return { type: 'text', codes: renumbered, dictionary };
   }
+}
+
+/** True when every entry is used and each first appears after the one before it. */
+function inOrderOfFirstUse(codes: Int32Array, entries: number): boolean {
+  let next = 0;
+  for (let row = 0; row < codes.length; row++) {
+    const code = codes[row];
+    if (code === next) next++;
+    else if (code > next) return false;
+  }
+  return next === entries;
 }

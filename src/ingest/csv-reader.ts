@@ -1,10 +1,10 @@
 import { BooleanBuilder, DateBuilder, NumberBuilder, TextBuilder, type ColumnBuilder } from './column-builders.js';
 import { CsvRowScanner } from './csv-rows.js';
 import { outsideRange, rangeReason, shownColumnNames } from './columnar-ingest.js';
-import { resolveDateFormat } from './date-order.js';
+import { resolveDateFormat, UNSETTLED } from './date-order.js';
 import { InputError, quoteInput } from './errors.js';
 import { cleanIdentifier, type IdentifierMode } from './identifiers.js';
-import { readInputFile } from './input-file.js';
+import { FileWindow, WINDOW_BYTES, wholeWindow, type CsvWindow } from './csv-window.js';
 import { DEFAULT_READ_LIMITS, limitsForKind, type ReadLimits } from './limits.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
@@ -53,8 +53,26 @@ interface ColumnPlan {
   readonly idCodes: Map<string, number> | null;
 }
 
+/** Reads one canonical CSV file through a window (csv-window.ts); the SHA-256 is of the bytes parsed. */
 export function readCsvFile(path: string, kind: FileKind, profile: FeedProfile, limits: ReadLimits = DEFAULT_READ_LIMITS): IngestResult {
-  return readCsvBuffer(readInputFile(path, limits.maxInputBytes), path, kind, profile, limits);
+  return readCsvSource(path, kind, profile, limits).result;
+}
+
+/** `readCsvFile` with the SHA-256 of the bytes it parsed. */
+export function readCsvSource(
+  path: string,
+  kind: FileKind,
+  profile: FeedProfile,
+  limits: ReadLimits = DEFAULT_READ_LIMITS,
+  windowBytes = WINDOW_BYTES,
+): { result: IngestResult; sha256: string } {
+  const window = FileWindow.open(path, limits.maxInputBytes, windowBytes);
+  try {
+    const result = readCsvWindow(window, path, kind, profile, limits);
+    return { result, sha256: window.sha256() };
+  } finally {
+    window.close();
+  }
 }
 
 /**
@@ -68,44 +86,97 @@ export function readCsvBuffer(
   profile: FeedProfile,
   allLimits: ReadLimits = DEFAULT_READ_LIMITS,
 ): IngestResult {
+  return readCsvWindow(wholeWindow(Buffer.from(input.buffer, input.byteOffset, input.byteLength)), fileName, kind, profile, allLimits);
+}
+
+function readCsvWindow(window: CsvWindow, fileName: string, kind: FileKind, profile: FeedProfile, allLimits: ReadLimits): IngestResult {
   const limits = limitsForKind(kind, allLimits);
-  const bytes = Buffer.from(input.buffer, input.byteOffset, input.byteLength);
-  const begin = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
   const quote = profile.quote.charCodeAt(0);
-  const delimiter = chooseDelimiter(bytes, begin, profile, fileName);
-  const header = readHeader(bytes, begin, delimiter, quote, fileName, kind, limits.maxHeaderColumns);
+  wholeFirstLine(window);
+  const begin = window.bytes[0] === 0xef && window.bytes[1] === 0xbb && window.bytes[2] === 0xbf ? 3 : 0;
+  const delimiter = chooseDelimiter(window.bytes, begin, profile, fileName);
+  const header = wholeHeader(window, begin, delimiter, quote, fileName, kind, limits.maxHeaderColumns);
   const plans = planColumns(header.names, kind, profile, fileName);
-  const dateFormat = resolveDateFormat(bytes, header.headerStart, header.names.length, delimiter, quote, plans, profile, fileName);
+  const dateFormat = settledDateFormat(window, header, delimiter, quote, plans, profile, fileName);
   const rules = { limits, identifiers: profile.identifiers ?? 'strict' };
-  const reader = new RowReader(bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands), quote, rules);
-  reader.reserve(estimateRows(bytes, header.headerStart));
-  const scanner = new CsvRowScanner(bytes, header.headerStart, delimiter, quote, header.names.length + 1);
+  const reader = new RowReader(window.bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands), quote, rules);
+  reader.reserve(estimateRows(window.bytes, header.headerStart, window.totalBytes));
+  const fieldCount = header.names.length;
+  let scanner = new CsvRowScanner(window.bytes, header.headerStart, delimiter, quote, fieldCount + 1);
   scanner.next(); // the header row itself
-  const plainLane = reader.canTakePlainRows() ? { delimiter, fieldCount: header.names.length } : null;
+  const plainLane = reader.canTakePlainRows();
   let position = scanner.nextPosition;
   let line = scanner.nextLineNumber;
   for (;;) {
-    if (plainLane) ({ position, line } = reader.takePlainRows(position, line, plainLane.fieldCount, plainLane.delimiter));
+    if (plainLane) ({ position, line } = reader.takePlainRows(position, line, fieldCount, delimiter, plainEnd(window)));
     scanner.seek(position, line);
-    if (!scanner.next()) break;
-    if (!scanner.isBlank()) reader.take(scanner, header.names.length);
+    const got = scanner.next();
+    if (!window.final && (!got || !scanner.isWhole(false))) {
+      // The row goes on past the window: keep it, read on, and look at it again.
+      window.moveOn(position);
+      reader.moveTo(window.bytes);
+      scanner = new CsvRowScanner(window.bytes, 0, delimiter, quote, fieldCount + 1);
+      position = 0;
+      continue;
+    }
+    if (!got) break;
+    if (!scanner.isBlank()) reader.take(scanner, fieldCount);
     position = scanner.nextPosition;
     line = scanner.nextLineNumber;
   }
   return reader.finish(kind);
 }
 
+/** Where plain rows may be read up to: the end of the input, or just after the window's last line feed. */
+function plainEnd(window: CsvWindow): number {
+  if (window.final) return window.bytes.length;
+  return window.bytes.lastIndexOf(LF) + 1;
+}
+
+/** Grows the first window until it holds the whole first line, which names the delimiter. */
+function wholeFirstLine(window: CsvWindow): void {
+  while (!window.final && window.bytes.indexOf(LF) < 0 && window.bytes.indexOf(CR) < 0) window.moveOn(0);
+}
+
+/** The header row, read again over a larger window while it runs past the window's end. */
+function wholeHeader(window: CsvWindow, begin: number, delimiter: number, quote: number, fileName: string, kind: FileKind, maxColumns: number) {
+  for (;;) {
+    const scanner = new CsvRowScanner(window.bytes, begin, delimiter, quote, maxColumns + 1);
+    if (window.final || (scanner.next() && scanner.isWhole(false))) return readHeader(window.bytes, begin, delimiter, quote, fileName, kind, maxColumns);
+    window.moveOn(0);
+  }
+}
+
 /**
- * Rows to reserve room for, from the average line length of the first 64 KiB, so the columns
- * are allocated once instead of doubling twenty times on a large file.
+ * The date order, from the first window when its rows settle it (an explicit profile, or a
+ * first readable date that needs no order); otherwise from every row of the file, read whole.
  */
-function estimateRows(bytes: Uint8Array, begin: number): number {
+function settledDateFormat(
+  window: CsvWindow,
+  header: { names: string[]; headerStart: number },
+  delimiter: number,
+  quote: number,
+  plans: ColumnPlan[],
+  profile: FeedProfile,
+  fileName: string,
+): DateFormat {
+  const fromWindow = resolveDateFormat(window.bytes, header.headerStart, header.names.length, delimiter, quote, plans, profile, fileName, window.final);
+  if (fromWindow !== UNSETTLED) return fromWindow;
+  window.takeAll();
+  return resolveDateFormat(window.bytes, header.headerStart, header.names.length, delimiter, quote, plans, profile, fileName) as DateFormat;
+}
+
+/**
+ * Rows to reserve room for, from the average line length of the first 64 KiB and the size of
+ * the whole input, so the columns are allocated once instead of doubling twenty times.
+ */
+function estimateRows(bytes: Uint8Array, begin: number, totalBytes: number): number {
   const sampleEnd = Math.min(bytes.length, begin + 65536);
   let lineFeeds = 0;
   for (let i = begin; i < sampleEnd; i++) if (bytes[i] === LF) lineFeeds++;
   if (lineFeeds === 0) return 1024;
   const averageLine = (sampleEnd - begin) / lineFeeds;
-  return Math.ceil(((bytes.length - begin) / averageLine) * 1.02) + 16;
+  return Math.ceil(((totalBytes - begin) / averageLine) * 1.02) + 16;
 }
 
 function chooseDelimiter(bytes: Buffer, begin: number, profile: FeedProfile, fileName: string): number {
@@ -201,7 +272,7 @@ class RowReader {
   private lines = new Int32Array(1024);
 
   constructor(
-    private readonly bytes: Buffer,
+    private bytes: Buffer,
     private readonly fileName: string,
     private readonly plans: ColumnPlan[],
     private readonly dateFormat: DateFormat,
@@ -209,6 +280,19 @@ class RowReader {
     private readonly quote: number,
     private readonly rules: { readonly limits: ReadLimits; readonly identifiers: IdentifierMode },
   ) {}
+
+  /**
+   * Moves on to the next window of the file. The previous id of each column was found by its
+   * place in the old window, so it is forgotten (the next row decodes its id again).
+   */
+  moveTo(bytes: Buffer): void {
+    this.bytes = bytes;
+    for (const plan of this.plans) {
+      plan.lastStart = -1;
+      plan.lastEnd = -1;
+      plan.lastCode = -1;
+    }
+  }
 
   /** The plain-row lane serves files whose columns are all ids, ISO dates and numbers. */
   canTakePlainRows(): boolean {
@@ -221,8 +305,9 @@ class RowReader {
    * into the columns and returns where the first other row starts; that row takes the general path,
    * which explains or accepts it. Same results as the general path, several times faster.
    */
-  takePlainRows(position: number, line: number, fieldCount: number, delimiter: number): { position: number; line: number } {
-    const length = this.bytes.length;
+  takePlainRows(position: number, line: number, fieldCount: number, delimiter: number, end: number): { position: number; line: number } {
+    const length = end;
+    this.plainLength = end;
     this.plansByField ??= Array.from({ length: fieldCount }, (_, k) => this.plans.find((plan) => plan.field === k) ?? null);
     this.shortcutsByField ??= Uint8Array.from(this.plansByField, (plan) => this.shortcutFor(plan, delimiter));
     this.plainDelimiter = delimiter;
@@ -251,7 +336,7 @@ class RowReader {
    */
   private takePlainRow(position: number, row: number, fieldCount: number, delimiter: number): number {
     const bytes = this.bytes;
-    const length = bytes.length;
+    const length = this.plainLength;
     const quote = this.quote;
     const planByField = this.plansByField!;
     const shortcuts = this.shortcutsByField!;
@@ -304,7 +389,7 @@ class RowReader {
     const size = plan.lastEnd - plan.lastStart;
     if (size <= 0) return -1;
     const end = position + size;
-    if (end > this.bytes.length || !this.endsField(end) || !this.sameBytes(position, plan.lastStart, size)) return -1;
+    if (end > this.plainLength || !this.endsField(end) || !this.sameBytes(position, plan.lastStart, size)) return -1;
     (plan.builder as TextBuilder).codes[row] = plan.lastCode;
     return end;
   }
@@ -312,7 +397,7 @@ class RowReader {
   /** The date shortcut: ten bytes `YYYY-MM-DD` ending the field, a real date within the limits. */
   private isoDateField(plan: ColumnPlan, position: number, row: number): number {
     const end = position + 10;
-    if (end > this.bytes.length || !this.endsField(end) || this.rules.limits.maxFieldBytes < 10) return -1;
+    if (end > this.plainLength || !this.endsField(end) || this.rules.limits.maxFieldBytes < 10) return -1;
     const day = isoDateAt(this.bytes, position);
     if (day === INVALID_DAY || day < this.rules.limits.firstDay || day > this.rules.limits.lastDay) return -1;
     (plan.builder as DateBuilder).values[row] = day;
@@ -328,7 +413,7 @@ class RowReader {
 
   /** True when a field of a plain row can end at `position`: a delimiter, a line ending or the end. */
   private endsField(position: number): boolean {
-    if (position >= this.bytes.length) return true;
+    if (position >= this.plainLength) return true;
     const c = this.bytes[position];
     return c === this.plainDelimiter || c === LF || c === CR;
   }
@@ -338,6 +423,8 @@ class RowReader {
   /** The shortcut each field of a plain row tries first. */
   private shortcutsByField: Uint8Array | null = null;
   private plainDelimiter = -1;
+  /** Where plain rows may be read up to in the current window (see `plainEnd`). */
+  private plainLength = 0;
 
   private shortcutFor(plan: ColumnPlan | null, delimiter: number): number {
     if (plan === null) return NO_SHORTCUT;

@@ -23,6 +23,8 @@ export class CsvRowScanner {
   error: string | null = null;
   /** True when a quoted field carried the row over more than one physical line. */
   spansLines = false;
+  /** True when a quoted field found no closing quote before the end of the bytes. */
+  quoteRanOut = false;
 
   private position: number;
   private nextLine = 1;
@@ -65,12 +67,16 @@ export class CsvRowScanner {
     this.fieldCount = 0;
     this.error = null;
     this.spansLines = false;
+    this.quoteRanOut = false;
     let position = this.position;
     for (;;) {
       const fieldStart = position;
       if (position < length && bytes[position] === this.quote) {
         const close = this.closingQuote(position + 1);
-        if (close < 0) return this.failOnPhysicalLine('a quoted field is never closed (unbalanced quote)');
+        if (close < 0) {
+          this.quoteRanOut = true;
+          return this.failOnPhysicalLine('a quoted field is never closed (unbalanced quote)');
+        }
         if (!this.spansLines && hasLineBreak(bytes, fieldStart, close)) this.spansLines = true;
         this.record(fieldStart + 1, close, 1);
         position = close + 1;
@@ -95,6 +101,15 @@ export class CsvRowScanner {
     this.position = skipLineEnding(bytes, position);
     this.nextLine += this.spansLines ? 1 + countLineBreaks(bytes, this.rowStart, this.rowEnd) : 1;
     return true;
+  }
+
+  /**
+   * True when the row just read is certainly whole. When the bytes are only a window of the
+   * file (`final` false), a row that reaches their end, or whose quote found no closing quote
+   * in them, may go on in the bytes that follow.
+   */
+  isWhole(final: boolean): boolean {
+    return final || (this.position < this.bytes.length && !this.quoteRanOut);
   }
 
   /** True for a line with nothing on it (not a data row). */

@@ -65,25 +65,40 @@ export function resolveDateFormat(
   plans: readonly DateFieldPlan[],
   profile: FeedProfile,
   fileName: string,
-): DateFormat {
+  final = true,
+): DateFormat | typeof UNSETTLED {
   if (profile.date_format !== 'auto') return profile.date_format;
   const dateFields = plans.filter((plan) => plan.spec.type === 'date').map((plan) => plan.field);
   if (dateFields.length === 0) return 'auto';
   const scanner = new CsvRowScanner(bytes, headerStart, delimiter, quote, fieldCount + 1);
   scanner.next();
-  const evidence = gatherEvidence(scanner, bytes, dateFields, fieldCount);
+  const evidence = gatherEvidence(scanner, bytes, dateFields, fieldCount, final);
+  if (evidence === UNSETTLED) return UNSETTLED;
   if (!evidence) return 'auto';
   return evidence.decide(fileName);
 }
+
+/**
+ * What `resolveDateFormat` answers when `bytes` are only the first window of the file
+ * (`final` false) and the rows in it do not settle the order: the caller reads the whole file.
+ */
+export const UNSETTLED = 'unsettled';
 
 /**
  * Scans the date fields of the rows that split into the header's number of fields. Returns null
  * (keep `auto`) when the first such row with a readable date writes it in a form that needs no
  * order (ISO, `YYYYMMDD`, a month name); rows whose dates are unreadable either way do not count.
  */
-function gatherEvidence(scanner: CsvRowScanner, bytes: Buffer, dateFields: readonly number[], fieldCount: number): DateOrderEvidence | null {
+function gatherEvidence(
+  scanner: CsvRowScanner,
+  bytes: Buffer,
+  dateFields: readonly number[],
+  fieldCount: number,
+  final: boolean,
+): DateOrderEvidence | null | typeof UNSETTLED {
   const evidence = new DateOrderEvidence();
   while (scanner.next()) {
+    if (!scanner.isWhole(final)) return UNSETTLED;
     if (scanner.isBlank() || scanner.error !== null || scanner.fieldCount !== fieldCount) continue;
     for (const field of dateFields) {
       // No written date is longer; a huge field is rejected by the row reader, not decoded here.
@@ -93,5 +108,6 @@ function gatherEvidence(scanner: CsvRowScanner, bytes: Buffer, dateFields: reado
       if (!evidence.sawNumeric && parseDateText(text, 'auto') !== null) return null;
     }
   }
+  if (!final) return UNSETTLED;
   return evidence.sawNumeric ? evidence : null;
 }

@@ -16,6 +16,19 @@ const PSEUDO_FILE_SYSTEMS = ['/proc/', '/sys/', '/dev/'];
  * at them without a copy (the Arrow watchdog, arrow-watchdog.ts).
  */
 export function readInputFile(path: string, maxBytes: number, what = 'the file', shared = false): Buffer {
+  const { fd, size } = openInputFile(path, maxBytes, what);
+  try {
+    return readAtMost(fd, path, what, maxBytes, size, shared ? sharedBuffer : Buffer.allocUnsafe);
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/**
+ * Opens an input file for reading after the checks above (a regular file, not on a pseudo file
+ * system, not over the size limit); the caller reads it and closes `fd`, and stops at the limit.
+ */
+export function openInputFile(path: string, maxBytes: number, what = 'the file'): { fd: number; size: number } {
   const fd = openInput(path, what);
   try {
     const stat = fstatSync(fd);
@@ -24,9 +37,10 @@ export function readInputFile(path: string, maxBytes: number, what = 'the file',
       throw new InputError(`${path}: ${what} is on a system pseudo file system (/proc, /sys or /dev), which navassay does not read; copy the data to a regular file.`);
     }
     if (stat.size > maxBytes) throw tooLarge(path, what, maxBytes);
-    return readAtMost(fd, path, what, maxBytes, stat.size, shared ? sharedBuffer : Buffer.allocUnsafe);
-  } finally {
+    return { fd, size: stat.size };
+  } catch (error) {
     closeSync(fd);
+    throw error;
   }
 }
 
@@ -73,7 +87,7 @@ function kindOf(stat: { isDirectory(): boolean; isFIFO(): boolean; isCharacterDe
   return 'not a plain file';
 }
 
-function tooLarge(path: string, what: string, maxBytes: number): InputError {
+export function tooLarge(path: string, what: string, maxBytes: number): InputError {
   return new InputError(
     `${path}: ${what} is larger than the limit of ${maxBytes} bytes; raise limits.max_input_bytes in the run configuration if it is genuine.`,
   );

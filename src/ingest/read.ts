@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { extname } from 'node:path';
 import { readArrowBuffer } from './arrow-reader.js';
 import { decodeArrowUnderWatchdog } from './arrow-watchdog.js';
-import { readCsvBuffer } from './csv-reader.js';
+import { readCsvBuffer, readCsvSource } from './csv-reader.js';
 import { cutInput, InputError, NavassayError } from './errors.js';
 import { readInputFile } from './input-file.js';
 import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
@@ -35,6 +35,13 @@ export async function readSourceFile(
   profile: FeedProfile,
   limits: ReadLimits = DEFAULT_READ_LIMITS,
 ): Promise<SourceRead> {
+  if (formatOf(path) === 'csv') {
+    try {
+      return readCsvSource(path, kind, profile, limits);
+    } catch (error) {
+      throw asInputError(error, path, 'csv');
+    }
+  }
   const bytes = readInputFile(path, limits.maxInputBytes, 'the file', formatOf(path) === 'arrow');
   const sha256 = createHash('sha256').update(bytes).digest('hex');
   return { result: await parseFeedBytes(bytes, path, kind, profile, limits), sha256 };
@@ -47,6 +54,7 @@ export async function readFeedFile(
   profile: FeedProfile,
   limits: ReadLimits = DEFAULT_READ_LIMITS,
 ): Promise<IngestResult> {
+  if (formatOf(path) === 'csv') return (await readSourceFile(path, kind, profile, limits)).result;
   return parseFeedBytes(readInputFile(path, limits.maxInputBytes, 'the file', formatOf(path) === 'arrow'), path, kind, profile, limits);
 }
 
