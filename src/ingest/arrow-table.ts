@@ -1,5 +1,6 @@
 import { writeFileSync } from 'node:fs';
 import {
+  AsyncByteQueue,
   Bool,
   DateDay,
   Dictionary,
@@ -7,6 +8,7 @@ import {
   Int32,
   makeData,
   makeVector,
+  RecordBatchFileWriter,
   Table,
   tableFromIPC,
   tableToIPC,
@@ -145,6 +147,27 @@ function sourceToColumn(source: SourceColumn): Column {
 /** The table as Arrow IPC file-format bytes. */
 export function canonicalToArrowIpc(table: CanonicalTable): Uint8Array {
   return tableToIPC(canonicalToArrow(table), 'file');
+}
+
+/**
+ * The same bytes as `canonicalToArrowIpc`, handed to `write` chunk by chunk as Arrow's writer
+ * makes them (mostly views of the columns themselves), so a large table is never copied whole.
+ */
+export function writeCanonicalArrowIpc(table: CanonicalTable, write: (chunk: Uint8Array) => void): void {
+  const writer = new RecordBatchFileWriter();
+  writer.reset(new ChunkSink(write));
+  writer.writeAll(canonicalToArrow(table));
+}
+
+/** A sink for Arrow's writer that passes each chunk on at once instead of queueing it. */
+class ChunkSink extends AsyncByteQueue {
+  constructor(private readonly take: (chunk: Uint8Array) => void) {
+    super();
+  }
+
+  override write(value: Uint8Array): void {
+    if (value.byteLength > 0) this.take(value);
+  }
 }
 
 export function arrowIpcToCanonical(kind: FileKind, bytes: Uint8Array, fileName?: string): CanonicalTable {

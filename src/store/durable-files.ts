@@ -20,6 +20,27 @@ export function writeFileDurably(path: string, data: Uint8Array | string): void 
 }
 
 /**
+ * Writes a file from the chunks `produce` hands to its `write` callback, as they come, and
+ * flushes it to the disk before returning; returns the SHA-256 of everything written. A large
+ * file is never held whole in memory.
+ */
+export function writeChunksDurably(path: string, produce: (write: (chunk: Uint8Array) => void) => void): string {
+  const fd = openSync(path, 'wx');
+  const hash = createHash('sha256');
+  try {
+    produce((chunk) => {
+      let written = 0;
+      while (written < chunk.length) written += writeSync(fd, chunk, written, chunk.length - written);
+      hash.update(chunk);
+    });
+    fsyncSync(fd);
+  } finally {
+    closeSync(fd);
+  }
+  return hash.digest('hex');
+}
+
+/**
  * Flushes a directory's entries (a rename, a new file) to the disk. Some platforms cannot open a
  * directory for syncing; there the rename is as durable as the platform makes it.
  */

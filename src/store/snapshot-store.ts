@@ -2,13 +2,13 @@ import { randomBytes } from 'node:crypto';
 import { existsSync, mkdirSync, readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { parseIsoDate } from '../calendar/days.js';
-import { arrowIpcToCanonical, canonicalToArrowIpc } from '../ingest/arrow-table.js';
+import { arrowIpcToCanonical, canonicalToArrowIpc, writeCanonicalArrowIpc } from '../ingest/arrow-table.js';
 import { ConfigError, cutInput, InputError, NavassayError } from '../ingest/errors.js';
 import { onPseudoFileSystem } from '../ingest/input-file.js';
 import type { RejectedRow } from '../ingest/records.js';
 import type { FileKind } from '../ingest/schema.js';
 import type { CanonicalTable, IngestResult } from '../ingest/table.js';
-import { removeTree, renameDurably, sha256Bytes, syncDirectory, writeFileDurably } from './durable-files.js';
+import { removeTree, renameDurably, sha256Bytes, syncDirectory, writeChunksDurably, writeFileDurably } from './durable-files.js';
 import { DEFAULT_LOCK_WAIT_MS, lockFeed, processIsAlive } from './feed-lock.js';
 import {
   MANIFEST_FILE,
@@ -115,7 +115,7 @@ function writeLocked(
   const manifest = storeStep(storeDir, () => {
     try {
       mkdirSync(staging);
-      const staged = stageSnapshot(staging, input, sourceOf, options.now ?? new Date(), options.writeFile ?? writeFileDurably);
+      const staged = stageSnapshot(staging, input, sourceOf, options.now ?? new Date(), options.writeFile);
       syncDirectory(staging);
       syncDirectory(feedDir);
       return staged;
@@ -189,12 +189,12 @@ function stageSnapshot(
   input: SnapshotInput,
   sourceOf: Map<FileKind, SnapshotSource>,
   now: Date,
-  writeFile: (path: string, data: Uint8Array | string) => void,
+  writeFileInstead: ((path: string, data: Uint8Array | string) => void) | undefined,
 ): SnapshotManifest {
+  const writeFile = writeFileInstead ?? writeFileDurably;
   const files: SnapshotFile[] = input.results.map((result) => {
     const storedFile = `${result.kind}.arrow`;
-    const bytes = canonicalToArrowIpc(result.table);
-    writeFile(join(staging, storedFile), bytes);
+    const storedSha256 = writeStoredTable(join(staging, storedFile), result.table, writeFileInstead);
     const source = sourceOf.get(result.kind)!;
     return {
       kind: result.kind,
@@ -202,7 +202,7 @@ function stageSnapshot(
       source_sha256: source.sha256,
       rows: { ...result.rows },
       stored_file: storedFile,
-      stored_sha256: sha256Bytes(bytes),
+      stored_sha256: storedSha256,
     };
   });
   const rejected = input.results.flatMap((result) => result.rejected);
@@ -220,6 +220,18 @@ function stageSnapshot(
   // The manifest goes last: a directory without one was never finished.
   writeFile(join(staging, MANIFEST_FILE), `${JSON.stringify(manifest, null, 2)}\n`);
   return manifest;
+}
+
+/**
+ * Writes one table as Arrow IPC and returns the SHA-256 of its bytes. The table streams to the
+ * disk chunk by chunk (no second copy of a 25-million-row table in memory); a test's own
+ * `writeFile` gets the whole bytes, as before.
+ */
+function writeStoredTable(path: string, table: CanonicalTable, writeFile: ((path: string, data: Uint8Array | string) => void) | undefined): string {
+  if (writeFile === undefined) return writeChunksDurably(path, (write) => writeCanonicalArrowIpc(table, write));
+  const bytes = canonicalToArrowIpc(table);
+  writeFile(path, bytes);
+  return sha256Bytes(bytes);
 }
 
 /**
