@@ -71,10 +71,12 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
   const writeTable = (name: CommandAnswer, format: OutputFormat, text: () => string) => {
     if (!(FOR_READING.has(format) && tooLong.includes(name))) write(reportFileName(name, format), text());
   };
+  // Each view is built at most once, and only for a format that reads it (json does not).
+  const views = { check: once(() => checkView(check)), metrics: metrics && once(() => metricsView(metrics)), reconcile: reconciliation && once(() => reconcileView(reconciliation)) };
   for (const format of place.formats) {
-    writeTable('check', format, () => render(format, check, checkView(check)));
-    if (metrics) writeTable('metrics', format, () => render(format, metrics, metricsView(metrics)));
-    if (reconciliation) writeTable('reconcile', format, () => render(format, reconciliation, reconcileView(reconciliation)));
+    writeTable('check', format, () => render(format, check, views.check));
+    if (metrics && views.metrics) writeTable('metrics', format, () => render(format, metrics, views.metrics!));
+    if (reconciliation && views.reconcile) writeTable('reconcile', format, () => render(format, reconciliation, views.reconcile!));
   }
   const quarantine = join(place.dir, QUARANTINE_FILE);
   writeQuarantine(quarantine, day.feed.rejected);
@@ -83,6 +85,11 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
 }
 
 type CommandAnswer = 'check' | 'metrics' | 'reconcile';
+
+function once<T>(make: () => T): () => T {
+  let made: { value: T } | null = null;
+  return () => (made ??= { value: make() }).value;
+}
 
 /**
  * Above this many rows a table is not written as html, markdown or text: nobody reads a table
