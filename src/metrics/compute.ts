@@ -4,7 +4,7 @@ import { findSeries, type SeriesFrame } from '../series/frame.js';
 import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { failure, success, type Outcome } from '../outcome.js';
-import { sampleWindow, type BenchmarkSource, type RiskFreeSource, type WindowSample } from './sampling.js';
+import { sampleWindow, type BenchmarkSource, type RiskFreeSource, type SampleParts, type WindowSample } from './sampling.js';
 import { windowStatistics, type WindowStatistics } from './statistics.js';
 import { parseWindow, windowMonths } from './windows.js';
 
@@ -103,6 +103,7 @@ function drawdownObservations(stats: WindowStatistics, methodology: Methodology)
 export class MetricCalculator {
   private readonly masterById = new Map<string, SeriesMasterRecord>();
   private readonly cache = new Map<string, Outcome<WindowStatistics>>();
+  private readonly parts = new LatestSeriesParts();
 
   constructor(private readonly inputs: MetricInputs) {
     for (const record of inputs.master) {
@@ -146,7 +147,8 @@ export class MetricCalculator {
     if (months === null) throw new RangeError(unknownWindowMessage(request.window));
     const fund = findSeries(this.inputs.nav, request.seriesId);
     if (!fund || fund.dates.length === 0) return { ok: false, reason: `series ${request.seriesId} has no NAV observations` };
-    return sampleWindow({
+    return sampleWindow(
+      {
       fund,
       benchmark: this.benchmarkSource(request.seriesId, methodology),
       riskFree: this.riskFreeSource(request.seriesId, methodology),
@@ -154,7 +156,9 @@ export class MetricCalculator {
       asOf: request.asOf,
       frequency: methodology.frequency,
       ratePerPeriod: (annualRate) => perPeriodRate(annualRate, methodology),
-    });
+      },
+      this.parts.of(request, methodology),
+    );
   }
 
   /** The benchmark a series is measured against: the methodology's override, else the master's. */
@@ -195,6 +199,36 @@ export class MetricCalculator {
   private cacheKey(request: Omit<MetricRequest, 'metric'>, m: Methodology): string {
     const sampling = [m.frequency, m.window_end, m.benchmark ?? '', riskFreeKey(m), ratePeriodsOf(m), m.rate_conversion];
     return [request.seriesId, request.asOf, request.window, ...sampling].join('|');
+  }
+}
+
+/**
+ * The parts of the latest series' window samples (src/metrics/sampling.ts, SampleParts), each
+ * under the settings it depends on. Only one series' parts are kept: the convention search asks
+ * for one figure's variants together, and figures come series by series, so memory stays that
+ * of one series however large the universe.
+ */
+class LatestSeriesParts {
+  private seriesId: string | null = null;
+  private readonly kept = new Map<string, Outcome<unknown>>();
+
+  of(request: Omit<MetricRequest, 'metric'>, m: Methodology): SampleParts {
+    if (request.seriesId !== this.seriesId) {
+      this.kept.clear();
+      this.seriesId = request.seriesId;
+    }
+    const window = `${request.asOf}|${request.window}|${m.frequency}|${m.window_end}`;
+    return {
+      fund: (compute) => this.keep(`fund|${window}`, compute),
+      benchmark: (compute) => this.keep(`benchmark|${window}|${m.benchmark ?? ''}`, compute),
+      riskFree: (compute) => this.keep(`risk-free|${window}|${riskFreeKey(m)}|${ratePeriodsOf(m)}|${m.rate_conversion}`, compute),
+    };
+  }
+
+  private keep<T>(key: string, compute: () => Outcome<T>): Outcome<T> {
+    let part = this.kept.get(key) as Outcome<T> | undefined;
+    if (!part) this.kept.set(key, (part = compute()));
+    return part;
   }
 }
 

@@ -55,29 +55,56 @@ export interface WindowSample {
 /** A weekly or daily period without a rate may take the latest one observed this many days before its end. */
 export const RATE_LOOKBACK_DAYS = 31;
 
-export function sampleWindow(request: WindowRequest): Outcome<WindowSample> {
+/** The fund's part of a window's sample: it depends on the fund, the window and the frequency only. */
+export type FundSample = Pick<WindowSample, 'fund' | 'navPath' | 'pointDays'>;
+
+/**
+ * Where a caller may keep the three parts of a window's sample between calls. The convention
+ * search asks for the same window under many methodologies: another benchmark leaves the fund's
+ * returns and the risk-free returns as they were, another rate conversion the fund's and the
+ * benchmark's. Each function gets the part's computation and returns its result, computed or kept.
+ */
+export interface SampleParts {
+  readonly fund: (compute: () => Outcome<FundSample>) => Outcome<FundSample>;
+  readonly benchmark: (compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
+  readonly riskFree: (compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
+}
+
+const COMPUTED_EACH_TIME: SampleParts = { fund: (compute) => compute(), benchmark: (compute) => compute(), riskFree: (compute) => compute() };
+
+export function sampleWindow(request: WindowRequest, parts: SampleParts = COMPUTED_EACH_TIME): Outcome<WindowSample> {
+  const sampled = parts.fund(() => sampleFund(request));
+  if (!sampled.ok) return sampled;
+  const { pointDays } = sampled.value;
+  const benchmark = parts.benchmark(() => benchmarkReturns(request, pointDays));
+  const riskFree = parts.riskFree(() => riskFreeReturns(request, pointDays));
+  return {
+    ok: true,
+    value: {
+      fund: sampled.value.fund,
+      benchmark: benchmark.ok ? benchmark.value : null,
+      benchmarkReason: benchmark.ok ? null : benchmark.reason,
+      riskFree: riskFree.ok ? riskFree.value : null,
+      riskFreeReason: riskFree.ok ? null : riskFree.reason,
+      navPath: sampled.value.navPath,
+      pointDays,
+    },
+  };
+}
+
+function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'frequency'>): Outcome<FundSample> {
   const { fund, span, asOf, frequency } = request;
   const fundMonthEnds = coverWindow(fund, span, asOf, 'NAV');
   if (!fundMonthEnds.ok) return fundMonthEnds;
   const sampled = positiveAt(fund, samplePoints(fund.dates, fundMonthEnds.value, frequency), 'NAV');
   if (!sampled.ok) return sampled;
   const points = sampled.value;
-  const pointDays = gatherDays(fund.dates, points);
-  const first = points[0];
-  const last = points[points.length - 1];
-
-  const benchmark = benchmarkReturns(request, pointDays);
-  const riskFree = riskFreeReturns(request, pointDays);
   return {
     ok: true,
     value: {
       fund: returnsAt(fund.values, points),
-      benchmark: benchmark.ok ? benchmark.value : null,
-      benchmarkReason: benchmark.ok ? null : benchmark.reason,
-      riskFree: riskFree.ok ? riskFree.value : null,
-      riskFreeReason: riskFree.ok ? null : riskFree.reason,
-      navPath: fund.values.subarray(first, last + 1),
-      pointDays,
+      navPath: fund.values.subarray(points[0], points[points.length - 1] + 1),
+      pointDays: gatherDays(fund.dates, points),
     },
   };
 }
