@@ -244,8 +244,12 @@ export function benchmarkPointsOnFundDates(
 ): Int32Array {
   const points = new Int32Array(fundDays.length);
   const last = fundDays.length - 1;
+  // The fund's days ascend, so the benchmark's latest level is found by walking on, not by a
+  // binary search per point: `above` is upperBound(dates, fundDays[k]).
+  let above = 0;
   for (let k = 0; k <= last; k++) {
-    const latest = upperBound(dates, fundDays[k]) - 1;
+    while (above < dates.length && dates[above] <= fundDays[k]) above++;
+    const latest = above - 1;
     const month = monthOfPoint(k, last, request);
     if (month === null) {
       points[k] = Math.max(latest, points[k - 1]);

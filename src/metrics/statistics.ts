@@ -55,13 +55,13 @@ export function windowStatistics(sample: WindowSample): WindowStatistics {
   const fund = sample.fund;
   const benchmark = sample.benchmark ?? zeros;
   const riskFree = sample.riskFree ?? zeros;
-  const logFund = log1pAll(fund);
-  const logBenchmark = log1pAll(benchmark);
+  const logFund = logReturnsOf(fund);
+  const logBenchmark = logReturnsOf(benchmark);
   return {
     n,
     simple: basisStatistics(fund, benchmark, riskFree),
     log: basisStatistics(logFund, logBenchmark, riskFree),
-    growth: { fund: sum(logFund), benchmark: sum(logBenchmark), riskFree: sum(log1pAll(riskFree)) },
+    growth: { fund: sum(logFund), benchmark: sum(logBenchmark), riskFree: sum(logReturnsOf(riskFree)) },
     maxDrawdown: maxDrawdown(sample.navPath),
     navObservations: sample.navPath.length,
     sampledMaxDrawdown: maxDrawdownOfReturns(fund),
@@ -71,6 +71,20 @@ export function windowStatistics(sample: WindowSample): WindowStatistics {
     benchmarkReason: sample.benchmarkReason,
     riskFreeReason: sample.riskFreeReason,
   };
+}
+
+/**
+ * ln(1 + r) of a window's returns, kept beside the returns array while it lives: the convention
+ * search builds the statistics of many variants from the same fund, benchmark and risk-free
+ * arrays (src/metrics/compute.ts keeps a series' sample parts), and the logarithms were a large
+ * part of its cost. Same values as log1pAll; the arrays are never written after sampling.
+ */
+const logsOf = new WeakMap<Float64Array, Float64Array>();
+
+function logReturnsOf(returns: Float64Array): Float64Array {
+  let logs = logsOf.get(returns);
+  if (!logs) logsOf.set(returns, (logs = log1pAll(returns)));
+  return logs;
 }
 
 /** All of one basis' moments in a single pass over fund, benchmark and risk-free returns. */
