@@ -115,13 +115,17 @@ const CHARTS_AT_MOST = 12;
 function chartsOf(day: Day, records: readonly TicketRecord[], findings: readonly Finding[]): NavChart[] {
   const { nav, benchmarks, master } = day.feed;
   const benchmarkOf = new Map((master ?? []).map((record) => [record.series_id, record.benchmark_id]));
-  const wanted: string[] = [];
+  const wanted = new Set<string>();
   for (const record of records) {
     if (record.state === 'resolved' || record.silenced || record.kind !== 'series') continue;
-    for (const id of record.series_ids) if (!wanted.includes(id)) wanted.push(id);
+    for (const id of record.series_ids) wanted.add(id);
   }
-  return wanted
-    .map((id) => navChart(nav, benchmarks, id, benchmarkOf.get(id) ?? null, findings, day.asOf))
-    .filter((chart): chart is NavChart => chart !== null)
-    .slice(0, CHARTS_AT_MOST);
+  // Built in order until there are enough: a large universe has tickets on hundreds of series.
+  const charts: NavChart[] = [];
+  for (const id of wanted) {
+    if (charts.length === CHARTS_AT_MOST) break;
+    const chart = navChart(nav, benchmarks, id, benchmarkOf.get(id) ?? null, findings, day.asOf);
+    if (chart !== null) charts.push(chart);
+  }
+  return charts;
 }
