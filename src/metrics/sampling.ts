@@ -290,9 +290,17 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
 
   const perPeriod = new Float64Array(periods);
   const missing: string[] = [];
+  // Periods follow one another, so each one's first and last rate are found by walking on from
+  // the previous period's: begin = lowerBound(dates, from) and end = upperBound(dates, to).
+  const dates = source.rates.dates;
+  let begin = 0;
+  let end = 0;
   for (let k = 0; k < periods; k++) {
     const [from, to] = periodDays(request, pointDays, k);
-    const rate = meanRate(source.rates, from, to) ?? lookBackRate(source.rates, from, to, request.frequency);
+    while (begin < dates.length && dates[begin] < from) begin++;
+    if (end < begin) end = begin;
+    while (end < dates.length && dates[end] <= to) end++;
+    const rate = meanRate(source.rates, begin, end) ?? lookBackRate(source.rates, begin, to, request.frequency);
     if (rate === null) missing.push(describePeriod(pointDays[k + 1], request.frequency));
     else perPeriod[k] = request.ratePerPeriod(rate);
   }
@@ -312,19 +320,22 @@ function periodDays(request: WindowRequest, pointDays: Int32Array, k: number): [
   return [pointDays[k] + 1, Math.min(pointDays[k + 1], asOf)];
 }
 
-function meanRate(rates: Observations, from: number, to: number): number | null {
-  const begin = lowerBound(rates.dates, from);
-  const end = upperBound(rates.dates, to);
+/** The mean of the rates at indices [begin, end), or null when there are none. */
+function meanRate(rates: Observations, begin: number, end: number): number | null {
   if (end <= begin) return null;
   let sum = 0;
   for (let i = begin; i < end; i++) sum += rates.values[i];
   return sum / (end - begin);
 }
 
-/** Weekly and daily: the latest rate before the period, if observed within the lookback before its end. */
-function lookBackRate(rates: Observations, periodStart: number, periodEnd: number, frequency: Frequency): number | null {
+/**
+ * Weekly and daily: the latest rate before the period, if observed within the lookback before its
+ * end. `begin` is the period's first rate index (lowerBound of its first day), so the one before
+ * it is the latest earlier rate.
+ */
+function lookBackRate(rates: Observations, begin: number, periodEnd: number, frequency: Frequency): number | null {
   if (frequency === 'monthly') return null;
-  const before = upperBound(rates.dates, periodStart - 1) - 1;
+  const before = begin - 1;
   return before >= 0 && rates.dates[before] >= periodEnd - RATE_LOOKBACK_DAYS ? rates.values[before] : null;
 }
 
