@@ -5,7 +5,7 @@ import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { failure, success, type Outcome } from '../outcome.js';
 import { sampleWindow, type BenchmarkSource, type RiskFreeSource, type SampleParts, type WindowSample } from './sampling.js';
-import { windowStatistics, type WindowStatistics } from './statistics.js';
+import { log1pAll, windowStatistics, type WindowStatistics } from './statistics.js';
 import { parseWindow, windowMonths } from './windows.js';
 
 /** The data metrics are computed from. */
@@ -133,8 +133,9 @@ export class MetricCalculator {
     const key = this.cacheKey(request, methodology);
     let stats = this.cache.get(key);
     if (!stats) {
-      const sample = this.sample({ ...request, methodology });
-      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value) } : sample;
+      const reuse = this.parts.reuseFor(request, methodology);
+      const sample = this.sampleWith({ ...request, methodology }, reuse?.parts);
+      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, reuse?.logOf) } : sample;
       this.cache.set(key, stats);
     }
     return stats;
@@ -142,6 +143,10 @@ export class MetricCalculator {
 
   /** The window's returns as sampled under the methodology, or why they cannot be. */
   sample(request: Omit<MetricRequest, 'metric'>): Outcome<WindowSample> {
+    return this.sampleWith(request);
+  }
+
+  private sampleWith(request: Omit<MetricRequest, 'metric'>, parts?: SampleParts): Outcome<WindowSample> {
     const methodology = this.effectiveMethodology(request.methodology);
     const months = parseWindow(request.window);
     if (months === null) throw new RangeError(unknownWindowMessage(request.window));
@@ -157,7 +162,7 @@ export class MetricCalculator {
       frequency: methodology.frequency,
       ratePerPeriod: (annualRate) => perPeriodRate(annualRate, methodology),
       },
-      this.parts.of(request, methodology),
+      parts,
     );
   }
 
@@ -204,24 +209,38 @@ export class MetricCalculator {
 
 /**
  * The parts of the latest series' window samples (src/metrics/sampling.ts, SampleParts), each
- * under the settings it depends on. Only one series' parts are kept: the convention search asks
- * for one figure's variants together, and figures come series by series, so memory stays that
- * of one series however large the universe.
+ * under the settings it depends on, and ln(1 + r) of their returns. Only one series' parts are
+ * kept: the convention search asks for one figure's variants together, and figures come series
+ * by series, so memory stays that of one series however large the universe. A window sampled
+ * once (every window of the metrics stage) keeps nothing: keeping costs more than it saves there.
  */
 class LatestSeriesParts {
   private seriesId: string | null = null;
+  private readonly sampled = new Set<string>();
   private readonly kept = new Map<string, Outcome<unknown>>();
+  private readonly logs = new Map<Float64Array, Float64Array>();
 
-  of(request: Omit<MetricRequest, 'metric'>, m: Methodology): SampleParts {
+  /** What to reuse for this sampling of a window, or null the first time the series' window is sampled. */
+  reuseFor(request: Omit<MetricRequest, 'metric'>, m: Methodology): { parts: SampleParts; logOf: (returns: Float64Array) => Float64Array } | null {
     if (request.seriesId !== this.seriesId) {
+      this.sampled.clear();
       this.kept.clear();
+      this.logs.clear();
       this.seriesId = request.seriesId;
     }
-    const window = `${request.asOf}|${request.window}|${m.frequency}|${m.window_end}`;
+    const label = `${request.asOf}|${request.window}`;
+    if (!this.sampled.has(label)) {
+      this.sampled.add(label);
+      return null;
+    }
+    const window = `${label}|${m.frequency}|${m.window_end}`;
     return {
-      fund: (compute) => this.keep(`fund|${window}`, compute),
-      benchmark: (compute) => this.keep(`benchmark|${window}|${m.benchmark ?? ''}`, compute),
-      riskFree: (compute) => this.keep(`risk-free|${window}|${riskFreeKey(m)}|${ratePeriodsOf(m)}|${m.rate_conversion}`, compute),
+      parts: {
+        fund: (compute) => this.keep(`fund|${window}`, compute),
+        benchmark: (compute) => this.keep(`benchmark|${window}|${m.benchmark ?? ''}`, compute),
+        riskFree: (compute) => this.keep(`risk-free|${window}|${riskFreeKey(m)}|${ratePeriodsOf(m)}|${m.rate_conversion}`, compute),
+      },
+      logOf: (returns) => this.logOf(returns),
     };
   }
 
@@ -229,6 +248,13 @@ class LatestSeriesParts {
     let part = this.kept.get(key) as Outcome<T> | undefined;
     if (!part) this.kept.set(key, (part = compute()));
     return part;
+  }
+
+  /** ln(1 + r) of a kept returns array, computed once (the arrays are never written after sampling). */
+  private logOf(returns: Float64Array): Float64Array {
+    let logs = this.logs.get(returns);
+    if (!logs) this.logs.set(returns, (logs = log1pAll(returns)));
+    return logs;
   }
 }
 
