@@ -1,5 +1,5 @@
 import type { Outcome } from '../outcome.js';
-import { firstAbove } from '../numeric/search.js';
+import { firstAbove, firstAtOrAbove } from '../numeric/search.js';
 import { formatIsoDate, isoWeekStart, monthEndDay, monthIndex } from '../calendar/days.js';
 import type { Frequency } from './methodology.js';
 import { formatMonth, monthStartDay, type WindowMonths } from './windows.js';
@@ -244,11 +244,11 @@ export function benchmarkPointsOnFundDates(
 ): Int32Array {
   const points = new Int32Array(fundDays.length);
   const last = fundDays.length - 1;
-  // The fund's days ascend, so the benchmark's latest level is found by walking on, not by a
-  // binary search per point: `above` is upperBound(dates, fundDays[k]).
+  // The fund's days ascend, so each point's search starts where the previous one ended: a short
+  // walk for daily points, a narrowed binary search for monthly ones. `above` is upperBound(dates, fundDays[k]).
   let above = 0;
   for (let k = 0; k <= last; k++) {
-    while (above < dates.length && dates[above] <= fundDays[k]) above++;
+    above = firstAbove(dates, fundDays[k], above);
     const latest = above - 1;
     const month = monthOfPoint(k, last, request);
     if (month === null) {
@@ -290,16 +290,16 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
 
   const perPeriod = new Float64Array(periods);
   const missing: string[] = [];
-  // Periods follow one another, so each one's first and last rate are found by walking on from
-  // the previous period's: begin = lowerBound(dates, from) and end = upperBound(dates, to).
+  // Periods follow one another, so each one's first and last rate are searched from the previous
+  // period's: begin = lowerBound(dates, from); end = upperBound(dates, to), or begin when the
+  // period holds no rate (the mean is then unknown either way).
   const dates = source.rates.dates;
   let begin = 0;
   let end = 0;
   for (let k = 0; k < periods; k++) {
     const [from, to] = periodDays(request, pointDays, k);
-    while (begin < dates.length && dates[begin] < from) begin++;
-    if (end < begin) end = begin;
-    while (end < dates.length && dates[end] <= to) end++;
+    begin = firstAtOrAbove(dates, from, begin);
+    end = firstAbove(dates, to, Math.max(end, begin));
     const rate = meanRate(source.rates, begin, end) ?? lookBackRate(source.rates, begin, to, request.frequency);
     if (rate === null) missing.push(describePeriod(pointDays[k + 1], request.frequency));
     else perPeriod[k] = request.ratePerPeriod(rate);
