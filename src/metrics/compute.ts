@@ -4,8 +4,8 @@ import { findSeries, type SeriesFrame } from '../series/frame.js';
 import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { failure, success, type Outcome } from '../outcome.js';
-import { sampleWindow, type BenchmarkSource, type RiskFreeSource, type WindowSample } from './sampling.js';
-import { windowStatistics, type WindowStatistics } from './statistics.js';
+import { sampleWindow, type BenchmarkSource, type RiskFreeSource, type SampleParts, type WindowSample } from './sampling.js';
+import { log1pAll, windowStatistics, type WindowStatistics } from './statistics.js';
 import { parseWindow, windowMonths } from './windows.js';
 
 /** The data metrics are computed from. */
@@ -103,6 +103,7 @@ function drawdownObservations(stats: WindowStatistics, methodology: Methodology)
 export class MetricCalculator {
   private readonly masterById = new Map<string, SeriesMasterRecord>();
   private readonly cache = new Map<string, Outcome<WindowStatistics>>();
+  private readonly parts = new LatestSeriesParts();
 
   constructor(private readonly inputs: MetricInputs) {
     for (const record of inputs.master) {
@@ -132,8 +133,9 @@ export class MetricCalculator {
     const key = this.cacheKey(request, methodology);
     let stats = this.cache.get(key);
     if (!stats) {
-      const sample = this.sample({ ...request, methodology });
-      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value) } : sample;
+      const reuse = this.parts.reuseFor(request, methodology);
+      const sample = this.sampleWith({ ...request, methodology }, reuse?.parts);
+      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, reuse?.logOf) } : sample;
       this.cache.set(key, stats);
     }
     return stats;
@@ -141,12 +143,17 @@ export class MetricCalculator {
 
   /** The window's returns as sampled under the methodology, or why they cannot be. */
   sample(request: Omit<MetricRequest, 'metric'>): Outcome<WindowSample> {
+    return this.sampleWith(request);
+  }
+
+  private sampleWith(request: Omit<MetricRequest, 'metric'>, parts?: SampleParts): Outcome<WindowSample> {
     const methodology = this.effectiveMethodology(request.methodology);
     const months = parseWindow(request.window);
     if (months === null) throw new RangeError(unknownWindowMessage(request.window));
     const fund = findSeries(this.inputs.nav, request.seriesId);
     if (!fund || fund.dates.length === 0) return { ok: false, reason: `series ${request.seriesId} has no NAV observations` };
-    return sampleWindow({
+    return sampleWindow(
+      {
       fund,
       benchmark: this.benchmarkSource(request.seriesId, methodology),
       riskFree: this.riskFreeSource(request.seriesId, methodology),
@@ -154,7 +161,9 @@ export class MetricCalculator {
       asOf: request.asOf,
       frequency: methodology.frequency,
       ratePerPeriod: (annualRate) => perPeriodRate(annualRate, methodology),
-    });
+      },
+      parts,
+    );
   }
 
   /** The benchmark a series is measured against: the methodology's override, else the master's. */
@@ -195,6 +204,57 @@ export class MetricCalculator {
   private cacheKey(request: Omit<MetricRequest, 'metric'>, m: Methodology): string {
     const sampling = [m.frequency, m.window_end, m.benchmark ?? '', riskFreeKey(m), ratePeriodsOf(m), m.rate_conversion];
     return [request.seriesId, request.asOf, request.window, ...sampling].join('|');
+  }
+}
+
+/**
+ * The parts of the latest series' window samples (src/metrics/sampling.ts, SampleParts), each
+ * under the settings it depends on, and ln(1 + r) of their returns. Only one series' parts are
+ * kept: the convention search asks for one figure's variants together, and figures come series
+ * by series, so memory stays that of one series however large the universe. A window sampled
+ * once (every window of the metrics stage) keeps nothing: keeping costs more than it saves there.
+ */
+class LatestSeriesParts {
+  private seriesId: string | null = null;
+  private readonly sampled = new Set<string>();
+  private readonly kept = new Map<string, Outcome<unknown>>();
+  private readonly logs = new Map<Float64Array, Float64Array>();
+
+  /** What to reuse for this sampling of a window, or null the first time the series' window is sampled. */
+  reuseFor(request: Omit<MetricRequest, 'metric'>, m: Methodology): { parts: SampleParts; logOf: (returns: Float64Array) => Float64Array } | null {
+    if (request.seriesId !== this.seriesId) {
+      this.sampled.clear();
+      this.kept.clear();
+      this.logs.clear();
+      this.seriesId = request.seriesId;
+    }
+    const label = `${request.asOf}|${request.window}`;
+    if (!this.sampled.has(label)) {
+      this.sampled.add(label);
+      return null;
+    }
+    const window = `${label}|${m.frequency}|${m.window_end}`;
+    return {
+      parts: {
+        fund: (compute) => this.keep(`fund|${window}`, compute),
+        benchmark: (compute) => this.keep(`benchmark|${window}|${m.benchmark ?? ''}`, compute),
+        riskFree: (compute) => this.keep(`risk-free|${window}|${riskFreeKey(m)}|${ratePeriodsOf(m)}|${m.rate_conversion}`, compute),
+      },
+      logOf: (returns) => this.logOf(returns),
+    };
+  }
+
+  private keep<T>(key: string, compute: () => Outcome<T>): Outcome<T> {
+    let part = this.kept.get(key) as Outcome<T> | undefined;
+    if (!part) this.kept.set(key, (part = compute()));
+    return part;
+  }
+
+  /** ln(1 + r) of a kept returns array, computed once (the arrays are never written after sampling). */
+  private logOf(returns: Float64Array): Float64Array {
+    let logs = this.logs.get(returns);
+    if (!logs) this.logs.set(returns, (logs = log1pAll(returns)));
+    return logs;
   }
 }
 

@@ -1,5 +1,5 @@
 import type { Outcome } from '../outcome.js';
-import { firstAbove } from '../numeric/search.js';
+import { firstAbove, firstAtOrAbove } from '../numeric/search.js';
 import { formatIsoDate, isoWeekStart, monthEndDay, monthIndex } from '../calendar/days.js';
 import type { Frequency } from './methodology.js';
 import { formatMonth, monthStartDay, type WindowMonths } from './windows.js';
@@ -55,29 +55,56 @@ export interface WindowSample {
 /** A weekly or daily period without a rate may take the latest one observed this many days before its end. */
 export const RATE_LOOKBACK_DAYS = 31;
 
-export function sampleWindow(request: WindowRequest): Outcome<WindowSample> {
+/** The fund's part of a window's sample: it depends on the fund, the window and the frequency only. */
+export type FundSample = Pick<WindowSample, 'fund' | 'navPath' | 'pointDays'>;
+
+/**
+ * Where a caller may keep the three parts of a window's sample between calls. The convention
+ * search asks for the same window under many methodologies: another benchmark leaves the fund's
+ * returns and the risk-free returns as they were, another rate conversion the fund's and the
+ * benchmark's. Each function gets the part's computation and returns its result, computed or kept.
+ */
+export interface SampleParts {
+  readonly fund: (compute: () => Outcome<FundSample>) => Outcome<FundSample>;
+  readonly benchmark: (compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
+  readonly riskFree: (compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
+}
+
+const COMPUTED_EACH_TIME: SampleParts = { fund: (compute) => compute(), benchmark: (compute) => compute(), riskFree: (compute) => compute() };
+
+export function sampleWindow(request: WindowRequest, parts: SampleParts = COMPUTED_EACH_TIME): Outcome<WindowSample> {
+  const sampled = parts.fund(() => sampleFund(request));
+  if (!sampled.ok) return sampled;
+  const { pointDays } = sampled.value;
+  const benchmark = parts.benchmark(() => benchmarkReturns(request, pointDays));
+  const riskFree = parts.riskFree(() => riskFreeReturns(request, pointDays));
+  return {
+    ok: true,
+    value: {
+      fund: sampled.value.fund,
+      benchmark: benchmark.ok ? benchmark.value : null,
+      benchmarkReason: benchmark.ok ? null : benchmark.reason,
+      riskFree: riskFree.ok ? riskFree.value : null,
+      riskFreeReason: riskFree.ok ? null : riskFree.reason,
+      navPath: sampled.value.navPath,
+      pointDays,
+    },
+  };
+}
+
+function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'frequency'>): Outcome<FundSample> {
   const { fund, span, asOf, frequency } = request;
   const fundMonthEnds = coverWindow(fund, span, asOf, 'NAV');
   if (!fundMonthEnds.ok) return fundMonthEnds;
   const sampled = positiveAt(fund, samplePoints(fund.dates, fundMonthEnds.value, frequency), 'NAV');
   if (!sampled.ok) return sampled;
   const points = sampled.value;
-  const pointDays = gatherDays(fund.dates, points);
-  const first = points[0];
-  const last = points[points.length - 1];
-
-  const benchmark = benchmarkReturns(request, pointDays);
-  const riskFree = riskFreeReturns(request, pointDays);
   return {
     ok: true,
     value: {
       fund: returnsAt(fund.values, points),
-      benchmark: benchmark.ok ? benchmark.value : null,
-      benchmarkReason: benchmark.ok ? null : benchmark.reason,
-      riskFree: riskFree.ok ? riskFree.value : null,
-      riskFreeReason: riskFree.ok ? null : riskFree.reason,
-      navPath: fund.values.subarray(first, last + 1),
-      pointDays,
+      navPath: fund.values.subarray(points[0], points[points.length - 1] + 1),
+      pointDays: gatherDays(fund.dates, points),
     },
   };
 }
@@ -217,8 +244,12 @@ export function benchmarkPointsOnFundDates(
 ): Int32Array {
   const points = new Int32Array(fundDays.length);
   const last = fundDays.length - 1;
+  // The fund's days ascend, so each point's search starts where the previous one ended: a short
+  // walk for daily points, a narrowed binary search for monthly ones. `above` is upperBound(dates, fundDays[k]).
+  let above = 0;
   for (let k = 0; k <= last; k++) {
-    const latest = upperBound(dates, fundDays[k]) - 1;
+    above = firstAbove(dates, fundDays[k], above);
+    const latest = above - 1;
     const month = monthOfPoint(k, last, request);
     if (month === null) {
       points[k] = Math.max(latest, points[k - 1]);
@@ -259,9 +290,17 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
 
   const perPeriod = new Float64Array(periods);
   const missing: string[] = [];
+  // Periods follow one another, so each one's first and last rate are searched from the previous
+  // period's: begin = lowerBound(dates, from); end = upperBound(dates, to), or begin when the
+  // period holds no rate (the mean is then unknown either way).
+  const dates = source.rates.dates;
+  let begin = 0;
+  let end = 0;
   for (let k = 0; k < periods; k++) {
     const [from, to] = periodDays(request, pointDays, k);
-    const rate = meanRate(source.rates, from, to) ?? lookBackRate(source.rates, from, to, request.frequency);
+    begin = firstAtOrAbove(dates, from, begin);
+    end = firstAbove(dates, to, Math.max(end, begin));
+    const rate = meanRate(source.rates, begin, end) ?? lookBackRate(source.rates, begin, to, request.frequency);
     if (rate === null) missing.push(describePeriod(pointDays[k + 1], request.frequency));
     else perPeriod[k] = request.ratePerPeriod(rate);
   }
@@ -281,19 +320,22 @@ function periodDays(request: WindowRequest, pointDays: Int32Array, k: number): [
   return [pointDays[k] + 1, Math.min(pointDays[k + 1], asOf)];
 }
 
-function meanRate(rates: Observations, from: number, to: number): number | null {
-  const begin = lowerBound(rates.dates, from);
-  const end = upperBound(rates.dates, to);
+/** The mean of the rates at indices [begin, end), or null when there are none. */
+function meanRate(rates: Observations, begin: number, end: number): number | null {
   if (end <= begin) return null;
   let sum = 0;
   for (let i = begin; i < end; i++) sum += rates.values[i];
   return sum / (end - begin);
 }
 
-/** Weekly and daily: the latest rate before the period, if observed within the lookback before its end. */
-function lookBackRate(rates: Observations, periodStart: number, periodEnd: number, frequency: Frequency): number | null {
+/**
+ * Weekly and daily: the latest rate before the period, if observed within the lookback before its
+ * end. `begin` is the period's first rate index (lowerBound of its first day), so the one before
+ * it is the latest earlier rate.
+ */
+function lookBackRate(rates: Observations, begin: number, periodEnd: number, frequency: Frequency): number | null {
   if (frequency === 'monthly') return null;
-  const before = upperBound(rates.dates, periodStart - 1) - 1;
+  const before = begin - 1;
   return before >= 0 && rates.dates[before] >= periodEnd - RATE_LOOKBACK_DAYS ? rates.values[before] : null;
 }
 

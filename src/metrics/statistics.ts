@@ -49,19 +49,23 @@ export interface WindowStatistics {
   readonly riskFreeReason: string | null;
 }
 
-export function windowStatistics(sample: WindowSample): WindowStatistics {
+/**
+ * `logOf` gives ln(1 + r) of a returns array: log1pAll, or a memo of it when the caller hands the
+ * same arrays to many windows (src/metrics/compute.ts, for the convention search's variants).
+ */
+export function windowStatistics(sample: WindowSample, logOf: (returns: Float64Array) => Float64Array = log1pAll): WindowStatistics {
   const n = sample.fund.length;
   const zeros = new Float64Array(n);
   const fund = sample.fund;
   const benchmark = sample.benchmark ?? zeros;
   const riskFree = sample.riskFree ?? zeros;
-  const logFund = log1pAll(fund);
-  const logBenchmark = log1pAll(benchmark);
+  const logFund = logOf(fund);
+  const logBenchmark = logOf(benchmark);
   return {
     n,
     simple: basisStatistics(fund, benchmark, riskFree),
     log: basisStatistics(logFund, logBenchmark, riskFree),
-    growth: { fund: sum(logFund), benchmark: sum(logBenchmark), riskFree: sum(log1pAll(riskFree)) },
+    growth: { fund: sum(logFund), benchmark: sum(logBenchmark), riskFree: sum(logOf(riskFree)) },
     maxDrawdown: maxDrawdown(sample.navPath),
     navObservations: sample.navPath.length,
     sampledMaxDrawdown: maxDrawdownOfReturns(fund),
@@ -137,7 +141,7 @@ export function fixedTargetSums(stats: WindowStatistics, basis: 'simple' | 'log'
   return sums;
 }
 
-function log1pAll(values: Float64Array): Float64Array {
+export function log1pAll(values: Float64Array): Float64Array {
   const logs = new Float64Array(values.length);
   for (let i = 0; i < values.length; i++) logs[i] = Math.log1p(values[i]);
   return logs;

@@ -163,18 +163,40 @@ function reconcileFigure(figure: VendorFigureRecord, context: FigureContext): Re
   const outcome = context.calculator.metric(request);
   const benchmark = context.calculator.benchmarkId(figure.series_id, context.methodology);
   const suspects = context.suspects.forFigure(figure.series_id, benchmark, metric, context.spanOf(figure.as_of, figure.window));
-  const suspect = suspects.length === 0 ? {} : { suspect_data: suspects.map((finding) => finding.key) };
   if (outcome.value === null) {
-    return { ...notComputable(base, evidence, tolerance.absolute, outcome.reason!, isAboutData(outcome.reason!)), ...suspect };
+    const result = notComputable(base, evidence, tolerance.absolute, outcome.reason!, isAboutData(outcome.reason!));
+    return suspects.length === 0 ? result : { ...result, suspect_data: suspects.map((finding) => finding.key) };
   }
   const computed = outcome.value;
   const allowed = allowedDifference(tolerance, computed);
   const { status, difference } = judge(figure.value, computed, allowed, printed_half_unit);
   const explanations =
     status === 'breach' ? explainBreach(figure, metric, computed, tolerance, printed_half_unit, benchmark, suspects, context) : [];
-  const note = status === 'breach' && !tellsConventionsApart(figure.value, printed_half_unit) ? { note: TOO_FEW_DIGITS } : {};
-  return { ...base, computed, difference, tolerance: allowed, status, explanations, severity: severityOf(status, false), ...evidence, ...suspect, ...note };
+  // Written out rather than spread together: spreading five objects into one cost more than the
+  // rest of a matching figure's work at 180,000 figures. The key order is the answer's.
+  const result: Mutable<ReconcileResult> = {
+    series_id: base.series_id,
+    as_of: base.as_of,
+    window: base.window,
+    metric: base.metric,
+    vendor: base.vendor,
+    computed,
+    difference,
+    tolerance: allowed,
+    status,
+    explanations,
+    severity: severityOf(status, false),
+    as_written: evidence.as_written,
+    unit: evidence.unit,
+    line: evidence.line,
+    printed_half_unit,
+  };
+  if (suspects.length > 0) result.suspect_data = suspects.map((finding) => finding.key);
+  if (status === 'breach' && !tellsConventionsApart(figure.value, printed_half_unit)) result.note = TOO_FEW_DIGITS;
+  return result;
 }
+
+type Mutable<T> = { -readonly [K in keyof T]: T[K] };
 
 const TOO_FEW_DIGITS = 'the vendor printed fewer than two significant digits, too few to tell conventions apart; no convention was searched';
 

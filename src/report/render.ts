@@ -10,11 +10,14 @@ const NUMBER_TEXT = /^-?\d+(\.\d+)?(e-?\d+)?$/;
 export const OUTPUT_FORMATS = ['table', 'json', 'csv', 'markdown', 'html'] as const;
 export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
 
-/** Renders a command's answer: json as the answer object itself, the rest from its view. */
-export function render(format: OutputFormat, answer: unknown, view: ReportView): string {
+/**
+ * Renders a command's answer: json as the answer object itself, the rest from its view. The
+ * view may be given as a function, so that json (which never reads it) does not build it.
+ */
+export function render(format: OutputFormat, answer: unknown, viewOrMaker: ReportView | (() => ReportView)): string {
+  if (format === 'json') return JSON.stringify(answer, null, 2) + '\n';
+  const view = typeof viewOrMaker === 'function' ? viewOrMaker() : viewOrMaker;
   switch (format) {
-    case 'json':
-      return JSON.stringify(answer, null, 2) + '\n';
     case 'table':
       return renderTable(view);
     case 'csv':

@@ -71,10 +71,12 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
   const writeTable = (name: CommandAnswer, format: OutputFormat, text: () => string) => {
     if (!(FOR_READING.has(format) && tooLong.includes(name))) write(reportFileName(name, format), text());
   };
+  // Each view is built at most once, and only for a format that reads it (json does not).
+  const views = { check: once(() => checkView(check)), metrics: metrics && once(() => metricsView(metrics)), reconcile: reconciliation && once(() => reconcileView(reconciliation)) };
   for (const format of place.formats) {
-    writeTable('check', format, () => render(format, check, checkView(check)));
-    if (metrics) writeTable('metrics', format, () => render(format, metrics, metricsView(metrics)));
-    if (reconciliation) writeTable('reconcile', format, () => render(format, reconciliation, reconcileView(reconciliation)));
+    writeTable('check', format, () => render(format, check, views.check));
+    if (metrics && views.metrics) writeTable('metrics', format, () => render(format, metrics, views.metrics!));
+    if (reconciliation && views.reconcile) writeTable('reconcile', format, () => render(format, reconciliation, views.reconcile!));
   }
   const quarantine = join(place.dir, QUARANTINE_FILE);
   writeQuarantine(quarantine, day.feed.rejected);
@@ -83,6 +85,11 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
 }
 
 type CommandAnswer = 'check' | 'metrics' | 'reconcile';
+
+function once<T>(make: () => T): () => T {
+  let made: { value: T } | null = null;
+  return () => (made ??= { value: make() }).value;
+}
 
 /**
  * Above this many rows a table is not written as html, markdown or text: nobody reads a table
@@ -108,13 +115,17 @@ const CHARTS_AT_MOST = 12;
 function chartsOf(day: Day, records: readonly TicketRecord[], findings: readonly Finding[]): NavChart[] {
   const { nav, benchmarks, master } = day.feed;
   const benchmarkOf = new Map((master ?? []).map((record) => [record.series_id, record.benchmark_id]));
-  const wanted: string[] = [];
+  const wanted = new Set<string>();
   for (const record of records) {
     if (record.state === 'resolved' || record.silenced || record.kind !== 'series') continue;
-    for (const id of record.series_ids) if (!wanted.includes(id)) wanted.push(id);
+    for (const id of record.series_ids) wanted.add(id);
   }
-  return wanted
-    .map((id) => navChart(nav, benchmarks, id, benchmarkOf.get(id) ?? null, findings, day.asOf))
-    .filter((chart): chart is NavChart => chart !== null)
-    .slice(0, CHARTS_AT_MOST);
+  // Built in order until there are enough: a large universe has tickets on hundreds of series.
+  const charts: NavChart[] = [];
+  for (const id of wanted) {
+    if (charts.length === CHARTS_AT_MOST) break;
+    const chart = navChart(nav, benchmarks, id, benchmarkOf.get(id) ?? null, findings, day.asOf);
+    if (chart !== null) charts.push(chart);
+  }
+  return charts;
 }

@@ -37,10 +37,20 @@ export function ticketsStage(day: Day, findings: readonly Finding[], reconciliat
  * breaches it reproduces.
  */
 export function reconciliationForTickets(answer: ReconcileAnswer): ReconciliationInput {
+  let input = forTickets.get(answer);
+  if (!input) forTickets.set(answer, (input = ticketInputOf(answer)));
+  return input;
+}
+
+/** The tickets and the day's report both take the reconciliation: it is prepared once per answer. */
+const forTickets = new WeakMap<ReconcileAnswer, ReconciliationInput>();
+
+function ticketInputOf(answer: ReconcileAnswer): ReconciliationInput {
+  const breaches = answer.results.filter((result) => result.status === 'breach');
   const vendor_explanations = answer.summary.vendor_patterns.map((pattern) => {
     const signature = JSON.stringify(pattern.changes);
-    const series = answer.results
-      .filter((result) => result.status === 'breach' && result.metric === pattern.metric)
+    const series = breaches
+      .filter((result) => result.metric === pattern.metric)
       .filter((result) => result.explanations.some((explanation) => explanation.kind === 'convention' && JSON.stringify(explanation.changes) === signature))
       .map((result) => result.series_id);
     return {

@@ -128,10 +128,7 @@ function reconciliationSection(report: DailyReport): string {
   const results = rec.results ?? [];
   const statuses = new Map<string, number>();
   for (const r of results) statuses.set(r.status, (statuses.get(r.status) ?? 0) + 1);
-  const plotted: ToleranceRow[] = results
-    .filter((r) => typeof r.vendor === 'number' && typeof r.computed === 'number' && typeof r.tolerance === 'number')
-    .sort((a, b) => Number(b.status === 'breach') - Number(a.status === 'breach'))
-    .slice(0, 40)
+  const plotted: ToleranceRow[] = breachesFirst(results.filter((r) => typeof r.vendor === 'number' && typeof r.computed === 'number' && typeof r.tolerance === 'number'), PLOTTED_AT_MOST)
     .map((r) => ({ label: `${r.series_id} ${r.window ?? ''} ${r.metric ?? ''}`, vendor: r.vendor!, computed: r.computed!, tolerance: r.tolerance!, status: r.status }));
   const notMatching = needingALook(results).slice(0, TICKETS_SHOWN);
   const rows = notMatching.map((r) => [
@@ -144,6 +141,22 @@ function reconciliationSection(report: DailyReport): string {
 ${plotted.length ? `<figure>${toleranceSvg(plotted)}<figcaption>Each dot is a published figure: its distance from the computed one in tolerances; the green band is within tolerance.</figcaption></figure>` : ''}
 ${rows.length ? table(['series', 'window', 'metric', 'status', 'vendor', 'computed', 'tolerance', 'explanation or reason'], rows, new Set([4, 5, 6])) : ''}
 ${vendor ? `<h3>Vendor-level explanations</h3><ul>${vendor}</ul>` : ''}</section>`;
+}
+
+/** Dots on the tolerance chart at most. */
+const PLOTTED_AT_MOST = 40;
+
+/** The first `count` results with the breaches first, each group in the order given (a stable sort by "is a breach", cut short). */
+function breachesFirst<R extends { readonly status: string }>(results: readonly R[], count: number): R[] {
+  const breaches: R[] = [];
+  const others: R[] = [];
+  for (const r of results) {
+    if (r.status === 'breach') {
+      breaches.push(r);
+      if (breaches.length === count) break;
+    } else if (others.length < count) others.push(r);
+  }
+  return [...breaches, ...others].slice(0, count);
 }
 
 function figureSection(report: DailyReport): string {

@@ -15,9 +15,23 @@ export interface FlaggedFigure extends MetricRow {
 }
 
 export function flagFigures(metrics: MetricsAnswer, findings: readonly Finding[]): FlaggedFigure[] {
+  // The day's report and its figures file both flag the same figures: once per answer and findings.
+  const known = flagged.get(metrics);
+  if (known && known.findings === findings) return known.figures;
+  const figures = flagEach(metrics, findings);
+  flagged.set(metrics, { findings, figures });
+  return figures;
+}
+
+const flagged = new WeakMap<MetricsAnswer, { readonly findings: readonly Finding[]; readonly figures: FlaggedFigure[] }>();
+
+function flagEach(metrics: MetricsAnswer, findings: readonly Finding[]): FlaggedFigure[] {
   const marked = markSuspectFigures(metrics, findings, []).metrics;
-  return metrics.metrics.map((figure, index) => ({
-    ...figure,
-    flagged_by: [...new Set([...(figure.suspect_data ?? []), ...(marked[index].suspect_data ?? [])])],
-  }));
+  return metrics.metrics.map((figure, index) => {
+    const own = figure.suspect_data;
+    const more = marked[index].suspect_data;
+    // Most figures have no flag: no sets built for them.
+    const flagged_by = own === undefined && more === undefined ? [] : [...new Set([...(own ?? []), ...(more ?? [])])];
+    return { ...figure, flagged_by };
+  });
 }

@@ -5,6 +5,9 @@ const LOOK_FIRST: Readonly<Record<string, number>> = { breach: 0, not_computable
 
 /** The reconciliation results that are not plain matches, breaches first, then not computable, then rounding. */
 export function needingALook<R extends ReconciliationResultLike>(results: readonly R[]): R[] {
-  const rank = (r: R) => LOOK_FIRST[r.status] ?? 3;
-  return results.filter((r) => r.status !== 'match').sort((a, b) => rank(a) - rank(b));
+  // One pass into a bucket per rank, in the results' order: what a stable sort by rank gives,
+  // without a comparator called a million times on a large universe.
+  const buckets: R[][] = [[], [], [], []];
+  for (const r of results) if (r.status !== 'match') buckets[LOOK_FIRST[r.status] ?? 3].push(r);
+  return buckets.flat();
 }
