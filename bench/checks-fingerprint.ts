@@ -7,11 +7,12 @@
  *   node dist/bench/checks-fingerprint.js                     # demo and generators
  *   node dist/bench/checks-fingerprint.js --universe DIR      # also a cached standard universe (its nav.csv, …)
  *   node dist/bench/checks-fingerprint.js --threads 2         # the worker-thread runner instead of the plain one
+ *   node dist/bench/checks-fingerprint.js --only demo --dump DIR   # one input, its findings written to DIR
  *
  * It also prints the checks' CPU seconds per input, on stderr, for a rough before/after.
  */
 import { createHash } from 'node:crypto';
-import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { generateUniverse } from '../fixtures/universe/generate.js';
@@ -32,6 +33,7 @@ const option = (name: string): string | undefined => {
 const threads = Number(option('--threads') ?? 0);
 const universeDir = option('--universe');
 const only = option('--only');
+const dump = option('--dump');
 
 async function findingsOf(input: CheckInput): Promise<{ findings: Finding[]; cpu: number }> {
   const cpu0 = process.cpuUsage();
@@ -44,12 +46,15 @@ async function report(name: string, input: () => CheckInput | Promise<CheckInput
   if (only !== undefined && !name.startsWith(only)) return;
   const { findings, cpu } = await findingsOf(await input());
   const hash = createHash('sha256').update(JSON.stringify(findings)).digest('hex').slice(0, 16);
+  if (dump !== undefined) writeFileSync(join(dump, `${name.replace(/ /g, '-')}.json`), JSON.stringify(findings, null, 1));
   console.log(`${name.padEnd(24)} ${String(findings.length).padStart(6)} findings  ${hash}`);
   console.error(`${name.padEnd(24)} checks CPU ${cpu.toFixed(2)} s`);
 }
 
 async function demoInput(): Promise<CheckInput> {
-  const dir = mkdtempSync(join(tmpdir(), 'navassay-fingerprint-'));
+  // A fixed folder: the findings of unreadable rows name the file, and the hash must not move with it.
+  const dir = join(tmpdir(), 'navassay-fingerprint-demo');
+  mkdirSync(dir, { recursive: true });
   try {
     for (const [file, text] of Object.entries(demoFiles())) {
       mkdirSync(dirname(join(dir, file)), { recursive: true });

@@ -2,7 +2,7 @@ import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
 import { movesOf } from '../src/checks/move-analysis.js';
-import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, robustScale } from '../src/checks/support.js';
+import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, orderByKey, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
   min_days: number;
@@ -271,7 +271,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   }
   const steps: number[] = [];
   for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
-  const byChance = Int32Array.from(steps.sort((a, b) => chance[a] - chance[b]));
+  const byChance = orderByKey(steps, chance);
   return { chance, implied, observed, expected, counted, repeated, byChance };
 }
 

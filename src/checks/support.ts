@@ -109,6 +109,47 @@ function maxBelow(work: Float64Array, k: number): number {
   return max;
 }
 
+/**
+ * `indices` ordered by ascending `keys[index]`, ties kept in the order given: exactly what
+ * `indices.sort((a, b) => keys[a] - keys[b])` gives for finite keys, by a merge sort with the
+ * comparison written out (a comparator called per comparison was a large cost of the checks).
+ * Keys that are not finite make the subtraction inconsistent, so those orders take the plain
+ * sort and stay whatever it gives.
+ */
+export function orderByKey(indices: readonly number[], keys: Float64Array): Int32Array {
+  for (const index of indices) if (!Number.isFinite(keys[index])) return Int32Array.from([...indices].sort((a, b) => keys[a] - keys[b]));
+  const n = indices.length;
+  let order = Int32Array.from(indices);
+  let spare = new Int32Array(n);
+  // Short runs by insertion, then merges of neighbouring runs; the left run wins ties (stable).
+  const RUN = 16;
+  for (let start = 0; start < n; start += RUN) {
+    const end = Math.min(n, start + RUN);
+    for (let i = start + 1; i < end; i++) {
+      const item = order[i];
+      const key = keys[item];
+      let j = i - 1;
+      while (j >= start && keys[order[j]] > key) {
+        order[j + 1] = order[j];
+        j--;
+      }
+      order[j + 1] = item;
+    }
+  }
+  for (let width = RUN; width < n; width *= 2) {
+    for (let left = 0; left < n; left += 2 * width) {
+      const middle = Math.min(n, left + width);
+      const end = Math.min(n, left + 2 * width);
+      let i = left, j = middle, out = left;
+      while (i < middle && j < end) spare[out++] = keys[order[j]] < keys[order[i]] ? order[j++] : order[i++];
+      while (i < middle) spare[out++] = order[i++];
+      while (j < end) spare[out++] = order[j++];
+    }
+    [order, spare] = [spare, order];
+  }
+  return order;
+}
+
 /** Median absolute deviation scaled by 1.4826, so it estimates the standard deviation of normal data. */
 export function robustScale(values: ArrayLike<number>, centre = median(values)): number {
   const deviations = new Float64Array(values.length);
