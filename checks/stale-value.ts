@@ -271,8 +271,14 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   }
   const steps: number[] = [];
   for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
-  const byChance = orderByKey(steps, chance);
-  return { chance, implied, observed, expected, counted, repeated, byChance };
+  // Ordered on first use: only a run that is judged reads it, and most series have none.
+  let byChance: Int32Array | undefined;
+  return {
+    chance, implied, observed, expected, counted, repeated,
+    get byChance() {
+      return (byChance ??= orderByKey(steps, chance));
+    },
+  };
 }
 
 /**
