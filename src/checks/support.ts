@@ -71,6 +71,13 @@ export function median(values: ArrayLike<number>): number {
   if (n === 0) return NaN;
   const work = new Float64Array(n); // a plain copy loop: Float64Array.from walks an iterator
   for (let i = 0; i < n; i++) work[i] = values[i];
+  return medianInPlace(work);
+}
+
+/** The median of `work`, whose order it changes (for arrays made to be summarised). */
+function medianInPlace(work: Float64Array): number {
+  const n = work.length;
+  if (n === 0) return NaN;
   const upper = kthSmallest(work, n >> 1);
   return n % 2 === 1 ? upper : (maxBelow(work, n >> 1) + upper) / 2;
 }
@@ -180,7 +187,7 @@ function mergeRuns(order: Int32Array, sorted: Float64Array, toOrder: Int32Array,
 export function robustScale(values: ArrayLike<number>, centre = median(values)): number {
   const deviations = new Float64Array(values.length);
   for (let i = 0; i < values.length; i++) deviations[i] = Math.abs(values[i] - centre);
-  return 1.4826 * median(deviations);
+  return 1.4826 * medianInPlace(deviations);
 }
 
 /** Pearson's correlation, from the one helper (`src/numeric/correlation.ts`). */
