@@ -14,9 +14,8 @@ import type { CheckInput } from './run.js';
 import type { ResolvedCheck, SettingsResolver } from './settings-resolver.js';
 
 /**
- * The series-level checks over series `first` to `end − 1` of the NAV frame, unsorted. The
- * worker threads (src/checks/parallel.ts) call this on disjoint ranges; `feedLatest` is the whole
- * feed's, not the range's.
+ * The series-level checks over series `first` to `end − 1` of the NAV frame, unsorted.
+ * `feedLatest` is the whole feed's, not the range's.
  */
 export function runSeriesChecks(input: CheckInput, resolver: SettingsResolver, first: number, end: number, feedLatest: number | undefined): Finding[] {
   return seriesChecker(input, resolver, feedLatest)(first, end);
@@ -67,7 +66,8 @@ function claimingParams(checks: readonly SeriesCheck[], resolved: readonly Resol
   return claiming as ClaimingParams;
 }
 
-export function groupActions(actions: readonly CorporateActionRecord[]): Map<string, CorporateActionRecord[]> {
+/** Corporate actions by series, each list by ex-date. */
+function groupActions(actions: readonly CorporateActionRecord[]): Map<string, CorporateActionRecord[]> {
   const byId = new Map<string, CorporateActionRecord[]>();
   for (const action of actions) {
     const list = byId.get(action.series_id);
