@@ -1,7 +1,6 @@
 /**
- * A worker thread of the parallel check runner (src/checks/parallel.ts): takes the next range
- * of series nobody has taken (a counter shared by every worker), runs every series-level check
- * over it, and so on until none is left; then posts the findings of each range it took.
+ * A worker thread of the parallel check runner (src/checks/parallel.ts): runs every
+ * series-level check over each range of series dealt to it, and posts the findings range by range.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { BusinessCalendars } from '../calendar/business-calendar.js';
@@ -24,9 +23,5 @@ const input = {
 };
 // The settings were validated on the main thread; the worker only resolves them.
 const check = seriesChecker(input, new SettingsResolver(job.settings), job.feedLatest);
-const answer: WorkerAnswer = [];
-const ranges = job.ranges.length / 2;
-for (let range = Atomics.add(job.next, 0, 1); range < ranges; range = Atomics.add(job.next, 0, 1)) {
-  answer.push([range, check(job.ranges[2 * range], job.ranges[2 * range + 1])]);
-}
+const answer: WorkerAnswer = job.numbers.map((range, j) => [range, check(job.cuts[j], job.cuts[j + 1])]);
 parentPort!.postMessage(answer);
