@@ -4,7 +4,8 @@ import { isoWeekStart } from '../src/calendar/days.js';
 import { seriesAt } from '../src/series/frame.js';
 import { movesOf } from '../src/checks/move-analysis.js';
 import { GROSS_Z, type ResidualMoves } from '../src/checks/residual-moves.js';
-import { exactPosition, isoDate, makeFinding, round } from '../src/checks/support.js';
+import { dayTable, indexInFrame, searchTable, type DayTable } from '../src/checks/series-tables.js';
+import { isoDate, makeFinding, round } from '../src/checks/support.js';
 
 interface MismatchParams {
   index_r2: number;
@@ -101,8 +102,24 @@ interface Verdict {
   from: number;
 }
 
+/** A benchmark of the feed with its day table (see `weekMove`). */
+interface Priced {
+  readonly series: SeriesSlice;
+  readonly days: DayTable;
+}
+
+function pricedAt(benchmarks: SeriesFrame, index: number): Priced {
+  return { series: seriesAt(benchmarks, index), days: dayTable(benchmarks, index) };
+}
+
+/** The assigned benchmark, a series of the feed's benchmark frame (the runner looked it up there). */
+function assignedOf(benchmark: SeriesSlice, benchmarks: SeriesFrame): Priced {
+  const index = indexInFrame(benchmarks, benchmark);
+  return index >= 0 ? pricedAt(benchmarks, index) : { series: benchmark, days: searchTable(benchmark) };
+}
+
 function judgeIndexFund(weeks: Week[], benchmark: SeriesSlice, benchmarks: SeriesFrame, params: MismatchParams): Verdict | null {
-  const assigned = suffixFits(weeks, benchmark, params.min_weeks)[0];
+  const assigned = suffixFits(weeks, assignedOf(benchmark, benchmarks), params.min_weeks)[0];
   if (!(assigned < params.index_r2)) return null;
   const better = bestAt(alternativeFits(weeks, benchmarks, benchmark.id, params.min_weeks), 0);
   return better && better.r2 >= params.index_r2 ? { assigned, better, from: 0 } : null;
@@ -110,7 +127,8 @@ function judgeIndexFund(weeks: Week[], benchmark: SeriesSlice, benchmarks: Serie
 
 /** The weeks from the quarter where another benchmark explains the fund best, if one does. */
 function judgeActiveFund(weeks: Week[], benchmark: SeriesSlice, benchmarks: SeriesFrame, params: MismatchParams): Verdict | null {
-  const assignedFits = suffixFits(weeks, benchmark, params.min_weeks);
+  const priced = assignedOf(benchmark, benchmarks);
+  const assignedFits = suffixFits(weeks, priced, params.min_weeks);
   const others = alternativeFits(weeks, benchmarks, benchmark.id, params.min_weeks);
   let verdict: Verdict | null = null;
   let bestScore = 0;
@@ -120,7 +138,7 @@ function judgeActiveFund(weeks: Week[], benchmark: SeriesSlice, benchmarks: Seri
     const better = bestAt(others, from);
     if (!better || better.r2 < params.good_r2 || !(better.r2 >= assigned + params.min_sibling_gain)) continue;
     const poorAndBeaten = from === 0 && assigned < params.poor_r2 && better.r2 >= assigned + params.min_gain;
-    const t = addedByOther(weeks, from, benchmark, seriesAt(benchmarks, better.index));
+    const t = addedByOther(weeks, from, priced, pricedAt(benchmarks, better.index));
     if (!poorAndBeaten && !(t >= Z_PER_COMPARISON)) continue;
     // The start where the evidence for the other benchmark is strongest.
     const score = poorAndBeaten ? Infinity : t;
@@ -145,7 +163,7 @@ const Z_PER_COMPARISON = 3.719;
  * normal; when the fund follows the sibling, the sibling's moves explain what the assigned
  * index cannot and its t runs to 10 and more within a few quarters.
  */
-function addedByOther(weeks: Week[], from: number, assigned: SeriesSlice, other: SeriesSlice): number {
+function addedByOther(weeks: Week[], from: number, assigned: Priced, other: Priced): number {
   let n = 0, sy = 0, sa = 0, sb = 0, syy = 0, saa = 0, sbb = 0, sab = 0, sya = 0, syb = 0;
   for (let i = from; i < weeks.length; i++) {
     const a = weekMove(weeks[i], assigned);
@@ -168,11 +186,12 @@ function addedByOther(weeks: Week[], from: number, assigned: SeriesSlice, other:
 }
 
 /** The benchmark's log move over the week's two dates; NaN unless it has both exactly. */
-function weekMove(week: Week, benchmark: SeriesSlice): number {
+function weekMove(week: Week, benchmark: Priced): number {
   // Exact dates only: a level carried over a benchmark gap would misalign the whole week.
-  const p = exactPosition(benchmark.dates, week.start);
-  const q = exactPosition(benchmark.dates, week.end);
-  return p >= 0 && q > p && benchmark.values[p] > 0 && benchmark.values[q] > 0 ? Math.log(benchmark.values[q] / benchmark.values[p]) : NaN;
+  const p = benchmark.days.at(week.start);
+  const q = benchmark.days.at(week.end);
+  const values = benchmark.series.values;
+  return p >= 0 && q > p && values[p] > 0 && values[q] > 0 ? Math.log(values[q] / values[p]) : NaN;
 }
 
 /** Sums of the steps ending in each ISO week; weeks holding a gross error are left out. */
@@ -203,7 +222,7 @@ function weeklyReturns(series: SeriesSlice, returns: ResidualMoves): Week[] {
  * start `from` (NaN where fewer than `minWeeks` weeks the benchmark prices exactly remain).
  * One pass from the end with running sums.
  */
-function suffixFits(weeks: Week[], benchmark: SeriesSlice, minWeeks: number): Float64Array {
+function suffixFits(weeks: Week[], benchmark: Priced, minWeeks: number): Float64Array {
   const fits = new Float64Array(weeks.length).fill(NaN);
   let n = 0, sx = 0, sy = 0, sxx = 0, syy = 0, sxy = 0;
   for (let i = weeks.length - 1; i >= 0; i--) {
@@ -230,7 +249,7 @@ function suffixFits(weeks: Week[], benchmark: SeriesSlice, minWeeks: number): Fl
 function alternativeFits(weeks: Week[], benchmarks: SeriesFrame, assignedId: string, minWeeks: number): Alternative[] {
   const others: Alternative[] = [];
   for (let i = 0; i < benchmarks.ids.length; i++) {
-    if (benchmarks.ids[i] !== assignedId) others.push({ id: benchmarks.ids[i], index: i, fits: suffixFits(weeks, seriesAt(benchmarks, i), minWeeks) });
+    if (benchmarks.ids[i] !== assignedId) others.push({ id: benchmarks.ids[i], index: i, fits: suffixFits(weeks, pricedAt(benchmarks, i), minWeeks) });
   }
   return others;
 }

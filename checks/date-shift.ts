@@ -78,11 +78,11 @@ export interface Shift {
 }
 
 /** Shifted spans of the series, their edges placed where the lagged fit starts and stops winning. */
-export function findShifts(series: SeriesSlice, returns: ResidualMoves, benchmark: SeriesSlice, params: ShiftParams): Shift[] {
+export function findShifts(series: SeriesSlice, returns: ResidualMoves, benchmark: SeriesSlice, params: ShiftParams, stepMoves?: Float64Array): Shift[] {
   const usable = usableSteps(returns, benchmark, params.max_lag);
   const size = Math.max(2, Math.floor(params.min_steps));
   if (usable.length < size) return [];
-  const work: Work = { fund: new Float64Array(size), bench: new Float64Array(size), correlations: new Float64Array(2 * params.max_lag + 1) };
+  const work: Work = { fund: new Float64Array(size), bench: new Float64Array(size), correlations: new Float64Array(2 * params.max_lag + 1), stepMoves };
   const verdicts = windowStarts(usable.length, size).map((first) => judgeWindow(returns, benchmark, usable, first, first + size - 1, params, work));
   // A lag is a fault only as a change: the dates as stamped must fit somewhere in the history.
   if (!verdicts.some((v) => v.fitsAsStamped)) return constantLag(returns, benchmark, usable, verdicts, params);
@@ -171,6 +171,8 @@ interface Work {
   fund: Float64Array;
   bench: Float64Array;
   correlations: Float64Array;
+  /** The benchmark's day-to-day log moves when the runner has them (`stepLogMoves`): the same numbers, computed once. */
+  stepMoves?: Float64Array;
 }
 
 /** Window starts, ascending: back from the latest full window by half a window, and the very first. */
@@ -214,9 +216,12 @@ function lagCorrelations(returns: ResidualMoves, benchmark: SeriesSlice, usable:
   const levels = benchmark.values;
   let limits: [number, number] | undefined;
   for (const lag of lagsFromZero(params.max_lag)) {
+    const stepMoves = work.stepMoves;
     for (let i = 0; i < n; i++) {
       const k = usable[first + i];
-      bench[i] = Math.log(levels[returns.benchTo[k] + lag] / levels[returns.benchFrom[k] + lag]);
+      const p = returns.benchFrom[k] + lag;
+      const q = returns.benchTo[k] + lag;
+      bench[i] = stepMoves && q === p + 1 ? stepMoves[p] : Math.log(levels[q] / levels[p]);
     }
     limits ??= clipLimits(bench);
     clipInPlace(bench, limits);

@@ -2,7 +2,7 @@ import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
 import { movesOf } from '../src/checks/move-analysis.js';
-import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, robustScale } from '../src/checks/support.js';
+import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, orderByKey, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
   min_days: number;
@@ -216,7 +216,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const tickOf = blockTicks(series, rows, shown);
   // The grid right around a step: a 2-decimal stretch next to values re-rounded to 4 decimals
   // (after a mispricing or a rescaling) keeps its own coarser tick.
-  const nearTick = (k: number) => printedTick(series, rows, Math.max(0, k - NEAR_TICK), Math.min(rows.length, k + NEAR_TICK + 2), shown);
+  const nearTick = nearTicks(series, rows, shown);
   const chance = new Float64Array(n - 1);
   const implied = new Float64Array(n - 1);
   let cursor = 0;
@@ -242,7 +242,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
       }
     }
     const level = series.values[a];
-    const tick = Math.max(tickOf(k), nearTick(k));
+    const tick = Math.max(tickOf(k), nearTick[k]);
     chance[k] = sameBinChance(level * mean, level * sd, tick);
     implied[k] = Math.abs(level * mean) / tick;
   }
@@ -271,8 +271,14 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   }
   const steps: number[] = [];
   for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
-  const byChance = Int32Array.from(steps.sort((a, b) => chance[a] - chance[b]));
-  return { chance, implied, observed, expected, counted, repeated, byChance };
+  // Ordered on first use: only a run that is judged reads it, and most series have none.
+  let byChance: Int32Array | undefined;
+  return {
+    chance, implied, observed, expected, counted, repeated,
+    get byChance() {
+      return (byChance ??= orderByKey(steps, chance));
+    },
+  };
 }
 
 /**
@@ -333,10 +339,33 @@ function decimalsShown(series: SeriesSlice, rows: number[]): Uint8Array {
 
 /** `shown[k]`: the decimals observation `rows[k]` shows (`decimalsShown`). */
 function printedTick(series: SeriesSlice, rows: number[], from: number, to: number, shown: Uint8Array): number {
-  // Decimals shown, as most of the values show them: one odd value (a keying error re-rounded
-  // to 4 decimals) does not make a 2-decimal fund's grid finer.
   const byDecimals = new Int32Array(9);
   for (let k = from; k < to; k++) byDecimals[shown[k]]++;
+  return tickOfWindow(series, rows, from, to, shown, byDecimals);
+}
+
+/**
+ * `printedTick` of the window around each step k (observations k − NEAR_TICK to
+ * k + NEAR_TICK + 1), with the count of decimals slid along instead of counted again per step.
+ */
+function nearTicks(series: SeriesSlice, rows: number[], shown: Uint8Array): Float64Array {
+  const ticks = new Float64Array(Math.max(0, rows.length - 1));
+  const byDecimals = new Int32Array(9);
+  let from = 0, to = 0;
+  for (let k = 0; k < ticks.length; k++) {
+    const nextFrom = Math.max(0, k - NEAR_TICK);
+    const nextTo = Math.min(rows.length, k + NEAR_TICK + 2);
+    for (; to < nextTo; to++) byDecimals[shown[to]]++;
+    for (; from < nextFrom; from++) byDecimals[shown[from]]--;
+    ticks[k] = tickOfWindow(series, rows, from, to, shown, byDecimals);
+  }
+  return ticks;
+}
+
+/** The tick of the window [from, to) whose observations show `byDecimals[d]` values with d decimals. */
+function tickOfWindow(series: SeriesSlice, rows: number[], from: number, to: number, shown: Uint8Array, byDecimals: Int32Array): number {
+  // Decimals shown, as most of the values show them: one odd value (a keying error re-rounded
+  // to 4 decimals) does not make a 2-decimal fund's grid finer.
   let decimals = 0;
   for (let seen = byDecimals[0]; decimals < 8 && seen < GRID_SHARE * (to - from); seen += byDecimals[++decimals]);
   let divisor = 0;
@@ -358,6 +387,16 @@ function decimalsOf(value: number): number {
 }
 
 function gcd(a: number, b: number): number {
+  // Whole numbers that fit 32 bits take integer remainders (the same answer, much quicker).
+  if (a >= 0 && b >= 0 && (a | 0) === a && (b | 0) === b) {
+    let x = a | 0, y = b | 0;
+    while (y !== 0) {
+      const rest = x % y;
+      x = y;
+      y = rest;
+    }
+    return x;
+  }
   while (b) {
     const rest = a % b;
     a = b;

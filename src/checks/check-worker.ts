@@ -1,13 +1,13 @@
 /**
- * A worker thread of the parallel check runner (src/checks/parallel.ts): runs every series-level
- * check over the range of series it was given and posts the findings back.
+ * A worker thread of the parallel check runner (src/checks/parallel.ts): runs every
+ * series-level check over each range of series dealt to it, and posts the findings range by range.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { BusinessCalendars } from '../calendar/business-calendar.js';
 import type { SeriesFrame } from '../series/frame.js';
-import type { FrameData, WorkerInput } from './parallel.js';
-import { runSeriesChecks } from './run.js';
-import { parseCheckSettings, SettingsResolver } from './settings.js';
+import type { FrameData, WorkerAnswer, WorkerInput } from './parallel.js';
+import { seriesChecker } from './series-runner.js';
+import { SettingsResolver } from './settings-resolver.js';
 
 const job = workerData as WorkerInput;
 const frame = (data: FrameData): SeriesFrame => ({ ...data, indexById: new Map(data.ids.map((id, i) => [id, i])) });
@@ -21,5 +21,7 @@ const input = {
   calendars: BusinessCalendars.from(job.calendars),
   asOf: job.asOf,
 };
-const resolver = new SettingsResolver(parseCheckSettings(job.settings));
-parentPort!.postMessage(runSeriesChecks(input, resolver, 0, input.nav.ids.length, job.feedLatest));
+// The settings were validated on the main thread; the worker only resolves them.
+const check = seriesChecker(input, new SettingsResolver(job.settings), job.feedLatest);
+const answer: WorkerAnswer = job.numbers.map((range, j) => [range, check(job.cuts[j], job.cuts[j + 1])]);
+parentPort!.postMessage(answer);

@@ -9,6 +9,7 @@
 import type { SeriesSlice } from '../series/frame.js';
 import type { SeriesContext } from './check.js';
 import { residualMoves, type ResidualMoves } from './residual-moves.js';
+import { indexInFrame, stepLogMoves } from './series-tables.js';
 import { findShifts, type Shift, type ShiftParams } from '../../checks/date-shift.js';
 import type { SplitParams } from '../../checks/split-like-jump.js';
 import type { SpikeParams } from '../../checks/spike-reversal.js';
@@ -38,10 +39,17 @@ export interface ClaimingParams {
 export function analyseMoves(series: SeriesSlice, context: SeriesContext, claiming: ClaimingParams): MoveAnalysis {
   const model = residualMoves(series, context);
   const shiftParams = claiming.date_shift;
-  const found = shiftParams && context.benchmark ? findShifts(series, model, context.benchmark, shiftParams) : [];
+  const benchmark = context.benchmark;
+  const found = shiftParams && benchmark ? findShifts(series, model, benchmark, shiftParams, benchmarkStepMoves(context, benchmark)) : [];
   const shifts = found.filter((shift) => !shift.constant);
   const constantLag = found.find((shift) => shift.constant);
   return { model, shifts, constantLag, shiftParams, split: claiming.split_like_jump, spike: claiming.spike_reversal };
+}
+
+/** The day-to-day log moves of the series' benchmark, kept with the feed's benchmark frame (the same for every fund). */
+function benchmarkStepMoves(context: SeriesContext, benchmark: SeriesSlice): Float64Array | undefined {
+  const index = indexInFrame(context.benchmarks, benchmark);
+  return index >= 0 ? stepLogMoves(context.benchmarks!, index) : undefined;
 }
 
 /**

@@ -1,8 +1,12 @@
 /**
- * The check runner on worker threads: the series are cut into disjoint ranges of about equal
- * row counts, each worker runs every series-level check over its range (src/checks/check-worker.ts)
- * while this thread runs the feed-level checks, and the findings are sorted exactly as
- * `runChecks` sorts them. Same findings as `runChecks`, in the same order (test/checks/parallel.test.ts).
+ * The check runner on worker threads: the series are cut into many consecutive ranges of about
+ * equal row counts, dealt to the workers in turn (range r to worker r mod threads), so a
+ * stretch of costly series is shared by every worker instead of holding one of them up at the
+ * end. Each worker receives a copy of its ranges' rows, moved (not copied again) into it and
+ * freed with it, runs every series-level check over each range (src/checks/check-worker.ts)
+ * while this thread runs the feed-level checks, and answers the findings of each range. The
+ * findings are put back in range order and sorted exactly as `runChecks` sorts them: same
+ * findings as `runChecks`, in the same order (test/checks/parallel.test.ts).
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
@@ -22,8 +26,9 @@ export interface FrameData {
   readonly lines: Int32Array;
 }
 
-/** What one worker needs for its range of series. */
+/** What one worker needs for the ranges of series dealt to it. */
 export interface WorkerInput {
+  /** The worker's series, range after range. */
   readonly nav: FrameData;
   readonly benchmarks?: FrameData;
   readonly previous?: FrameData;
@@ -33,12 +38,20 @@ export interface WorkerInput {
   readonly asOf: number;
   readonly feedLatest: number | undefined;
   readonly settings: CheckSettings;
+  /** The worker's ranges: range `numbers[j]` is its series `cuts[j]` to `cuts[j + 1] − 1`. */
+  readonly numbers: number[];
+  readonly cuts: number[];
 }
+
+/** What a worker answers: the findings of each of its ranges, by range number. */
+export type WorkerAnswer = Array<[range: number, findings: Finding[]]>;
 
 /** Below this many NAV rows a worker's start-up costs more than it saves. */
 const MIN_ROWS_FOR_WORKERS = 200_000;
 /** More threads than this gain little: the feed-level checks and the final sort stay on one. */
 const MAX_DEFAULT_THREADS = 8;
+/** Ranges per thread: enough that costly stretches of series are shared out evenly. */
+const RANGES_PER_THREAD = 16;
 
 export interface ParallelOptions {
   /** Worker threads; 1 runs the plain path on this thread. Default: `defaultThreads()`. */
@@ -63,25 +76,36 @@ export async function runChecksInParallel(input: CheckInput, settings: CheckSett
   if (threads <= 1 || small) return runChecks(input, parsed);
   const feedLatest = latestDateUpTo(input.nav, input.asOf);
   const calendars = input.calendars.describe();
-  const benchmarks = input.benchmarks && frameData(input.benchmarks, 0, input.benchmarks.ids.length);
-  const pending = seriesRanges(input.nav, threads).map(([first, end]) => {
-    const ids = new Set(input.nav.ids.slice(first, end));
+  const benchmarks = input.benchmarks && framePart(input.benchmarks, indicesFrom(0, input.benchmarks.ids.length));
+  const ranges = seriesRanges(input.nav, threads * RANGES_PER_THREAD);
+  const pending = Array.from({ length: threads }, (_, worker) => {
+    const numbers = ranges.map((_, r) => r).filter((r) => r % threads === worker);
+    const mine = numbers.map((r) => ranges[r]);
+    const cuts = [0];
+    for (const [first, end] of mine) cuts.push(cuts[cuts.length - 1] + end - first);
+    const nav = framePart(input.nav, mine.flatMap(([first, end]) => indicesFrom(first, end)));
+    const ids = new Set(nav.ids);
     const job: WorkerInput = {
-      nav: frameData(input.nav, first, end),
+      nav,
       benchmarks,
-      previous: input.previous && framePart(input.previous, ids),
+      previous: input.previous && previousPart(input.previous, ids),
       master: (input.master ?? []).filter((record) => ids.has(record.series_id)),
       actions: (input.actions ?? []).filter((action) => ids.has(action.series_id)),
       calendars,
       asOf: input.asOf,
       feedLatest,
       settings: parsed,
+      numbers,
+      cuts,
     };
     return runWorker(job);
   });
   // This thread runs the feed-level checks while the workers run the series-level ones.
   const feedFindings = runFeedChecks(input, new SettingsResolver(parsed));
-  const findings = (await Promise.all(pending)).flat();
+  const byRange: Finding[][] = new Array(ranges.length);
+  for (const answer of await Promise.all(pending)) for (const [range, findings] of answer) byRange[range] = findings;
+  // Range order is series order, as on one thread, so equal findings keep their order in the sort.
+  const findings = byRange.flat();
   findings.push(...feedFindings);
   return findings.sort(compareFindings);
 }
@@ -102,35 +126,27 @@ export function seriesRanges(frame: SeriesFrame, threads: number): Array<[number
   return ranges;
 }
 
-/** Series `first` to `end − 1` of a frame, copied into fresh arrays the worker can take over. */
-function frameData(frame: SeriesFrame, first: number, end: number): FrameData {
-  const start = frame.offsets[first];
-  const stop = frame.offsets[end];
-  const offsets = frame.offsets.slice(first, end + 1);
-  for (let i = 0; i < offsets.length; i++) offsets[i] -= start;
-  return {
-    ids: frame.ids.slice(first, end),
-    offsets,
-    dates: frame.dates.slice(start, stop),
-    values: frame.values.slice(start, stop),
-    lines: frame.lines.slice(start, stop),
-  };
+/** first, first + 1, …, end − 1. */
+function indicesFrom(first: number, end: number): number[] {
+  return Array.from({ length: end - first }, (_, k) => first + k);
 }
 
 /** The series of `frame` whose ids are in `ids`, in the frame's order. */
-function framePart(frame: SeriesFrame, ids: ReadonlySet<string>): FrameData {
+function previousPart(frame: SeriesFrame, ids: ReadonlySet<string>): FrameData {
   const kept: number[] = [];
+  for (let i = 0; i < frame.ids.length; i++) if (ids.has(frame.ids[i])) kept.push(i);
+  return framePart(frame, kept);
+}
+
+/** The series `chosen` (frame indices) of a frame, in that order, copied into fresh arrays the worker can take over. */
+function framePart(frame: SeriesFrame, chosen: readonly number[]): FrameData {
   let rows = 0;
-  for (let i = 0; i < frame.ids.length; i++) {
-    if (!ids.has(frame.ids[i])) continue;
-    kept.push(i);
-    rows += frame.offsets[i + 1] - frame.offsets[i];
-  }
-  const offsets = new Int32Array(kept.length + 1);
+  for (const i of chosen) rows += frame.offsets[i + 1] - frame.offsets[i];
+  const offsets = new Int32Array(chosen.length + 1);
   const dates = new Int32Array(rows);
   const values = new Float64Array(rows);
   const lines = new Int32Array(rows);
-  kept.forEach((i, k) => {
+  chosen.forEach((i, k) => {
     const start = frame.offsets[i];
     const stop = frame.offsets[i + 1];
     dates.set(frame.dates.subarray(start, stop), offsets[k]);
@@ -138,7 +154,7 @@ function framePart(frame: SeriesFrame, ids: ReadonlySet<string>): FrameData {
     lines.set(frame.lines.subarray(start, stop), offsets[k]);
     offsets[k + 1] = offsets[k] + stop - start;
   });
-  return { ids: kept.map((i) => frame.ids[i]), offsets, dates, values, lines };
+  return { ids: chosen.map((i) => frame.ids[i]), offsets, dates, values, lines };
 }
 
 /**
@@ -152,17 +168,17 @@ function workerScript(): { script: string | URL; eval: boolean } {
   return { script: `import('tsx/esm/api').then(({ register }) => { register(); return import(${JSON.stringify(source)}); });`, eval: true };
 }
 
-function runWorker(job: WorkerInput): Promise<Finding[]> {
+function runWorker(job: WorkerInput): Promise<WorkerAnswer> {
   const { script, eval: evaluate } = workerScript();
-  // The range's arrays were copied for this worker alone, so they move instead of being copied again.
+  // The worker's rows were copied for it alone, so they move instead of being copied again.
   const frames = job.previous ? [job.nav, job.previous] : [job.nav];
   const transfer = frames.flatMap((f) => [f.offsets.buffer, f.dates.buffer, f.values.buffer, f.lines.buffer] as ArrayBuffer[]);
   return new Promise((resolve, reject) => {
     const worker = new Worker(script, { eval: evaluate, workerData: job, transferList: transfer });
     let answered = false;
-    worker.once('message', (findings: Finding[]) => {
+    worker.once('message', (answer: WorkerAnswer) => {
       answered = true;
-      resolve(findings);
+      resolve(answer);
     });
     worker.once('error', reject);
     worker.once('exit', (code) => {

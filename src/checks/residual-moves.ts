@@ -16,6 +16,7 @@ import type { SeriesContext } from './check.js';
 import type { CorporateActionRecord } from '../ingest/records.js';
 import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
 import { calendarOf, exactPosition, kthSmallest, median, robustScale } from './support.js';
+import { indexInFrame, stepLogMoves } from './series-tables.js';
 
 export interface ResidualMoves {
   readonly count: number;
@@ -100,6 +101,9 @@ function computeMoves(series: SeriesSlice, context: SeriesContext): ResidualMove
   const calendar = calendarOf(context);
   const benchmark = context.benchmark;
   const benchPositions = benchmark ? positionsInBenchmark(series, anchors, benchmark) : undefined;
+  // Day-to-day benchmark moves are the same for every fund of that benchmark: computed once.
+  const benchIndex = benchmark ? indexInFrame(context.benchmarks, benchmark) : -1;
+  const benchMoves = benchIndex >= 0 ? stepLogMoves(context.benchmarks!, benchIndex) : undefined;
   let actionCursor = 0;
 
   for (let k = 0; k < count; k++) {
@@ -109,7 +113,8 @@ function computeMoves(series: SeriesSlice, context: SeriesContext): ResidualMove
     to[k] = b;
     raw[k] = Math.log(series.values[b] / series.values[a]);
     while (actionCursor < context.actions.length && context.actions[actionCursor].ex_date <= series.dates[a]) actionCursor++;
-    fund[k] = Math.log(valueBeforeActions(series, b, context.actions, actionCursor) / series.values[a]);
+    const adjusted = valueBeforeActions(series, b, context.actions, actionCursor);
+    fund[k] = adjusted === series.values[b] ? raw[k] : Math.log(adjusted / series.values[a]);
     span[k] = series.dates[b] - series.dates[a] === 1 ? 1 : Math.max(1, context.calendars.businessDayDistance(calendar, series.dates[a], series.dates[b]));
     if (benchmark && benchPositions) {
       const p = benchPositions[k];
@@ -117,7 +122,7 @@ function computeMoves(series: SeriesSlice, context: SeriesContext): ResidualMove
       benchFrom[k] = p;
       benchTo[k] = q;
       if (p >= 0 && q >= 0) {
-        bench[k] = Math.log(benchmark.values[q] / benchmark.values[p]);
+        bench[k] = q === p + 1 && benchMoves ? benchMoves[p] : Math.log(benchmark.values[q] / benchmark.values[p]);
         // Markets move on the fund's holidays too: its next NAV carries those days' noise.
         span[k] = Math.max(span[k], q - p);
       }

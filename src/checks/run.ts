@@ -5,11 +5,13 @@
 import type { BusinessCalendars } from '../calendar/business-calendar.js';
 import { severityRank, type Finding } from '../findings.js';
 import type { CorporateActionRecord, RejectedRow, SeriesMasterRecord, VendorFigureRecord } from '../ingest/records.js';
-import { findSeries, seriesAt, type SeriesFrame } from '../series/frame.js';
-import type { FeedCheck, FeedContext, SeriesCheck, SeriesContext } from './check.js';
-import { analyseMoves, type ClaimingParams } from './move-analysis.js';
+import type { SeriesFrame } from '../series/frame.js';
+import type { FeedCheck, FeedContext } from './check.js';
 import { CHECKS } from './registry.js';
-import { parseCheckSettings, SettingsResolver, type CheckSettings, type ResolvedCheck } from './settings.js';
+import { runSeriesChecks } from './series-runner.js';
+import { parseCheckSettings, SettingsResolver, type CheckSettings } from './settings.js';
+
+export { runSeriesChecks, seriesChecker } from './series-runner.js';
 
 export interface CheckInput {
   readonly nav: SeriesFrame;
@@ -30,40 +32,6 @@ export function runChecks(input: CheckInput, settings: CheckSettings = {}): Find
   const findings = runSeriesChecks(input, resolver, 0, input.nav.ids.length, latestDateUpTo(input.nav, input.asOf));
   findings.push(...runFeedChecks(input, resolver));
   return findings.sort(compareFindings);
-}
-
-/**
- * The series-level checks over series `first` to `end − 1` of the NAV frame, unsorted. The
- * worker threads (src/checks/parallel.ts) call this on disjoint ranges; `feedLatest` is the whole
- * feed's, not the range's.
- */
-export function runSeriesChecks(input: CheckInput, resolver: SettingsResolver, first: number, end: number, feedLatest: number | undefined): Finding[] {
-  const findings: Finding[] = [];
-  const seriesChecks = CHECKS.filter((check): check is SeriesCheck => check.scope === 'series');
-  const masterById = new Map((input.master ?? []).map((record) => [record.series_id, record]));
-  const actionsById = groupActions(input.actions ?? []);
-
-  for (let i = first; i < end; i++) {
-    const series = seriesAt(input.nav, i);
-    const master = masterById.get(series.id);
-    const base: SeriesContext = {
-      asOf: input.asOf,
-      calendars: input.calendars,
-      master,
-      benchmark: master?.benchmark_id && input.benchmarks ? findSeries(input.benchmarks, master.benchmark_id) : undefined,
-      benchmarks: input.benchmarks,
-      actions: actionsById.get(series.id) ?? [],
-      previous: input.previous ? findSeries(input.previous, series.id) : undefined,
-      feedLatest,
-    };
-    const resolved = seriesChecks.map((check) => resolver.resolve(check, master?.category, series.id));
-    const readsMoves = seriesChecks.some((check, c) => check.readsMoves && resolved[c].enabled);
-    const context = readsMoves ? { ...base, moves: analyseMoves(series, base, claimingParams(seriesChecks, resolved)) } : base;
-    seriesChecks.forEach((check, c) => {
-      if (resolved[c].enabled) findings.push(...check.run(series, context, resolved[c].params));
-    });
-  }
-  return findings;
 }
 
 /** The feed-level checks, unsorted. */
@@ -87,15 +55,6 @@ export function runFeedChecks(input: CheckInput, resolver: SettingsResolver): Fi
   return findings;
 }
 
-/** The series' resolved parameters of the checks that claim steps from others, when enabled. */
-function claimingParams(checks: readonly SeriesCheck[], resolved: readonly ResolvedCheck[]): ClaimingParams {
-  const claiming: Record<string, unknown> = {};
-  checks.forEach((check, c) => {
-    if (resolved[c].enabled && (check.id === 'date_shift' || check.id === 'split_like_jump' || check.id === 'spike_reversal')) claiming[check.id] = resolved[c].params;
-  });
-  return claiming as ClaimingParams;
-}
-
 /** The latest NAV date of the whole feed on or before the as-of (what "up to date" means). */
 export function latestDateUpTo(frame: SeriesFrame, asOf: number): number | undefined {
   let latest: number | undefined;
@@ -106,16 +65,6 @@ export function latestDateUpTo(frame: SeriesFrame, asOf: number): number | undef
   return latest;
 }
 
-function groupActions(actions: readonly CorporateActionRecord[]): Map<string, CorporateActionRecord[]> {
-  const byId = new Map<string, CorporateActionRecord[]>();
-  for (const action of actions) {
-    const list = byId.get(action.series_id);
-    if (list) list.push(action);
-    else byId.set(action.series_id, [action]);
-  }
-  for (const list of byId.values()) list.sort((a, b) => a.ex_date - b.ex_date);
-  return byId;
-}
 
 /** Series first (file-level findings last), then date, check, severity (worst first) and key. */
 /** The source line a finding points at, so dateless findings of one file read in file order. */

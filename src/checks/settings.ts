@@ -19,6 +19,7 @@
 import { z } from 'zod';
 import type { Check, CheckParams } from './check.js';
 import { CHECKS } from './registry.js';
+import type { CheckSettings } from './settings-resolver.js';
 
 function overrideSchema(check: Check) {
   const shape: Record<string, z.ZodType> = { enabled: z.boolean().optional() };
@@ -36,13 +37,7 @@ export const CheckSettingsSchema = z.strictObject({
   series: z.record(z.string(), checkOverrides).optional(),
 });
 
-export type CheckOverride = { enabled?: boolean } & Record<string, number | string | boolean | undefined>;
-export type CheckOverrides = Partial<Record<string, CheckOverride>>;
-export interface CheckSettings {
-  run?: CheckOverrides;
-  categories?: Record<string, CheckOverrides>;
-  series?: Record<string, CheckOverrides>;
-}
+export type { CheckOverride, CheckOverrides, CheckSettings } from './settings-resolver.js';
 
 export class CheckSettingsError extends Error {}
 
@@ -67,40 +62,4 @@ function hint(path: string[]): string {
   return atCheckLevel ? ` (check ids: ${CHECKS.map((c) => c.id).join(', ')})` : path.length === 0 ? ' (allowed: run, categories, series)' : '';
 }
 
-export interface ResolvedCheck {
-  readonly enabled: boolean;
-  readonly params: CheckParams;
-}
-
-/** Resolves each check's settings for series, categories and the run, memoising per category. */
-export class SettingsResolver {
-  private readonly categories: Map<string, CheckOverrides>;
-  private readonly memo = new Map<string, ResolvedCheck>();
-
-  constructor(private readonly settings: CheckSettings) {
-    this.categories = new Map(Object.entries(settings.categories ?? {}).map(([name, overrides]) => [normalise(name), overrides]));
-  }
-
-  resolve(check: Check, category: string | null | undefined, seriesId: string | null): ResolvedCheck {
-    const own = seriesId === null ? undefined : this.settings.series?.[seriesId]?.[check.id];
-    const categoryKey = category ? normalise(category) : '';
-    const memoKey = `${check.id}\u0000${categoryKey}`;
-    let base = this.memo.get(memoKey);
-    if (!base) {
-      base = merge(merge({ enabled: true, params: check.defaults as CheckParams }, this.settings.run?.[check.id]), this.categories.get(categoryKey)?.[check.id]);
-      this.memo.set(memoKey, base);
-    }
-    return merge(base, own);
-  }
-}
-
-function merge(base: ResolvedCheck, override: CheckOverride | undefined): ResolvedCheck {
-  if (!override) return base;
-  const { enabled, ...params } = override;
-  const defined = Object.fromEntries(Object.entries(params).filter(([, v]) => v !== undefined)) as CheckParams;
-  return { enabled: enabled ?? base.enabled, params: { ...base.params, ...defined } };
-}
-
-function normalise(category: string): string {
-  return category.trim().toLowerCase();
-}
+export { SettingsResolver, type ResolvedCheck } from './settings-resolver.js';

@@ -71,6 +71,13 @@ export function median(values: ArrayLike<number>): number {
   if (n === 0) return NaN;
   const work = new Float64Array(n); // a plain copy loop: Float64Array.from walks an iterator
   for (let i = 0; i < n; i++) work[i] = values[i];
+  return medianInPlace(work);
+}
+
+/** The median of `work`, whose order it changes (for arrays made to be summarised). */
+function medianInPlace(work: Float64Array): number {
+  const n = work.length;
+  if (n === 0) return NaN;
   const upper = kthSmallest(work, n >> 1);
   return n % 2 === 1 ? upper : (maxBelow(work, n >> 1) + upper) / 2;
 }
@@ -109,11 +116,78 @@ function maxBelow(work: Float64Array, k: number): number {
   return max;
 }
 
+/**
+ * `indices` ordered by ascending `keys[index]`, ties kept in the order given: exactly what
+ * `indices.sort((a, b) => keys[a] - keys[b])` gives for finite keys, by a merge sort with the
+ * comparison written out (a comparator called per comparison was a large cost of the checks;
+ * this is about 2.5 times quicker). −0 and +0 compare equal, as for the comparator. Keys that
+ * are not finite make the subtraction inconsistent, so those orders take the plain sort.
+ */
+export function orderByKey(indices: readonly number[], keys: Float64Array): Int32Array {
+  const n = indices.length;
+  // Each index travels with its key, so comparisons read one array.
+  let order = Int32Array.from(indices);
+  let sorted = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    sorted[i] = keys[order[i]];
+    if (!Number.isFinite(sorted[i])) return Int32Array.from([...indices].sort((a, b) => keys[a] - keys[b]));
+  }
+  let spareOrder = new Int32Array(n);
+  let spareSorted = new Float64Array(n);
+  // Short runs by insertion, then merges of neighbouring runs; the left run wins ties (stable).
+  for (let start = 0; start < n; start += INSERTION_RUN) insertionSort(order, sorted, start, Math.min(n, start + INSERTION_RUN));
+  for (let width = INSERTION_RUN; width < n; width *= 2) {
+    for (let left = 0; left < n; left += 2 * width) mergeRuns(order, sorted, spareOrder, spareSorted, left, Math.min(n, left + width), Math.min(n, left + 2 * width));
+    [order, spareOrder] = [spareOrder, order];
+    [sorted, spareSorted] = [spareSorted, sorted];
+  }
+  return order;
+}
+
+const INSERTION_RUN = 16;
+
+function insertionSort(order: Int32Array, sorted: Float64Array, start: number, end: number): void {
+  for (let i = start + 1; i < end; i++) {
+    const item = order[i];
+    const key = sorted[i];
+    let j = i - 1;
+    while (j >= start && sorted[j] > key) {
+      order[j + 1] = order[j];
+      sorted[j + 1] = sorted[j];
+      j--;
+    }
+    order[j + 1] = item;
+    sorted[j + 1] = key;
+  }
+}
+
+/** Merges runs [left, middle) and [middle, end) of (order, sorted) into (toOrder, toSorted); ties from the left run first. */
+function mergeRuns(order: Int32Array, sorted: Float64Array, toOrder: Int32Array, toSorted: Float64Array, left: number, middle: number, end: number): void {
+  let i = left, j = middle, out = left;
+  while (i < middle && j < end) {
+    if (sorted[j] < sorted[i]) {
+      toOrder[out] = order[j];
+      toSorted[out++] = sorted[j++];
+    } else {
+      toOrder[out] = order[i];
+      toSorted[out++] = sorted[i++];
+    }
+  }
+  for (; i < middle; i++, out++) {
+    toOrder[out] = order[i];
+    toSorted[out] = sorted[i];
+  }
+  for (; j < end; j++, out++) {
+    toOrder[out] = order[j];
+    toSorted[out] = sorted[j];
+  }
+}
+
 /** Median absolute deviation scaled by 1.4826, so it estimates the standard deviation of normal data. */
 export function robustScale(values: ArrayLike<number>, centre = median(values)): number {
   const deviations = new Float64Array(values.length);
   for (let i = 0; i < values.length; i++) deviations[i] = Math.abs(values[i] - centre);
-  return 1.4826 * median(deviations);
+  return 1.4826 * medianInPlace(deviations);
 }
 
 /** Pearson's correlation, from the one helper (`src/numeric/correlation.ts`). */
