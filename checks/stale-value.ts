@@ -2,6 +2,7 @@ import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
 import { movesOf } from '../src/checks/move-analysis.js';
+import { tailDensity } from '../src/checks/residual-moves.js';
 import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
@@ -37,18 +38,25 @@ export const staleValue: SeriesCheck<StaleParams> = {
     const calendar = calendarOf(context);
     const judged: Array<{ run: number[]; days: number; chance: number; required: number }> = [];
     const shiftStarts = shiftStartDays(series, context);
+    const shiftedSpans = shiftedDateSpans(series, context);
     let position = 0;
     for (const run of runs) {
       const at = position;
       position += run.length;
       if (run.length < 2) continue;
       const days = context.calendars.businessDayDistance(calendar, series.dates[run[0]], series.dates[run[run.length - 1]]) + 1;
-      if (days < params.min_days) continue;
       // Stamping a day late from some date on repeats that date's value once: the shift is the cause.
       if (shiftStarts.some((day) => Math.abs(day - series.dates[run[run.length - 1]]) <= 7)) continue;
-      const { chance, required } = runChance(model, at, run.length, rows.length, params);
-      if (rows.length * chance > params.max_chance) continue;
-      judged.push({ run, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
+      if (days >= params.min_days) {
+        const { chance, required } = runChance(model, at, run.length, rows.length, params);
+        if (rows.length * chance <= params.max_chance) {
+          judged.push({ run, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
+          continue;
+        }
+      }
+      if (shiftedSpans.some(([from, to]) => series.dates[run[0]] >= from && series.dates[run[0]] <= to)) continue;
+      const glaring = glaringRepeatChance(model, at, run.length);
+      if (glaring !== undefined && rows.length * glaring <= params.max_chance) judged.push({ run, days, chance: rows.length * glaring, required: days });
     }
     return judged
       .map(({ run, days, chance, required }) => {
@@ -80,6 +88,12 @@ export const staleValue: SeriesCheck<StaleParams> = {
 function shiftStartDays(series: SeriesSlice, context: SeriesContext): number[] {
   const moves = context.moves;
   return moves ? moves.shifts.map((shift) => series.dates[moves.model.from[shift.firstStep]]) : [];
+}
+
+/** First and last date of each span the run's date_shift finds shifted: there the benchmark's implied moves are of other days. */
+function shiftedDateSpans(series: SeriesSlice, context: SeriesContext): Array<[number, number]> {
+  const moves = context.moves;
+  return moves ? moves.shifts.map((shift) => [series.dates[moves.model.from[shift.firstStep]], series.dates[moves.model.to[shift.lastStep]]]) : [];
 }
 
 function equalValueRuns(series: SeriesSlice, rows: number[]): number[][] {
@@ -126,11 +140,49 @@ function runChance(model: ChanceModel | undefined, at: number, length: number, o
 }
 
 /**
+ * A single unchanged price on a coarsely printed fund, on a day its benchmark implied a move of
+ * `GLARING_TICKS` ticks or more while the fund's own residual move spans only a few ticks:
+ * rounding alone practically never keeps such a price, so one repeat is evidence (a run
+ * shorter than `min_days` is judged only this way). The chance of the most telling step of the
+ * run, raised by the series' calibration factor, with the fund's own fitted tail as its floor;
+ * undefined when no step qualifies. (The floor of the days most alike, which `runChance` uses
+ * for grids the tick estimate does not see, is not needed here: on such a grid the residual
+ * spans many estimated ticks and the step does not qualify, while two other brief stale prices
+ * on the same fund would wrongly raise it.) Finely printed funds (a residual move of more
+ * than `COARSE_SPREAD_TICKS` ticks) are left to the run rule: a single repeat there is more
+ * often another fault's trace (a date stamped late, a row copied) than a price left unchanged.
+ */
+function glaringRepeatChance(model: ChanceModel | undefined, at: number, length: number): number | undefined {
+  if (!model) return undefined;
+  const factor = Math.max(1, (model.observed + 1) / (model.expected + 1));
+  let best: number | undefined;
+  for (let j = at; j < at + length - 1; j++) {
+    if (model.implied[j] < GLARING_TICKS || model.spread[j] > COARSE_SPREAD_TICKS) continue;
+    // Daily residuals are fat-tailed: the fund's own tail, not a normal curve, says how often
+    // its residual cancels a move this many spreads wide.
+    const tail = model.tail(model.implied[j] / model.spread[j]);
+    const rounding = Math.max(model.chance[j], tail === undefined ? 0 : tail / model.spread[j]);
+    const chance = Math.min(1, factor * rounding);
+    best = best === undefined ? chance : Math.min(best, chance);
+  }
+  return best;
+}
+
+/** A benchmark-implied move of this many printed ticks makes one unchanged price a defect (common practice, from memory). */
+const GLARING_TICKS = 8;
+
+/** A fund whose typical residual move is at most this many printed ticks is coarsely printed. */
+const COARSE_SPREAD_TICKS = 10;
+
+/**
  * A day on which the benchmark implied a move of this many printed ticks or more should have
  * moved the NAV: 4 ticks is where a careful reader of a 2-decimal fund's history starts to call
  * an unchanged price a defect (common practice, from memory).
  */
 const IMPLIED_TICKS = 4;
+
+/** Repeats among the alike steps that show a hidden grid (see `alikeRepeatShare`). */
+const ALIKE_COINCIDENCES = 3;
 
 /** Steps of the series' own history that a run's step is compared with (see `alikeRepeatShare`). */
 const ALIKE_STEPS = 40;
@@ -164,8 +216,9 @@ function alikeRepeatShare(model: ChanceModel, j: number, skipFrom: number, skipT
     taken++;
     repeats += model.repeated[step];
   }
-  // One coincidence among the alike days is not evidence of a hidden grid; two or more are.
-  return taken > 0 && repeats >= 2 ? repeats / taken : 0;
+  // One or two coincidences among the alike days are not evidence of a hidden grid (two other
+  // brief stale prices on the same fund would be), three or more are.
+  return taken > 0 && repeats >= ALIKE_COINCIDENCES ? repeats / taken : 0;
 }
 
 /** Runs of this many equal values or more are left out when measuring how often a series repeats by rounding. */
@@ -190,6 +243,10 @@ interface ChanceModel {
   readonly chance: Float64Array;
   /** The move the benchmark implied for the step, in printed ticks (0 without a benchmark price). */
   readonly implied: Float64Array;
+  /** The spread of the step's move around that, in printed ticks. */
+  readonly spread: Float64Array;
+  /** One side's density of the fund's residual at x robust standard deviations (its fitted tail), when known. */
+  readonly tail: (x: number) => number | undefined;
   readonly observed: number;
   readonly expected: number;
   /** Steps counted in `observed` and `expected` (outside suspect runs). */
@@ -219,6 +276,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const nearTick = (k: number) => printedTick(series, rows, Math.max(0, k - NEAR_TICK), Math.min(rows.length, k + NEAR_TICK + 2), shown);
   const chance = new Float64Array(n - 1);
   const implied = new Float64Array(n - 1);
+  const spread = new Float64Array(n - 1);
   let cursor = 0;
   for (let k = 0; k < n - 1; k++) {
     const a = rows[k];
@@ -245,6 +303,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
     const tick = Math.max(tickOf(k), nearTick(k));
     chance[k] = sameBinChance(level * mean, level * sd, tick);
     implied[k] = Math.abs(level * mean) / tick;
+    spread[k] = (level * sd) / tick;
   }
   const counted = new Uint8Array(n - 1);
   const repeated = new Uint8Array(n - 1);
@@ -272,7 +331,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const steps: number[] = [];
   for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
   const byChance = Int32Array.from(steps.sort((a, b) => chance[a] - chance[b]));
-  return { chance, implied, observed, expected, counted, repeated, byChance };
+  return { chance, implied, spread, tail: (x) => (fitted ? tailDensity(returns, x) : undefined), observed, expected, counted, repeated, byChance };
 }
 
 /**
@@ -376,3 +435,4 @@ function accruesSmoothly(series: SeriesSlice, rows: number[], maxDaily: number):
   }
   return falls <= 0.02 * changes.length && median(changes) <= maxDaily;
 }
+

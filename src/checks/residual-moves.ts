@@ -305,6 +305,18 @@ export function tailBar(moves: ResidualMoves, chance: number, leaveOut?: number)
   return Number.isFinite(tail.alpha) ? tail.p99 * Math.pow(tail.n / (100 * chance), 1 / tail.alpha) : 0;
 }
 
+/**
+ * The density of one side of the series' |z| at `x` (per unit of z), from the same Hill tail as
+ * `tailBar`: P(|z| > x) ≈ 0.01 · (x / p99)^−α beyond the 99th percentile, half of it on each
+ * side. Undefined when the tail cannot be estimated (fewer than 100 steps) or `x` is not
+ * beyond the 99th percentile.
+ */
+export function tailDensity(moves: ResidualMoves, x: number): number | undefined {
+  const tail = hillTail(moves.tail);
+  if (!Number.isFinite(tail.alpha) || !(tail.p99 > 0) || x <= tail.p99) return undefined;
+  return (0.5 * 0.01 * tail.alpha * Math.pow(x / tail.p99, -tail.alpha)) / x;
+}
+
 /** The same top ranks with one occurrence of `magnitude` removed from the whole set. */
 function withoutOne(top: TopMagnitudes, magnitude: number): TopMagnitudes {
   const values = top.values;
