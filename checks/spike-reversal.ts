@@ -1,6 +1,6 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import { inShiftedSpan, movesOf } from '../src/checks/move-analysis.js';
-import { endsOnConflict, sharedWithMarket, type ResidualMoves } from '../src/checks/residual-moves.js';
+import { endsOnConflict, fitAgainstBenchmark, sharedWithMarket, type Fit, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
 import { swappedDigits, type DigitSwap } from '../src/checks/digit-swap.js';
 import type { SeriesSlice } from '../src/series/frame.js';
@@ -38,6 +38,7 @@ export const spikeReversal: SeriesCheck<SpikeParams> = {
     const analysis = movesOf(series, context);
     const returns = analysis.model;
     const findings = [];
+    let atLag: LaggedFit | undefined;
     for (let k = 0; k + 1 < returns.count; k++) {
       const swap = swappedDigitsSpike(series, returns, k, params);
       if (!(swap || isSpikeReversal(returns, k, params)) || inShiftedSpan(analysis, k)) continue;
@@ -45,6 +46,13 @@ export const spikeReversal: SeriesCheck<SpikeParams> = {
       if (endsOnConflict(series, returns, k)) continue;
       // A crash and rebound that some benchmark in the feed made too, on both days.
       if (sharedWithMarket(series, returns, context.benchmarks, [k, k + 1])) continue;
+      // A fund valued a day behind its benchmark carries the market's move of the business day
+      // before: its out-and-back is judged against the benchmark at that lag.
+      const lag = analysis.constantLag?.lag;
+      if (!swap && lag !== undefined && context.benchmark) {
+        atLag ??= laggedFit(returns, context.benchmark, lag);
+        if (!isSpikeReversalAtLag(returns, atLag, k, params)) continue;
+      }
       const before = returns.from[k];
       const spike = returns.to[k];
       const after = returns.to[k + 1];
@@ -94,14 +102,41 @@ function spikeBar(returns: ResidualMoves, params: SpikeParams): number {
 /** Step `k` is a large move and step `k + 1` takes it back. */
 export function isSpikeReversal(returns: ResidualMoves, k: number, params: SpikeParams): boolean {
   if (k + 1 >= returns.count || returns.to[k] !== returns.from[k + 1]) return false;
-  const out = returns.residual[k];
-  const back = returns.residual[k + 1];
-  const bar = spikeBar(returns, params);
+  return outAndBack(returns.residual[k], returns.residual[k + 1], returns.z[k], returns.z[k + 1], spikeBar(returns, params), params);
+}
+
+/** A move `out` (robust z `zOut`) beyond the bar that `back` takes nearly all back. */
+function outAndBack(out: number, back: number, zOut: number, zBack: number, bar: number, params: SpikeParams): boolean {
   return (
     Math.abs(out) >= params.min_move &&
-    Math.abs(returns.z[k]) >= bar &&
-    Math.abs(returns.z[k + 1]) >= bar * (1 - params.reversal_tolerance) &&
+    Math.abs(zOut) >= bar &&
+    Math.abs(zBack) >= bar * (1 - params.reversal_tolerance) &&
     Math.sign(back) === -Math.sign(out) &&
     Math.abs(out + back) <= params.reversal_tolerance * Math.abs(out)
   );
+}
+
+/** The benchmark's log move over each step's dates moved `lag` business days, and the fund's fit against it. */
+interface LaggedFit {
+  readonly bench: Float64Array;
+  readonly fit: Fit;
+}
+
+function laggedFit(returns: ResidualMoves, benchmark: SeriesSlice, lag: number): LaggedFit {
+  const bench = new Float64Array(returns.count).fill(NaN);
+  const levels = benchmark.values;
+  for (let k = 0; k < returns.count; k++) {
+    const p = returns.benchFrom[k] + lag;
+    const q = returns.benchTo[k] + lag;
+    if (returns.benchFrom[k] >= 0 && returns.benchTo[k] >= 0 && p >= 0 && q < levels.length && levels[p] > 0 && levels[q] > 0) bench[k] = Math.log(levels[q] / levels[p]);
+  }
+  return { bench, fit: fitAgainstBenchmark(returns.fund, bench, returns.span) };
+}
+
+/** Step `k` is still a spike that step `k + 1` takes back when the benchmark is read at the fund's lag (unknown moves count as none). */
+function isSpikeReversalAtLag(returns: ResidualMoves, lagged: LaggedFit, k: number, params: SpikeParams): boolean {
+  const { bench, fit } = lagged;
+  const residual = (j: number) => returns.fund[j] - fit.intercept * returns.span[j] - fit.beta * (Number.isFinite(bench[j]) ? bench[j] : 0);
+  const z = (j: number) => residual(j) / (fit.scale * Math.sqrt(returns.span[j]));
+  return outAndBack(residual(k), residual(k + 1), z(k), z(k + 1), spikeBar(returns, params), params);
 }

@@ -163,7 +163,7 @@ function positionsInBenchmark(series: SeriesSlice, anchors: number[], benchmark:
   return positions;
 }
 
-interface Fit {
+export interface Fit {
   intercept: number;
   beta: number;
   scale: number;
@@ -173,7 +173,7 @@ interface Fit {
  * Least squares of fund on benchmark returns, refitted without the gross errors the first fit
  * finds (a split of ln 2 among daily moves of 0.01 would otherwise bend the line).
  */
-function fitAgainstBenchmark(fund: Float64Array, bench: Float64Array, span: Float64Array): Fit {
+export function fitAgainstBenchmark(fund: Float64Array, bench: Float64Array, span: Float64Array): Fit {
   let fit: Fit = { intercept: 0, beta: 1, scale: Infinity };
   for (let pass = 0; pass < 2; pass++) fit = leastSquares(fund, bench, span, fit);
   return fit;
