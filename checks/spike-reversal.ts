@@ -1,6 +1,6 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import { inShiftedSpan, movesOf } from '../src/checks/move-analysis.js';
-import { endsOnConflict, fitAgainstBenchmark, sharedWithMarket, type Fit, type ResidualMoves } from '../src/checks/residual-moves.js';
+import { endsOnConflict, fitAgainstBenchmark, sharedWithMarket, tailAt, type Fit, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
 import { swappedDigits, type DigitSwap } from '../src/checks/digit-swap.js';
 import type { SeriesSlice } from '../src/series/frame.js';
@@ -41,7 +41,7 @@ export const spikeReversal: SeriesCheck<SpikeParams> = {
     let atLag: LaggedFit | undefined;
     for (let k = 0; k + 1 < returns.count; k++) {
       const swap = swappedDigitsSpike(series, returns, k, params);
-      if (!(swap || isSpikeReversal(returns, k, params)) || inShiftedSpan(analysis, k)) continue;
+      if (!(swap || isSpikeReversal(returns, k, params) || isTightReversal(returns, k, params)) || inShiftedSpan(analysis, k)) continue;
       // Two rows disagree on the spike's date: one finding (duplicate_conflict) for one cause.
       if (endsOnConflict(series, returns, k)) continue;
       // A crash and rebound that some benchmark in the feed made too, on both days.
@@ -138,5 +138,38 @@ function isSpikeReversalAtLag(returns: ResidualMoves, lagged: LaggedFit, k: numb
   const { bench, fit } = lagged;
   const residual = (j: number) => returns.fund[j] - fit.intercept * returns.span[j] - fit.beta * (Number.isFinite(bench[j]) ? bench[j] : 0);
   const z = (j: number) => residual(j) / (fit.scale * Math.sqrt(returns.span[j]));
-  return outAndBack(residual(k), residual(k + 1), z(k), z(k + 1), spikeBar(returns, params), params);
+  const [out, back, zOut, zBack] = [residual(k), residual(k + 1), z(k), z(k + 1)];
+  return outAndBack(out, back, zOut, zBack, spikeBar(returns, params), params) || tightPair(returns, out, back, zOut, zBack, params);
 }
+
+/**
+ * Step `k` is a move below the spike bar that step `k + 1` takes back almost exactly, as a
+ * mistyped NAV corrected the next day does: the way back misses the way out by about one day's
+ * noise, where two honest moves of that size in a row are independent. Judged by the chance of
+ * such a pair on the series' own fitted tail (fat tails included): the first move at least this
+ * large, times the second landing this close to its mirror image, over the whole history at most
+ * `TIGHT_PAIR_CHANCE`.
+ */
+export function isTightReversal(returns: ResidualMoves, k: number, params: SpikeParams): boolean {
+  if (k + 1 >= returns.count || returns.to[k] !== returns.from[k + 1]) return false;
+  return tightPair(returns, returns.residual[k], returns.residual[k + 1], returns.z[k], returns.z[k + 1], params);
+}
+
+function tightPair(returns: ResidualMoves, out: number, back: number, zOut: number, zBack: number, params: SpikeParams): boolean {
+  if (Math.abs(out) < params.min_move || Math.sign(back) !== -Math.sign(out)) return false;
+  const x = Math.abs(zOut);
+  const miss = Math.abs(zOut + zBack);
+  if (!(miss <= params.reversal_tolerance * x)) return false;
+  const tail = tailAt(returns, x);
+  if (!tail) return false;
+  const chance = tail.exceed * Math.min(1, 2 * Math.max(1, miss) * tail.density);
+  return returns.count * chance <= TIGHT_PAIR_CHANCE;
+}
+
+/**
+ * Chance over a series' whole history of an honest pair of moves that tight: a tenth of
+ * `stale_value`'s `max_chance`, because the pair is judged out where the tail is extrapolated
+ * from the top 5 % of moves, and that extrapolation understates Student-t(4–5) tails several
+ * times over at 5 standard deviations.
+ */
+const TIGHT_PAIR_CHANCE = 0.001;

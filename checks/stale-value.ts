@@ -181,9 +181,6 @@ const COARSE_SPREAD_TICKS = 10;
  */
 const IMPLIED_TICKS = 4;
 
-/** Repeats among the alike steps that show a hidden grid (see `alikeRepeatShare`). */
-const ALIKE_COINCIDENCES = 3;
-
 /** Steps of the series' own history that a run's step is compared with (see `alikeRepeatShare`). */
 const ALIKE_STEPS = 40;
 
@@ -216,9 +213,8 @@ function alikeRepeatShare(model: ChanceModel, j: number, skipFrom: number, skipT
     taken++;
     repeats += model.repeated[step];
   }
-  // One or two coincidences among the alike days are not evidence of a hidden grid (two other
-  // brief stale prices on the same fund would be), three or more are.
-  return taken > 0 && repeats >= ALIKE_COINCIDENCES ? repeats / taken : 0;
+  // One coincidence among the alike days is not evidence of a hidden grid; two or more are.
+  return taken > 0 && repeats >= 2 ? repeats / taken : 0;
 }
 
 /** Runs of this many equal values or more are left out when measuring how often a series repeats by rounding. */

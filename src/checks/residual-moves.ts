@@ -306,15 +306,21 @@ export function tailBar(moves: ResidualMoves, chance: number, leaveOut?: number)
 }
 
 /**
- * The density of one side of the series' |z| at `x` (per unit of z), from the same Hill tail as
- * `tailBar`: P(|z| > x) ≈ 0.01 · (x / p99)^−α beyond the 99th percentile, half of it on each
- * side. Undefined when the tail cannot be estimated (fewer than 100 steps) or `x` is not
- * beyond the 99th percentile.
+ * The chance that one step's |z| exceeds `x`, and the density of one side of |z| at `x` (per
+ * unit of z), from the same Hill tail as `tailBar`: P(|z| > x) ≈ 0.01 · (x / p99)^−α beyond
+ * the 99th percentile, half of it on each side. Undefined when the tail cannot be estimated
+ * (fewer than 100 steps) or `x` is not beyond the 99th percentile.
  */
-export function tailDensity(moves: ResidualMoves, x: number): number | undefined {
+export function tailAt(moves: ResidualMoves, x: number): { exceed: number; density: number } | undefined {
   const tail = hillTail(moves.tail);
   if (!Number.isFinite(tail.alpha) || !(tail.p99 > 0) || x <= tail.p99) return undefined;
-  return (0.5 * 0.01 * tail.alpha * Math.pow(x / tail.p99, -tail.alpha)) / x;
+  const exceed = 0.01 * Math.pow(x / tail.p99, -tail.alpha);
+  return { exceed, density: (0.5 * tail.alpha * exceed) / x };
+}
+
+/** One side's density of the series' |z| at `x` (see `tailAt`). */
+export function tailDensity(moves: ResidualMoves, x: number): number | undefined {
+  return tailAt(moves, x)?.density;
 }
 
 /** The same top ranks with one occurrence of `magnitude` removed from the whole set. */
