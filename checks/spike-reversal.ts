@@ -139,32 +139,48 @@ function isSpikeReversalAtLag(returns: ResidualMoves, lagged: LaggedFit, k: numb
   const residual = (j: number) => returns.fund[j] - fit.intercept * returns.span[j] - fit.beta * (Number.isFinite(bench[j]) ? bench[j] : 0);
   const z = (j: number) => residual(j) / (fit.scale * Math.sqrt(returns.span[j]));
   const [out, back, zOut, zBack] = [residual(k), residual(k + 1), z(k), z(k + 1)];
-  return outAndBack(out, back, zOut, zBack, spikeBar(returns, params), params) || tightPair(returns, out, back, zOut, zBack, params);
+  return outAndBack(out, back, zOut, zBack, spikeBar(returns, params), params) || tightPair(returns, k, out, back, zOut, zBack, params);
 }
 
 /**
  * Step `k` is a move below the spike bar that step `k + 1` takes back almost exactly, as a
- * mistyped NAV corrected the next day does: the way back misses the way out by about one day's
- * noise, where two honest moves of that size in a row are independent. Judged by the chance of
- * such a pair on the series' own fitted tail (fat tails included): the first move at least this
- * large, times the second landing this close to its mirror image, over the whole history at most
+ * mistyped NAV corrected the next day does: the way back misses the way out by about the two
+ * days' own noise (at most `reversal_tolerance` of the move, or `TIGHT_MISS`), where two honest
+ * moves of that size in a row are independent. Judged by the chance of such a pair on the
+ * series' own fitted tail (fat tails included): two days both at least as large as the smaller
+ * move, the second this close to the first's mirror image, over the whole history at most
  * `TIGHT_PAIR_CHANCE`.
  */
 export function isTightReversal(returns: ResidualMoves, k: number, params: SpikeParams): boolean {
   if (k + 1 >= returns.count || returns.to[k] !== returns.from[k + 1]) return false;
-  return tightPair(returns, returns.residual[k], returns.residual[k + 1], returns.z[k], returns.z[k + 1], params);
+  return tightPair(returns, k, returns.residual[k], returns.residual[k + 1], returns.z[k], returns.z[k + 1], params);
 }
 
-function tightPair(returns: ResidualMoves, out: number, back: number, zOut: number, zBack: number, params: SpikeParams): boolean {
+/** The pair of steps `k`, `k + 1` with these residuals and robust z (as published, or at a lag). */
+function tightPair(returns: ResidualMoves, k: number, out: number, back: number, zOut: number, zBack: number, params: SpikeParams): boolean {
   if (Math.abs(out) < params.min_move || Math.sign(back) !== -Math.sign(out)) return false;
   const x = Math.abs(zOut);
+  if (x < TIGHT_MIN_Z || Math.abs(zBack) < TIGHT_MIN_Z) return false;
   const miss = Math.abs(zOut + zBack);
-  if (!(miss <= params.reversal_tolerance * x)) return false;
-  const tail = tailAt(returns, x);
+  // The way back carries both days' own noise: it may miss by three standard deviations of
+  // two days' noise (3√2 robust units) even where that is more than the tolerance's share.
+  if (!(miss <= Math.max(params.reversal_tolerance * x, TIGHT_MISS))) return false;
+  // Two honest days at least as large as the smaller move m, of opposite signs, the second
+  // within w = max(1, miss) of the first's mirror image: 2 · ∫ₘ^∞ f(x) · 2w · f(x) dx with the
+  // Pareto tail's one-sided density f(x) ∝ x^−(α+1), which is 4w · m · f(m)² / (2α + 1).
+  const smaller = Math.min(x, Math.abs(zBack));
+  // The tail is fitted without the pair judged: its two days would fatten the tail that judges them.
+  const tail = tailAt(returns, smaller, [k, k + 1]);
   if (!tail) return false;
-  const chance = tail.exceed * Math.min(1, 2 * Math.max(1, miss) * tail.density);
+  const chance = Math.min(1, (4 * Math.max(1, miss) * smaller * tail.density * tail.density) / (2 * tail.alpha + 1));
   return returns.count * chance <= TIGHT_PAIR_CHANCE;
 }
+
+/** How far the way back may miss the way out, in robust units: three standard deviations of the sum of two days' noise. */
+const TIGHT_MISS = 3 * Math.SQRT2;
+
+/** Both moves of a tight pair at least this many robust standard deviations: below it a pair of ordinary days, whatever the tail says. */
+const TIGHT_MIN_Z = 4;
 
 /**
  * Chance over a series' whole history of an honest pair of moves that tight: a tenth of
@@ -172,4 +188,4 @@ function tightPair(returns: ResidualMoves, out: number, back: number, zOut: numb
  * from the top 5 % of moves, and that extrapolation understates Student-t(4–5) tails several
  * times over at 5 standard deviations.
  */
-const TIGHT_PAIR_CHANCE = 0.001;
+const TIGHT_PAIR_CHANCE = 0.0003;

@@ -306,16 +306,19 @@ export function tailBar(moves: ResidualMoves, chance: number, leaveOut?: number)
 }
 
 /**
- * The chance that one step's |z| exceeds `x`, and the density of one side of |z| at `x` (per
- * unit of z), from the same Hill tail as `tailBar`: P(|z| > x) ≈ 0.01 · (x / p99)^−α beyond
+ * The chance that one step's |z| exceeds `x`, the density of one side of |z| at `x` (per
+ * unit of z) and the tail index α, from the same Hill tail as `tailBar`: P(|z| > x) ≈ 0.01 · (x / p99)^−α beyond
  * the 99th percentile, half of it on each side. Undefined when the tail cannot be estimated
- * (fewer than 100 steps) or `x` is not beyond the 99th percentile.
+ * (fewer than 100 steps) or `x` is not beyond the 99th percentile. With `leaveOut`, the tail is
+ * estimated without those steps (see `tailBar`).
  */
-export function tailAt(moves: ResidualMoves, x: number): { exceed: number; density: number } | undefined {
-  const tail = hillTail(moves.tail);
+export function tailAt(moves: ResidualMoves, x: number, leaveOut: readonly number[] = []): { exceed: number; density: number; alpha: number } | undefined {
+  let top = moves.tail;
+  for (const k of leaveOut) if (Number.isFinite(moves.z[k])) top = withoutOne(top, Math.abs(moves.z[k]));
+  const tail = hillTail(top);
   if (!Number.isFinite(tail.alpha) || !(tail.p99 > 0) || x <= tail.p99) return undefined;
   const exceed = 0.01 * Math.pow(x / tail.p99, -tail.alpha);
-  return { exceed, density: (0.5 * tail.alpha * exceed) / x };
+  return { exceed, density: (0.5 * tail.alpha * exceed) / x, alpha: tail.alpha };
 }
 
 /** One side's density of the series' |z| at `x` (see `tailAt`). */
