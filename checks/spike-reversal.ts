@@ -47,9 +47,10 @@ export const spikeReversal: SeriesCheck<SpikeParams> = {
       // A crash and rebound that some benchmark in the feed made too, on both days.
       if (sharedWithMarket(series, returns, context.benchmarks, [k, k + 1])) continue;
       // A fund valued a day behind its benchmark carries the market's move of the business day
-      // before: its out-and-back is judged against the benchmark at that lag.
+      // before: its out-and-back is judged against the benchmark at that lag (a digit swap too,
+      // which a crash read a day early can mimic).
       const lag = analysis.constantLag?.lag;
-      if (!swap && lag !== undefined && context.benchmark) {
+      if (lag !== undefined && context.benchmark) {
         atLag ??= laggedFit(returns, context.benchmark, lag);
         if (!isSpikeReversalAtLag(returns, atLag, k, params)) continue;
       }

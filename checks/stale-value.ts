@@ -140,32 +140,34 @@ function runChance(model: ChanceModel | undefined, at: number, length: number, o
 }
 
 /**
- * A single unchanged price on a coarsely printed fund, on a day its benchmark implied a move of
- * `GLARING_TICKS` ticks or more while the fund's own residual move spans only a few ticks:
- * rounding alone practically never keeps such a price, so one repeat is evidence (a run
- * shorter than `min_days` is judged only this way). The chance of the most telling step of the
- * run, raised by the series' calibration factor, with the fund's own fitted tail as its floor;
- * undefined when no step qualifies. (The floor of the days most alike, which `runChance` uses
- * for grids the tick estimate does not see, is not needed here: on such a grid the residual
- * spans many estimated ticks and the step does not qualify, while two other brief stale prices
- * on the same fund would wrongly raise it.) Finely printed funds (a residual move of more
- * than `COARSE_SPREAD_TICKS` ticks) are left to the run rule: a single repeat there is more
- * often another fault's trace (a date stamped late, a row copied) than a price left unchanged.
+ * Unchanged prices on a coarsely printed fund on days its benchmark implied several ticks of
+ * move, while the fund's own residual move spans only a few ticks: one such day implying
+ * `GLARING_TICKS` ticks or more, or two or more implying `IMPLIED_TICKS` or more, are evidence
+ * however short the run (a run shorter than `min_days` is judged only this way). The chance is
+ * the product over those steps of the chance of rounding to the same price, raised by the
+ * series' calibration factor, with the fund's own fitted tail as its floor; undefined when the
+ * run has no such steps. (The floor of the days most alike, which `runChance` uses for grids
+ * the tick estimate does not see, is not needed here: on such a grid the residual spans many
+ * estimated ticks and the step does not qualify, while two other brief stale prices on the same
+ * fund would wrongly raise it.) Finely printed funds (a residual move of more than
+ * `COARSE_SPREAD_TICKS` ticks) are left to the run rule: a single repeat there is more often
+ * another fault's trace (a date stamped late, a row copied) than a price left unchanged.
  */
 function glaringRepeatChance(model: ChanceModel | undefined, at: number, length: number): number | undefined {
   if (!model) return undefined;
   const factor = Math.max(1, (model.observed + 1) / (model.expected + 1));
-  let best: number | undefined;
+  let steps = 0, glaring = false, logChance = 0;
   for (let j = at; j < at + length - 1; j++) {
-    if (model.implied[j] < GLARING_TICKS || model.spread[j] > COARSE_SPREAD_TICKS) continue;
+    if (model.implied[j] < IMPLIED_TICKS || model.spread[j] > COARSE_SPREAD_TICKS) continue;
     // Daily residuals are fat-tailed: the fund's own tail, not a normal curve, says how often
     // its residual cancels a move this many spreads wide.
     const tail = model.tail(model.implied[j] / model.spread[j]);
     const rounding = Math.max(model.chance[j], tail === undefined ? 0 : tail / model.spread[j]);
-    const chance = Math.min(1, factor * rounding);
-    best = best === undefined ? chance : Math.min(best, chance);
+    logChance += Math.log(Math.min(1, factor * rounding));
+    steps++;
+    glaring ||= model.implied[j] >= GLARING_TICKS;
   }
-  return best;
+  return glaring || steps >= 2 ? Math.exp(logChance) : undefined;
 }
 
 /** A benchmark-implied move of this many printed ticks makes one unchanged price a defect (common practice, from memory). */
