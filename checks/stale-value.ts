@@ -2,7 +2,7 @@ import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
 import { movesOf } from '../src/checks/move-analysis.js';
-import { tailDensity } from '../src/checks/residual-moves.js';
+import { tailDensity, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
@@ -161,7 +161,7 @@ function glaringRepeatChance(model: ChanceModel | undefined, at: number, length:
     if (model.implied[j] < IMPLIED_TICKS || model.spread[j] > COARSE_SPREAD_TICKS) continue;
     // Daily residuals are fat-tailed: the fund's own tail, not a normal curve, says how often
     // its residual cancels a move this many spreads wide.
-    const tail = model.tail(model.implied[j] / model.spread[j]);
+    const tail = model.tail(model.implied[j] / model.spread[j], j);
     const rounding = Math.max(model.chance[j], tail === undefined ? 0 : tail / model.spread[j]);
     logChance += Math.log(Math.min(1, factor * rounding));
     steps++;
@@ -243,8 +243,8 @@ interface ChanceModel {
   readonly implied: Float64Array;
   /** The spread of the step's move around that, in printed ticks. */
   readonly spread: Float64Array;
-  /** One side's density of the fund's residual at x robust standard deviations (its fitted tail), when known. */
-  readonly tail: (x: number) => number | undefined;
+  /** One side's density of the fund's residual at x robust standard deviations (its tail fitted without step `j`), when known. */
+  readonly tail: (x: number, j: number) => number | undefined;
   readonly observed: number;
   readonly expected: number;
   /** Steps counted in `observed` and `expected` (outside suspect runs). */
@@ -329,7 +329,25 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const steps: number[] = [];
   for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
   const byChance = Int32Array.from(steps.sort((a, b) => chance[a] - chance[b]));
-  return { chance, implied, spread, tail: (x) => (fitted ? tailDensity(returns, x) : undefined), observed, expected, counted, repeated, byChance };
+  // The tail that judges a repeat is fitted without it: the repeat's own residual (the implied
+  // move cancelled) is among the largest and would fatten it.
+  const tail = (x: number, j: number) => {
+    if (!fitted) return undefined;
+    const step = stepOf(returns, rows[j], rows[j + 1]);
+    return tailDensity(returns, x, step < 0 ? [] : [step]);
+  };
+  return { chance, implied, spread, tail, observed, expected, counted, repeated, byChance };
+}
+
+/** The residual model's step from slice row `from` to row `to`, or −1 (a binary search: its steps are in date order). */
+function stepOf(returns: ResidualMoves, from: number, to: number): number {
+  let lo = 0, hi = returns.count;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (returns.from[mid] < from) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo < returns.count && returns.from[lo] === from && returns.to[lo] === to ? lo : -1;
 }
 
 /**

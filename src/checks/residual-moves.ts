@@ -321,9 +321,9 @@ export function tailAt(moves: ResidualMoves, x: number, leaveOut: readonly numbe
   return { exceed, density: (0.5 * tail.alpha * exceed) / x, alpha: tail.alpha };
 }
 
-/** One side's density of the series' |z| at `x` (see `tailAt`). */
-export function tailDensity(moves: ResidualMoves, x: number): number | undefined {
-  return tailAt(moves, x)?.density;
+/** One side's density of the series' |z| at `x`, the tail fitted without the steps `leaveOut` (see `tailAt`). */
+export function tailDensity(moves: ResidualMoves, x: number, leaveOut: readonly number[] = []): number | undefined {
+  return tailAt(moves, x, leaveOut)?.density;
 }
 
 /** The same top ranks with one occurrence of `magnitude` removed from the whole set. */
