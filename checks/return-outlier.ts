@@ -3,7 +3,7 @@ import type { SeriesSlice } from '../src/series/frame.js';
 import { inShiftedSpan, movesOf, type MoveAnalysis } from '../src/checks/move-analysis.js';
 import { bridgedStep, endsOnConflict, tailBar, sharedWithMarket, type Bridge, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { isoDate, makeFinding, percent, round } from '../src/checks/support.js';
-import { isSpikeReversal, swappedDigitsSpike } from './spike-reversal.js';
+import { isSpikeReversal, isTightReversal, swappedDigitsSpike } from './spike-reversal.js';
 import { splitLikeRatio } from './split-like-jump.js';
 
 interface OutlierParams {
@@ -104,6 +104,6 @@ function bridgeEvidence(series: SeriesSlice, returns: ResidualMoves, bridge: Bri
 /** Step `k` is a split-like jump or part of a spike reversal, judged with the run's parameters of those checks (when they are on). */
 function explainedElsewhere(series: SeriesSlice, analysis: MoveAnalysis, k: number): boolean {
   const { model, split, spike } = analysis;
-  const spikeAt = (j: number) => j >= 0 && (isSpikeReversal(model, j, spike!) || swappedDigitsSpike(series, model, j, spike!) !== null);
+  const spikeAt = (j: number) => j >= 0 && (isSpikeReversal(model, j, spike!) || isTightReversal(model, j, spike!) || swappedDigitsSpike(series, model, j, spike!) !== null);
   return (split !== undefined && splitLikeRatio(model, k, split) !== null) || (spike !== undefined && (spikeAt(k) || spikeAt(k - 1)));
 }

@@ -2,6 +2,7 @@ import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
 import { movesOf } from '../src/checks/move-analysis.js';
+import { tailDensity, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, orderByKey, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
@@ -37,18 +38,25 @@ export const staleValue: SeriesCheck<StaleParams> = {
     const calendar = calendarOf(context);
     const judged: Array<{ run: number[]; days: number; chance: number; required: number }> = [];
     const shiftStarts = shiftStartDays(series, context);
+    const shiftedSpans = shiftedDateSpans(series, context);
     let position = 0;
     for (const run of runs) {
       const at = position;
       position += run.length;
       if (run.length < 2) continue;
       const days = context.calendars.businessDayDistance(calendar, series.dates[run[0]], series.dates[run[run.length - 1]]) + 1;
-      if (days < params.min_days) continue;
       // Stamping a day late from some date on repeats that date's value once: the shift is the cause.
       if (shiftStarts.some((day) => Math.abs(day - series.dates[run[run.length - 1]]) <= 7)) continue;
-      const { chance, required } = runChance(model, at, run.length, rows.length, params);
-      if (rows.length * chance > params.max_chance) continue;
-      judged.push({ run, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
+      if (days >= params.min_days) {
+        const { chance, required } = runChance(model, at, run.length, rows.length, params);
+        if (rows.length * chance <= params.max_chance) {
+          judged.push({ run, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
+          continue;
+        }
+      }
+      if (shiftedSpans.some(([from, to]) => series.dates[run[0]] >= from && series.dates[run[0]] <= to)) continue;
+      const glaring = glaringRepeatChance(model, at, run.length);
+      if (glaring !== undefined && rows.length * glaring <= params.max_chance) judged.push({ run, days, chance: rows.length * glaring, required: days });
     }
     return judged
       .map(({ run, days, chance, required }) => {
@@ -80,6 +88,12 @@ export const staleValue: SeriesCheck<StaleParams> = {
 function shiftStartDays(series: SeriesSlice, context: SeriesContext): number[] {
   const moves = context.moves;
   return moves ? moves.shifts.map((shift) => series.dates[moves.model.from[shift.firstStep]]) : [];
+}
+
+/** First and last date of each span the run's date_shift finds shifted: there the benchmark's implied moves are of other days. */
+function shiftedDateSpans(series: SeriesSlice, context: SeriesContext): Array<[number, number]> {
+  const moves = context.moves;
+  return moves ? moves.shifts.map((shift) => [series.dates[moves.model.from[shift.firstStep]], series.dates[moves.model.to[shift.lastStep]]]) : [];
 }
 
 function equalValueRuns(series: SeriesSlice, rows: number[]): number[][] {
@@ -124,6 +138,43 @@ function runChance(model: ChanceModel | undefined, at: number, length: number, o
   const required = perStep >= 1 ? Infinity : Math.ceil(Math.log(params.max_chance / observations) / Math.log(perStep)) + 1;
   return { chance: Math.exp(logChance), required };
 }
+
+/**
+ * Unchanged prices on a coarsely printed fund on days its benchmark implied several ticks of
+ * move, while the fund's own residual move spans only a few ticks: one such day implying
+ * `GLARING_TICKS` ticks or more, or two or more implying `IMPLIED_TICKS` or more, are evidence
+ * however short the run (a run shorter than `min_days` is judged only this way). The chance is
+ * the product over those steps of the chance of rounding to the same price, raised by the
+ * series' calibration factor, with the fund's own fitted tail as its floor; undefined when the
+ * run has no such steps. (The floor of the days most alike, which `runChance` uses for grids
+ * the tick estimate does not see, is not needed here: on such a grid the residual spans many
+ * estimated ticks and the step does not qualify, while two other brief stale prices on the same
+ * fund would wrongly raise it.) Finely printed funds (a residual move of more than
+ * `COARSE_SPREAD_TICKS` ticks) are left to the run rule: a single repeat there is more often
+ * another fault's trace (a date stamped late, a row copied) than a price left unchanged.
+ */
+function glaringRepeatChance(model: ChanceModel | undefined, at: number, length: number): number | undefined {
+  if (!model) return undefined;
+  const factor = Math.max(1, (model.observed + 1) / (model.expected + 1));
+  let steps = 0, glaring = false, logChance = 0;
+  for (let j = at; j < at + length - 1; j++) {
+    if (model.implied[j] < IMPLIED_TICKS || model.spread[j] > COARSE_SPREAD_TICKS) continue;
+    // Daily residuals are fat-tailed: the fund's own tail, not a normal curve, says how often
+    // its residual cancels a move this many spreads wide.
+    const tail = model.tail(model.implied[j] / model.spread[j], j);
+    const rounding = Math.max(model.chance[j], tail === undefined ? 0 : tail / model.spread[j]);
+    logChance += Math.log(Math.min(1, factor * rounding));
+    steps++;
+    glaring ||= model.implied[j] >= GLARING_TICKS;
+  }
+  return glaring || steps >= 2 ? Math.exp(logChance) : undefined;
+}
+
+/** A benchmark-implied move of this many printed ticks makes one unchanged price a defect (common practice, from memory). */
+const GLARING_TICKS = 8;
+
+/** A fund whose typical residual move is at most this many printed ticks is coarsely printed. */
+const COARSE_SPREAD_TICKS = 10;
 
 /**
  * A day on which the benchmark implied a move of this many printed ticks or more should have
@@ -190,6 +241,10 @@ interface ChanceModel {
   readonly chance: Float64Array;
   /** The move the benchmark implied for the step, in printed ticks (0 without a benchmark price). */
   readonly implied: Float64Array;
+  /** The spread of the step's move around that, in printed ticks. */
+  readonly spread: Float64Array;
+  /** One side's density of the fund's residual at x robust standard deviations (its tail fitted without step `j`), when known. */
+  readonly tail: (x: number, j: number) => number | undefined;
   readonly observed: number;
   readonly expected: number;
   /** Steps counted in `observed` and `expected` (outside suspect runs). */
@@ -219,6 +274,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const nearTick = nearTicks(series, rows, shown);
   const chance = new Float64Array(n - 1);
   const implied = new Float64Array(n - 1);
+  const spread = new Float64Array(n - 1);
   let cursor = 0;
   for (let k = 0; k < n - 1; k++) {
     const a = rows[k];
@@ -245,6 +301,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
     const tick = Math.max(tickOf(k), nearTick[k]);
     chance[k] = sameBinChance(level * mean, level * sd, tick);
     implied[k] = Math.abs(level * mean) / tick;
+    spread[k] = (level * sd) / tick;
   }
   const counted = new Uint8Array(n - 1);
   const repeated = new Uint8Array(n - 1);
@@ -271,14 +328,32 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   }
   const steps: number[] = [];
   for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
+  // The tail that judges a repeat is fitted without it: the repeat's own residual (the implied
+  // move cancelled) is among the largest and would fatten it.
+  const tail = (x: number, j: number) => {
+    if (!fitted) return undefined;
+    const step = stepOf(returns, rows[j], rows[j + 1]);
+    return tailDensity(returns, x, step < 0 ? [] : [step]);
+  };
   // Ordered on first use: only a run that is judged reads it, and most series have none.
   let byChance: Int32Array | undefined;
   return {
-    chance, implied, observed, expected, counted, repeated,
+    chance, implied, spread, tail, observed, expected, counted, repeated,
     get byChance() {
       return (byChance ??= orderByKey(steps, chance));
     },
   };
+}
+
+/** The residual model's step from slice row `from` to row `to`, or −1 (a binary search: its steps are in date order). */
+function stepOf(returns: ResidualMoves, from: number, to: number): number {
+  let lo = 0, hi = returns.count;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (returns.from[mid] < from) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo < returns.count && returns.from[lo] === from && returns.to[lo] === to ? lo : -1;
 }
 
 /**
@@ -415,3 +490,4 @@ function accruesSmoothly(series: SeriesSlice, rows: number[], maxDaily: number):
   }
   return falls <= 0.02 * changes.length && median(changes) <= maxDaily;
 }
+

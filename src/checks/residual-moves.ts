@@ -168,7 +168,7 @@ function positionsInBenchmark(series: SeriesSlice, anchors: number[], benchmark:
   return positions;
 }
 
-interface Fit {
+export interface Fit {
   intercept: number;
   beta: number;
   scale: number;
@@ -178,7 +178,7 @@ interface Fit {
  * Least squares of fund on benchmark returns, refitted without the gross errors the first fit
  * finds (a split of ln 2 among daily moves of 0.01 would otherwise bend the line).
  */
-function fitAgainstBenchmark(fund: Float64Array, bench: Float64Array, span: Float64Array): Fit {
+export function fitAgainstBenchmark(fund: Float64Array, bench: Float64Array, span: Float64Array): Fit {
   let fit: Fit = { intercept: 0, beta: 1, scale: Infinity };
   for (let pass = 0; pass < 2; pass++) fit = leastSquares(fund, bench, span, fit);
   return fit;
@@ -308,6 +308,27 @@ export function tailBar(moves: ResidualMoves, chance: number, leaveOut?: number)
   const top = leaveOut !== undefined && Number.isFinite(moves.z[leaveOut]) ? withoutOne(moves.tail, Math.abs(moves.z[leaveOut])) : moves.tail;
   const tail = hillTail(top);
   return Number.isFinite(tail.alpha) ? tail.p99 * Math.pow(tail.n / (100 * chance), 1 / tail.alpha) : 0;
+}
+
+/**
+ * The chance that one step's |z| exceeds `x`, the density of one side of |z| at `x` (per
+ * unit of z) and the tail index α, from the same Hill tail as `tailBar`: P(|z| > x) ≈ 0.01 · (x / p99)^−α beyond
+ * the 99th percentile, half of it on each side. Undefined when the tail cannot be estimated
+ * (fewer than 100 steps) or `x` is not beyond the 99th percentile. With `leaveOut`, the tail is
+ * estimated without those steps (see `tailBar`).
+ */
+export function tailAt(moves: ResidualMoves, x: number, leaveOut: readonly number[] = []): { exceed: number; density: number; alpha: number } | undefined {
+  let top = moves.tail;
+  for (const k of leaveOut) if (Number.isFinite(moves.z[k])) top = withoutOne(top, Math.abs(moves.z[k]));
+  const tail = hillTail(top);
+  if (!Number.isFinite(tail.alpha) || !(tail.p99 > 0) || x <= tail.p99) return undefined;
+  const exceed = 0.01 * Math.pow(x / tail.p99, -tail.alpha);
+  return { exceed, density: (0.5 * tail.alpha * exceed) / x, alpha: tail.alpha };
+}
+
+/** One side's density of the series' |z| at `x`, the tail fitted without the steps `leaveOut` (see `tailAt`). */
+export function tailDensity(moves: ResidualMoves, x: number, leaveOut: readonly number[] = []): number | undefined {
+  return tailAt(moves, x, leaveOut)?.density;
 }
 
 /** The same top ranks with one occurrence of `magnitude` removed from the whole set. */
