@@ -21,7 +21,7 @@ import { cpus, loadavg, totalmem } from 'node:os';
 import { dirname, join, relative, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { ChildReport } from './audit-child.js';
-import { AS_OF, STANDARD_SIZE, standardUniverse, type StandardUniverse } from './standard-universe.js';
+import { AS_OF, LARGEST_BENCH_INPUT, STANDARD_SIZE, standardUniverse, type StandardUniverse } from './standard-universe.js';
 import { formatIsoDate } from '../src/calendar/days.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
@@ -94,7 +94,7 @@ function scenario(universe: StandardUniverse, label: string, files: Record<strin
   const config = join(dir, 'navassay.yaml');
   const lines = [`feed: bench`, `as_of: ${formatIsoDate(AS_OF)}`, 'store: store', 'files:'];
   for (const [kind, path] of Object.entries(files)) lines.push(`  ${kind}: ${relative(dir, path)}`);
-  lines.push('windows: [1y, 3y, 5y]', 'output:', '  dir: report', '  formats: [json, html]', 'fail_on: none', '');
+  lines.push('windows: [1y, 3y, 5y]', 'output:', '  dir: report', '  formats: [json, html]', 'fail_on: none', 'limits:', `  max_input_bytes: ${LARGEST_BENCH_INPUT}`, '');
   writeFileSync(config, lines.join('\n'));
   const inputBytes = Object.values(files).reduce((sum, path) => sum + statSync(path).size, 0);
   return { label, config, inputBytes };
