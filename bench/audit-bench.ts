@@ -30,6 +30,19 @@ const repositoryRoot = here.includes(`${join('dist', 'bench')}`) ? resolve(here,
 const child = join(here, `audit-child${import.meta.url.endsWith('.ts') ? '.ts' : '.js'}`);
 
 const args = process.argv.slice(2);
+const USAGE = `usage: node dist/bench/audit-bench.js [--sizes N,N,…] [--years Y] [--runs R] [--no-arrow] [--cache DIR]
+                                     [--node-arg ARG]… [--child-arg ARG]…
+  --sizes      series counts of the standard universe (default ${STANDARD_SIZE.series})
+  --years      years of business days (default ${STANDARD_SIZE.years})
+  --runs       fresh processes per size; medians and bests are printed (default 3)
+  --no-arrow   skip the second audit, from the Arrow snapshot the first run stored
+  --cache      where generated universes are kept (default bench/.cache)
+  --node-arg   passed to node for each run, e.g. --node-arg --cpu-prof
+  --child-arg  passed to the audit child, e.g. --child-arg --threads --child-arg 1`;
+if (args.includes('--help') || args.includes('-h')) {
+  console.log(USAGE);
+  process.exit(0);
+}
 const option = (name: string, fallback: string): string => {
   const i = args.indexOf(name);
   return i >= 0 && i + 1 < args.length ? args[i + 1] : fallback;
@@ -144,4 +157,6 @@ function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): 
   const rss = results.map((r) => r.report.maxRssBytes / 2 ** 20);
   console.log(`  ${'process'.padEnd(10)} median ${median(walls).toFixed(2).padStart(7)} s   best ${best(walls).toFixed(2).padStart(7)} s  (whole child process, start-up included)`);
   console.log(`  ${'peak RSS'.padEnd(10)} median ${median(rss).toFixed(0).padStart(7)} MiB best ${best(rss).toFixed(0).padStart(7)} MiB`);
+  const peaks = stageNames.map((name) => `${name} ${median(results.map((r) => r.report.peakAfter[name] / 2 ** 20)).toFixed(0)}`);
+  console.log(`  ${'peak after'.padEnd(10)} ${peaks.join(', ')} MiB (median; the stage where it rises set the peak)`);
 }

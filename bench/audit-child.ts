@@ -33,6 +33,8 @@ export interface ChildReport {
   readonly findings: number;
   readonly figures: number;
   readonly maxRssBytes: number;
+  /** The process's peak resident memory at the end of each stage, so the stage that set it shows. */
+  readonly peakAfter: Record<string, number>;
 }
 
 const started = process.hrtime.bigint();
@@ -43,6 +45,7 @@ const threadsAt = process.argv.indexOf('--threads');
 const threads = threadsAt > 0 ? Number(process.argv[threadsAt + 1]) : (config.threads ?? defaultThreads());
 const stages: Record<string, number> = {};
 const cpu: Record<string, number> = {};
+const peakAfter: Record<string, number> = {};
 const skipped: string[] = [];
 
 async function stage<T>(name: string, work: () => T | Promise<T>): Promise<T> {
@@ -52,6 +55,7 @@ async function stage<T>(name: string, work: () => T | Promise<T>): Promise<T> {
   stages[name] = Number(process.hrtime.bigint() - t0) / 1e9;
   const used = process.cpuUsage(cpu0);
   cpu[name] = (used.user + used.system) / 1e6;
+  peakAfter[name] = process.resourceUsage().maxRSS * 1024;
   return result;
 }
 
@@ -85,5 +89,6 @@ const report: ChildReport = {
   findings: check.findings.length,
   figures: metrics?.metrics.length ?? 0,
   maxRssBytes: process.resourceUsage().maxRSS * 1024,
+  peakAfter,
 };
 console.log(JSON.stringify(report));

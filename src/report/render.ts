@@ -1,4 +1,5 @@
 import Table from 'cli-table3';
+import { jsonPieces } from './json-pieces.js';
 import { csvCell, escapeHtml, markdownText } from './safe-text.js';
 import { CAUTION, cellText, isEmpty, type Cell, type ReportSection, type ReportView } from './view.js';
 
@@ -15,7 +16,7 @@ export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
  * view may be given as a function, so that json (which never reads it) does not build it.
  */
 export function render(format: OutputFormat, answer: unknown, viewOrMaker: ReportView | (() => ReportView)): string {
-  if (format === 'json') return JSON.stringify(answer, null, 2) + '\n';
+  if (format === 'json') return JSON.stringify(answer, null, JSON_INDENT) + '\n';
   const view = typeof viewOrMaker === 'function' ? viewOrMaker() : viewOrMaker;
   switch (format) {
     case 'table':
@@ -27,6 +28,22 @@ export function render(format: OutputFormat, answer: unknown, viewOrMaker: Repor
     case 'html':
       return renderHtml(view);
   }
+}
+
+/** Indentation of a command's JSON answer. */
+const JSON_INDENT = 2;
+
+/**
+ * The same text as `render`, for a file: json comes in pieces (see json-pieces.ts), so a large
+ * answer is never one string in memory; the other formats are rendered whole.
+ */
+export function renderInPieces(format: OutputFormat, answer: unknown, viewOrMaker: ReportView | (() => ReportView)): string | Iterable<string> {
+  return format === 'json' ? withFinalNewline(jsonPieces(answer, JSON_INDENT)) : render(format, answer, viewOrMaker);
+}
+
+export function* withFinalNewline(pieces: Iterable<string>): Generator<string> {
+  yield* pieces;
+  yield '\n';
 }
 
 /** No rule between body rows: a long report stays readable on one screen. */

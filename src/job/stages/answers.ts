@@ -8,7 +8,7 @@ import { buildDailyReport, dailyFiles, navChart, type DailyReport, type NavChart
 import { writeFileAtomically, writeQuarantine } from '../../report/files.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { reconcileView } from '../../report/reconcile-answer.js';
-import { render, type OutputFormat } from '../../report/render.js';
+import { renderInPieces, type OutputFormat } from '../../report/render.js';
 import type { TicketStageResult } from '../../tickets/stage.js';
 import type { TicketRecord } from '../../tickets/ticket.js';
 import type { Day } from '../day.js';
@@ -62,21 +62,21 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
     notices: [...answers.notices, ...tickets.notices, ...notices],
   });
   const written: string[] = [];
-  const write = (name: string, text: string) => {
+  const write = (name: string, text: string | Iterable<string>) => {
     const path = join(place.dir, name);
     writeFileAtomically(path, text);
     written.push(path);
   };
-  for (const [name, text] of Object.entries(dailyFiles(report, metrics, check.findings))) write(name, text);
-  const writeTable = (name: CommandAnswer, format: OutputFormat, text: () => string) => {
+  for (const [name, make] of Object.entries(dailyFiles(report, metrics, check.findings))) write(name, make());
+  const writeTable = (name: CommandAnswer, format: OutputFormat, text: () => string | Iterable<string>) => {
     if (!(FOR_READING.has(format) && tooLong.includes(name))) write(reportFileName(name, format), text());
   };
   // Each view is built at most once, and only for a format that reads it (json does not).
   const views = { check: once(() => checkView(check)), metrics: metrics && once(() => metricsView(metrics)), reconcile: reconciliation && once(() => reconcileView(reconciliation)) };
   for (const format of place.formats) {
-    writeTable('check', format, () => render(format, check, views.check));
-    if (metrics && views.metrics) writeTable('metrics', format, () => render(format, metrics, views.metrics!));
-    if (reconciliation && views.reconcile) writeTable('reconcile', format, () => render(format, reconciliation, views.reconcile!));
+    writeTable('check', format, () => renderInPieces(format, check, views.check));
+    if (metrics && views.metrics) writeTable('metrics', format, () => renderInPieces(format, metrics, views.metrics!));
+    if (reconciliation && views.reconcile) writeTable('reconcile', format, () => renderInPieces(format, reconciliation, views.reconcile!));
   }
   const quarantine = join(place.dir, QUARANTINE_FILE);
   writeQuarantine(quarantine, day.feed.rejected);

@@ -1,4 +1,6 @@
 import { join } from 'node:path';
+import { jsonPieces } from '../json-pieces.js';
+import { withFinalNewline } from '../render.js';
 import { csvLine } from '../safe-text.js';
 import { ticketsToCsv, ticketsToJsonLines } from '../../tickets/export.js';
 import type { MetricsAnswer } from '../../metrics/compute.js';
@@ -19,17 +21,20 @@ export const DAILY_FILES = {
   figures: 'figures.csv',
 } as const;
 
-/** The day's files, by name, ready for the caller to write where it writes reports. */
-export function dailyFiles(report: DailyReport, metrics: MetricsAnswer | null, findings: readonly Finding[]): Record<string, string> {
-  const files: Record<string, string> = {
-    [DAILY_FILES.html]: renderDailyHtml(report),
-    [DAILY_FILES.markdown]: renderDailyMarkdown(report),
-    [DAILY_FILES.csv]: renderDailyCsv(report),
-    [DAILY_FILES.json]: JSON.stringify(report, null, 1) + '\n',
-    [DAILY_FILES.ticketsJsonLines]: ticketsToJsonLines(report.tickets.records),
-    [DAILY_FILES.ticketsCsv]: ticketsToCsv(report.tickets.records),
+/**
+ * The day's files, by name, each made only when its maker is called, so the caller can write one
+ * and let it go before making the next (at 10,000 series `report.json` alone is about 77 MB).
+ */
+export function dailyFiles(report: DailyReport, metrics: MetricsAnswer | null, findings: readonly Finding[]): Record<string, () => string | Iterable<string>> {
+  const files: Record<string, () => string | Iterable<string>> = {
+    [DAILY_FILES.html]: () => renderDailyHtml(report),
+    [DAILY_FILES.markdown]: () => renderDailyMarkdown(report),
+    [DAILY_FILES.csv]: () => renderDailyCsv(report),
+    [DAILY_FILES.json]: () => withFinalNewline(jsonPieces(report, 1)),
+    [DAILY_FILES.ticketsJsonLines]: () => ticketsToJsonLines(report.tickets.records),
+    [DAILY_FILES.ticketsCsv]: () => ticketsToCsv(report.tickets.records),
   };
-  if (metrics) files[DAILY_FILES.figures] = figuresCsv(metrics, findings);
+  if (metrics) files[DAILY_FILES.figures] = () => figuresCsv(metrics, findings);
   return files;
 }
 

@@ -1,0 +1,57 @@
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { jsonPieces } from '../../src/report/json-pieces.js';
+
+// The oracle is the JavaScript engine's own JSON.stringify (ECMA-262, "JSON.stringify"): the
+// pieces must join to exactly its text, for every indentation the answers use and none.
+const joined = (value: unknown, indent: number) => [...jsonPieces(value, indent)].join('');
+
+const anything = fc.anything({
+  maxDepth: 3,
+  withBoxedValues: true,
+  withNullPrototype: true,
+  withDate: true,
+  withMap: true,
+  withSet: true,
+  withTypedArray: true,
+  withSparseArray: true,
+});
+// Long arrays are written element by element, so they need values of their own.
+const withLongArrays = fc.oneof(
+  anything,
+  fc.array(anything, { minLength: 60, maxLength: 150 }),
+  fc.dictionary(fc.string(), fc.array(fc.oneof(anything, fc.array(anything, { minLength: 65, maxLength: 80 })), { minLength: 0, maxLength: 5 })),
+);
+
+describe('JSON in pieces', () => {
+  it('joins to exactly what JSON.stringify writes, for any value and indentation', () => {
+    fc.assert(
+      fc.property(withLongArrays, fc.constantFrom(0, 1, 2, 4), (value, indent) => {
+        expect(joined(value, indent)).toBe(JSON.stringify(value, null, indent) ?? '');
+      }),
+      { numRuns: 300 },
+    );
+  });
+
+  it('skips what JSON skips and calls toJSON with the member name', () => {
+    const seen: string[] = [];
+    const value = {
+      gone: undefined,
+      call: () => 1,
+      kept: [undefined, () => 1, Number.NaN, -0, Infinity],
+      stamp: new Date(Date.UTC(2026, 10, 30)),
+      custom: { toJSON: (key: string) => (seen.push(key), `named ${key}`) },
+      long: Array.from({ length: 70 }, (_, i) => ({ i, nested: [i, { deep: i }] })),
+    };
+    expect(joined(value, 2)).toBe(JSON.stringify(value, null, 2));
+    expect(seen).toEqual(['custom', 'custom']); // once here, once by the oracle
+  });
+
+  it('writes no piece longer than one element of a long array', () => {
+    const rows = Array.from({ length: 1000 }, (_, i) => ({ series_id: `S${i}`, values: [i, i + 1] }));
+    const pieces = [...jsonPieces({ results: rows }, 2)];
+    const longest = Math.max(...pieces.map((piece) => piece.length));
+    expect(longest).toBeLessThan(200);
+    expect(pieces.join('')).toBe(JSON.stringify({ results: rows }, null, 2));
+  });
+});
