@@ -80,6 +80,18 @@ export async function decodeArrowUnderWatchdog(bytes: Uint8Array, fileName: stri
   }
 }
 
+/**
+ * Stops the idle decoder once a batch of files is read. An idle worker runs no garbage
+ * collection, so the last file it decoded (the NAV table, 500 MB at 10,000 series) stayed
+ * reachable from its heap, and shared memory is freed only when every thread lets it go.
+ */
+export async function releaseArrowDecoder(): Promise<void> {
+  await queue;
+  const worker = decoder;
+  decoder = undefined;
+  if (worker) await worker.terminate();
+}
+
 /** The bytes in shared memory: a view of them when they already are, else one copy. */
 function sharedBytes(bytes: Uint8Array): Uint8Array {
   if (bytes.buffer instanceof SharedArrayBuffer) return bytes;

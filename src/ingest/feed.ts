@@ -3,6 +3,7 @@ import type { SeriesFrame } from '../series/frame.js';
 import { toCalendars, toCorporateActions, toMasterRecords, toSeriesFrame, toVendorFigures } from './convert.js';
 import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import { DEFAULT_PROFILE, type FeedProfile } from './profile.js';
+import { releaseArrowDecoder } from './arrow-watchdog.js';
 import { readFeedFile, readSourceFile, type SourceRead } from './read.js';
 import type {
   CorporateActionRecord,
@@ -57,6 +58,7 @@ export async function loadFeed(paths: FeedPaths, options: LoadOptions = {}): Pro
   };
   const navRead = (await read('nav'))!;
   const reads = [navRead, ...(await Promise.all((['benchmarks', 'master', 'rates', 'holidays', 'actions', 'vendor'] as const).map(read)))];
+  await releaseArrowDecoder();
   const [nav, benchmarks, master, rates, holidays, actions, vendor] = reads.map((one) => one?.result);
   const results = reads.filter((one): one is SourceRead => !!one).map((one) => one.result);
   const sources = reads.filter((one): one is SourceRead => !!one).map((one) => ({ kind: one.result.kind, path: one.result.file, sha256: one.sha256 }));

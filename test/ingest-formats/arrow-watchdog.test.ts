@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { canonicalToArrowIpc } from '../../src/ingest/arrow-table.js';
-import { decodeArrowUnderWatchdog } from '../../src/ingest/arrow-watchdog.js';
+import { decodeArrowUnderWatchdog, releaseArrowDecoder } from '../../src/ingest/arrow-watchdog.js';
 import { InputError } from '../../src/ingest/errors.js';
 import { tableFromRows } from './tables.js';
 
@@ -33,5 +33,14 @@ describe('decodeArrowUnderWatchdog', () => {
     ]);
     expect(outcomes.map((outcome) => outcome.status)).toEqual(['fulfilled', 'rejected', 'fulfilled']);
     expect(String((outcomes[1] as PromiseRejectedResult).reason.message)).toMatch(/^damaged\.arrow cannot be read as an Arrow IPC file/);
+  });
+
+  it('lets the files in hand finish before it is released, and a later file starts a fresh worker', async () => {
+    const pending = decodeArrowUnderWatchdog(goodFile(), 'first.arrow', 30_000);
+    await releaseArrowDecoder(); // waits for first.arrow's turn to end, then stops the worker
+    await expect(pending).resolves.toBeUndefined();
+    await expect(decodeArrowUnderWatchdog(goodFile(), 'later.arrow', 30_000)).resolves.toBeUndefined();
+    await releaseArrowDecoder();
+    await releaseArrowDecoder(); // nothing to stop: a no-op
   });
 });
