@@ -1,12 +1,12 @@
 /**
  * JSON text in pieces: the concatenation of `jsonPieces(value, indent)` is exactly
- * `JSON.stringify(value, null, indent)`, but no piece holds more than one element of a long
+ * `JSON.stringify(value, null, indent)`, but no piece holds more than 128 elements of a long
  * array. A daily answer at 10,000 series is 60–80 MB of JSON; made whole, the text and the
  * garbage of making it raised the process's peak memory by several hundred megabytes.
  *
- * Objects and arrays are walked here; each element of a long array (and every other leaf or
- * short array) is given to `JSON.stringify` itself, re-indented to its depth. JSON strings never
- * hold a raw line break, so re-indenting every line break of a stringified element is safe.
+ * Objects and short arrays holding containers are walked here; a long array is stringified 128
+ * elements at a time, and everything else is given to `JSON.stringify` itself, re-indented to its
+ * depth. JSON strings never hold a raw line break, so re-indenting every line break is safe.
  */
 
 /** Arrays longer than this are written element by element; shorter ones are stringified whole. */
@@ -32,14 +32,42 @@ function* arrayPieces(array: readonly unknown[], indent: number, depth: number):
     return;
   }
   yield '[';
-  for (let i = 0; i < array.length; i++) {
-    yield (i === 0 ? '' : ',') + inner;
-    const element = jsonValueOf(array[i], String(i));
-    if (element === undefined) yield 'null';
-    else if (long) yield stringifiedAt(element, indent, depth + 1);
-    else yield* piecesOf(element, indent, depth + 1);
+  if (long) {
+    for (let start = 0; start < array.length; start += ELEMENTS_PER_PIECE) {
+      yield (start === 0 ? '' : ',') + elementsAt(array, start, Math.min(start + ELEMENTS_PER_PIECE, array.length), indent, depth);
+    }
+  } else {
+    for (let i = 0; i < array.length; i++) {
+      yield (i === 0 ? '' : ',') + inner;
+      const element = jsonValueOf(array[i], String(i));
+      if (element === undefined) yield 'null';
+      else yield* piecesOf(element, indent, depth + 1);
+    }
   }
   yield lineStart(indent, depth) + ']';
+}
+
+/** Elements of a long array stringified together: one call of JSON.stringify per piece, not per element. */
+const ELEMENTS_PER_PIECE = 128;
+
+/**
+ * Elements `start` to `end` of a long array as they appear inside it at `depth`: each on its own
+ * line, separated by commas, without the brackets. JSON.stringify of the slice gives exactly that
+ * between its brackets, except that a toJSON method would be told the slice's index instead of
+ * the array's, so a slice holding such an element is written element by element.
+ */
+function elementsAt(array: readonly unknown[], start: number, end: number, indent: number, depth: number): string {
+  const slice = array.slice(start, end);
+  if (slice.some(hasToJson)) {
+    return slice.map((element, k) => lineStart(indent, depth + 1) + stringifiedAt(jsonValueOf(element, String(start + k)) ?? null, indent, depth + 1)).join(',');
+  }
+  const text = JSON.stringify(slice, null, indent);
+  const inside = indent > 0 ? text.slice(1, text.length - 2) : text.slice(1, text.length - 1); // "[\n  a,\n  b\n]" or "[a,b]"
+  return depth === 0 || indent === 0 ? inside : inside.replaceAll('\n', lineStart(indent, depth));
+}
+
+function hasToJson(value: unknown): boolean {
+  return value !== null && typeof value === 'object' && typeof (value as { toJSON?: unknown }).toJSON === 'function';
 }
 
 function* objectPieces(object: Record<string, unknown>, indent: number, depth: number): Generator<string> {

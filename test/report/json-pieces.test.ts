@@ -47,11 +47,19 @@ describe('JSON in pieces', () => {
     expect(seen).toEqual(['custom', 'custom']); // once here, once by the oracle
   });
 
-  it('writes no piece longer than one element of a long array', () => {
+  it('writes a long array in pieces of at most 128 elements, never as one text', () => {
     const rows = Array.from({ length: 1000 }, (_, i) => ({ series_id: `S${i}`, values: [i, i + 1] }));
     const pieces = [...jsonPieces({ results: rows }, 2)];
-    const longest = Math.max(...pieces.map((piece) => piece.length));
-    expect(longest).toBeLessThan(200);
+    const whole = JSON.stringify({ results: rows }, null, 2);
+    // 1,000 rows in pieces of 128: eight pieces of rows, none more than an eighth of the text and a little.
+    expect(pieces.length).toBeGreaterThanOrEqual(Math.ceil(1000 / 128));
+    expect(Math.max(...pieces.map((piece) => piece.length))).toBeLessThan((whole.length * 128) / 1000 + 100);
     expect(pieces.join('')).toBe(JSON.stringify({ results: rows }, null, 2));
+  });
+
+  it('tells toJSON inside a long array its index in the whole array, as JSON.stringify does', () => {
+    const named = Array.from({ length: 300 }, () => ({ toJSON: (key: string) => `at ${key}` }));
+    expect(joined({ named }, 1)).toBe(JSON.stringify({ named }, null, 1));
+    expect(joined({ named }, 1)).toContain('"at 299"');
   });
 });
