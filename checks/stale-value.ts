@@ -422,33 +422,62 @@ function printedTick(series: SeriesSlice, rows: number[], from: number, to: numb
 /**
  * `printedTick` of the window around each step k (observations k − NEAR_TICK to
  * k + NEAR_TICK + 1), with the count of decimals slid along instead of counted again per step.
+ *
+ * Most windows' values have no common divisor above one (a fund printed to 4 decimals), and
+ * the windows overlap: a stretch of observations whose values have none stays inside the next
+ * dozen windows, which then need no greatest common divisor at all. The divisor is exact on
+ * whole numbers, so finding it from the window's end instead of its start changes nothing.
  */
 function nearTicks(series: SeriesSlice, rows: number[], shown: Uint8Array): Float64Array {
   const ticks = new Float64Array(Math.max(0, rows.length - 1));
   const byDecimals = new Int32Array(9);
   let from = 0, to = 0;
+  // Observations coprimeFrom … coprimeTo, at coprimeDecimals, have no common divisor above one.
+  let coprimeFrom = -1, coprimeTo = -1, coprimeDecimals = -1;
   for (let k = 0; k < ticks.length; k++) {
     const nextFrom = Math.max(0, k - NEAR_TICK);
     const nextTo = Math.min(rows.length, k + NEAR_TICK + 2);
     for (; to < nextTo; to++) byDecimals[shown[to]]++;
     for (; from < nextFrom; from++) byDecimals[shown[from]]--;
-    ticks[k] = tickOfWindow(series, rows, from, to, shown, byDecimals);
+    const decimals = gridDecimals(byDecimals, to - from);
+    if (decimals === coprimeDecimals && coprimeFrom >= from && coprimeTo < to) {
+      ticks[k] = INVERSE_POWERS_OF_TEN[decimals];
+      continue;
+    }
+    let divisor = 0, at = to;
+    while (at > from && divisor !== 1) {
+      at--;
+      if (shown[at] <= decimals) divisor = gcd(divisor, Math.round(series.values[rows[at]] * POWERS_OF_TEN[decimals]));
+    }
+    if (divisor === 1) {
+      coprimeFrom = at;
+      coprimeTo = to - 1;
+      coprimeDecimals = decimals;
+    }
+    ticks[k] = Math.max(1, divisor) * INVERSE_POWERS_OF_TEN[decimals];
   }
   return ticks;
 }
 
 /** The tick of the window [from, to) whose observations show `byDecimals[d]` values with d decimals. */
 function tickOfWindow(series: SeriesSlice, rows: number[], from: number, to: number, shown: Uint8Array, byDecimals: Int32Array): number {
-  // Decimals shown, as most of the values show them: one odd value (a keying error re-rounded
-  // to 4 decimals) does not make a 2-decimal fund's grid finer.
-  let decimals = 0;
-  for (let seen = byDecimals[0]; decimals < 8 && seen < GRID_SHARE * (to - from); seen += byDecimals[++decimals]);
+  const decimals = gridDecimals(byDecimals, to - from);
   let divisor = 0;
   for (let k = from; k < to && divisor !== 1; k++) {
     const value = series.values[rows[k]];
     if (shown[k] <= decimals) divisor = gcd(divisor, Math.round(value * POWERS_OF_TEN[decimals]));
   }
   return Math.max(1, divisor) * INVERSE_POWERS_OF_TEN[decimals];
+}
+
+/**
+ * Decimals shown, as most of a window's `count` values show them (`byDecimals[d]` show d): one
+ * odd value (a keying error re-rounded to 4 decimals) does not make a 2-decimal fund's grid finer.
+ */
+function gridDecimals(byDecimals: Int32Array, count: number): number {
+  let decimals = 0;
+  for (let seen = byDecimals[0]; decimals < 8 && seen < GRID_SHARE * count; seen += byDecimals[++decimals]);
+  return decimals;
 }
 
 /** Share of a window's values whose printed decimals set its grid. */
@@ -490,4 +519,3 @@ function accruesSmoothly(series: SeriesSlice, rows: number[], maxDaily: number):
   }
   return falls <= 0.02 * changes.length && median(changes) <= maxDaily;
 }
-
