@@ -1,7 +1,7 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
-import { movesOf } from '../src/checks/move-analysis.js';
+import { benchmarkStepMoves, movesOf } from '../src/checks/move-analysis.js';
 import { tailDensity, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, orderByKey, robustScale } from '../src/checks/support.js';
 
@@ -260,12 +260,11 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   if (n < 21) return undefined;
   // The typical one-day move in log terms, of the series alone (for steps the benchmark
   // cannot price) and of its residual against the benchmark.
-  const changes = new Float64Array(n - 1);
-  for (let k = 1; k < n; k++) changes[k - 1] = Math.log(series.values[rows[k]] / series.values[rows[k - 1]]);
-  const alone = robustScale(changes, 0);
   const returns = movesOf(series, context).model;
+  const alone = robustScale(logChanges(series, rows, returns), 0);
   const fitted = returns.hasBenchmark && returns.count >= 20 && returns.scale > 0;
   const benchmark = context.benchmark;
+  const benchMoves = benchmark ? benchmarkStepMoves(context, benchmark) : undefined;
   const calendar = calendarOf(context);
   const shown = decimalsShown(series, rows);
   const tickOf = blockTicks(series, rows, shown);
@@ -293,7 +292,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
       while (next < dates.length && dates[next] < dayB) next++;
       const q = next < dates.length && dates[next] === dayB ? next : -1;
       if (p >= 0 && q >= 0 && benchmark.values[p] > 0 && benchmark.values[q] > 0) {
-        mean = returns.beta * Math.log(benchmark.values[q] / benchmark.values[p]);
+        mean = returns.beta * (q === p + 1 && benchMoves ? benchMoves[p] : Math.log(benchmark.values[q] / benchmark.values[p]));
         sd = returns.scale * Math.sqrt(Math.max(span, q - p));
       }
     }
@@ -343,6 +342,26 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
       return (byChance ??= orderByKey(steps, chance));
     },
   };
+}
+
+/**
+ * ln(v[rows[k]] / v[rows[k − 1]]) for each step k − 1, bit for bit what that expression gives:
+ * 0 for a repeated value, and for a changed one the move model's raw log move, which is the
+ * same expression over the same two values (its steps join consecutive changed values), read
+ * instead of computed again.
+ */
+function logChanges(series: SeriesSlice, rows: number[], model: ResidualMoves): Float64Array {
+  const changes = new Float64Array(rows.length - 1);
+  let step = 0;
+  for (let k = 1; k < rows.length; k++) {
+    const before = series.values[rows[k - 1]];
+    const value = series.values[rows[k]];
+    while (step < model.count && model.to[step] < rows[k]) step++;
+    if (value === before && Number.isFinite(value)) changes[k - 1] = 0;
+    else if (step < model.count && model.to[step] === rows[k] && series.values[model.from[step]] === before) changes[k - 1] = model.raw[step];
+    else changes[k - 1] = Math.log(value / before);
+  }
+  return changes;
 }
 
 /** The residual model's step from slice row `from` to row `to`, or −1 (a binary search: its steps are in date order). */
