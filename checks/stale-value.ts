@@ -3,7 +3,7 @@ import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
 import { benchmarkStepMoves, movesOf } from '../src/checks/move-analysis.js';
 import { tailDensity, type ResidualMoves } from '../src/checks/residual-moves.js';
-import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, orderByKey, robustScale } from '../src/checks/support.js';
+import { calendarOf, isoDate, makeFinding, median, orderByKey, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
   min_days: number;
@@ -31,37 +31,36 @@ export const staleValue: SeriesCheck<StaleParams> = {
   readsMoves: true,
   run(series, context, params) {
     if (context.master?.stable_value) return [];
-    const rows = firstRowOfEachDate(series, context.asOf).filter((i) => series.values[i] > 0);
+    const rows = positiveFirstRows(series, context.asOf);
     if (rows.length < 2 || accruesSmoothly(series, rows, params.accrual_max_daily)) return [];
-    const runs = equalValueRuns(series, rows);
-    const model = chanceModel(series, rows, runs, context, params);
+    const runStarts = equalValueRuns(series, rows);
+    const model = chanceModel(series, rows, runStarts, context, params);
     const calendar = calendarOf(context);
-    const judged: Array<{ run: number[]; days: number; chance: number; required: number }> = [];
+    const judged: Array<{ first: number; last: number; length: number; days: number; chance: number; required: number }> = [];
     const shiftStarts = shiftStartDays(series, context);
     const shiftedSpans = shiftedDateSpans(series, context);
-    let position = 0;
-    for (const run of runs) {
-      const at = position;
-      position += run.length;
-      if (run.length < 2) continue;
-      const days = context.calendars.businessDayDistance(calendar, series.dates[run[0]], series.dates[run[run.length - 1]]) + 1;
+    for (let r = 0; r + 1 < runStarts.length; r++) {
+      const at = runStarts[r];
+      const length = runStarts[r + 1] - at;
+      if (length < 2) continue;
+      const first = rows[at];
+      const last = rows[at + length - 1];
+      const days = context.calendars.businessDayDistance(calendar, series.dates[first], series.dates[last]) + 1;
       // Stamping a day late from some date on repeats that date's value once: the shift is the cause.
-      if (shiftStarts.some((day) => Math.abs(day - series.dates[run[run.length - 1]]) <= 7)) continue;
+      if (shiftStarts.some((day) => Math.abs(day - series.dates[last]) <= 7)) continue;
       if (days >= params.min_days) {
-        const { chance, required } = runChance(model, at, run.length, rows.length, params);
+        const { chance, required } = runChance(model, at, length, rows.length, params);
         if (rows.length * chance <= params.max_chance) {
-          judged.push({ run, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
+          judged.push({ first, last, length, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
           continue;
         }
       }
-      if (shiftedSpans.some(([from, to]) => series.dates[run[0]] >= from && series.dates[run[0]] <= to)) continue;
-      const glaring = glaringRepeatChance(model, at, run.length);
-      if (glaring !== undefined && rows.length * glaring <= params.max_chance) judged.push({ run, days, chance: rows.length * glaring, required: days });
+      if (shiftedSpans.some(([from, to]) => series.dates[first] >= from && series.dates[first] <= to)) continue;
+      const glaring = glaringRepeatChance(model, at, length);
+      if (glaring !== undefined && rows.length * glaring <= params.max_chance) judged.push({ first, last, length, days, chance: rows.length * glaring, required: days });
     }
     return judged
-      .map(({ run, days, chance, required }) => {
-        const first = run[0];
-        const last = run[run.length - 1];
+      .map(({ first, last, length, days, chance, required }) => {
         return makeFinding({
           check: 'stale_value',
           severity: 'warning',
@@ -72,7 +71,7 @@ export const staleValue: SeriesCheck<StaleParams> = {
           evidence: {
             value: series.values[first],
             business_days: days,
-            observations: run.length,
+            observations: length,
             first: { date: isoDate(series.dates[first]), line: series.lines[first] },
             last: { date: isoDate(series.dates[last]), line: series.lines[last] },
             required_days: required,
@@ -96,14 +95,29 @@ function shiftedDateSpans(series: SeriesSlice, context: SeriesContext): Array<[n
   return moves ? moves.shifts.map((shift) => [series.dates[moves.model.from[shift.firstStep]], series.dates[moves.model.to[shift.lastStep]]]) : [];
 }
 
-function equalValueRuns(series: SeriesSlice, rows: number[]): number[][] {
-  const runs: number[][] = [];
-  for (const row of rows) {
-    const run = runs[runs.length - 1];
-    if (run && series.values[run[0]] === series.values[row]) run.push(row);
-    else runs.push([row]);
+/** The first row of each date up to `asOf` whose value is positive. */
+function positiveFirstRows(series: SeriesSlice, asOf: number): number[] {
+  const rows: number[] = [];
+  for (let i = 0; i < series.dates.length; i++) {
+    if (series.dates[i] > asOf) break;
+    if ((i === 0 || series.dates[i] !== series.dates[i - 1]) && series.values[i] > 0) rows.push(i);
   }
-  return runs;
+  return rows;
+}
+
+/**
+ * The runs of equal values among `rows`, as positions in `rows`: run r is rows[starts[r]] to
+ * rows[starts[r + 1] − 1], and the last entry is rows.length. Positions, not an array per run:
+ * a series has thousands of runs, most of one value.
+ */
+function equalValueRuns(series: SeriesSlice, rows: number[]): Int32Array {
+  const starts = new Int32Array(rows.length + 1);
+  let count = 0;
+  for (let k = 0; k < rows.length; k++) {
+    if (k === 0 || series.values[rows[starts[count - 1]]] !== series.values[rows[k]]) starts[count++] = k;
+  }
+  starts[count] = rows.length;
+  return starts.subarray(0, count + 1);
 }
 
 /**
@@ -255,7 +269,7 @@ interface ChanceModel {
   readonly byChance: Int32Array;
 }
 
-function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], context: SeriesContext, params: StaleParams): ChanceModel | undefined {
+function chanceModel(series: SeriesSlice, rows: number[], runStarts: Int32Array, context: SeriesContext, params: StaleParams): ChanceModel | undefined {
   const n = rows.length;
   if (n < 21) return undefined;
   // The typical one-day move in log terms, of the series alone (for steps the benchmark
@@ -306,24 +320,24 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const repeated = new Uint8Array(n - 1);
   let observed = 0;
   let expected = 0;
-  let position = 0;
   const cutoff = Math.max(params.min_days, SUSPECT_RUN);
-  for (const run of runs) {
+  for (let r = 0; r + 1 < runStarts.length; r++) {
+    const position = runStarts[r];
+    const length = runStarts[r + 1] - position;
     // Steps inside the run and the step into it.
-    const suspect = run.length >= cutoff;
-    for (let j = position; j < position + run.length - 1; j++) {
+    const suspect = length >= cutoff;
+    for (let j = position; j < position + length - 1; j++) {
       if (suspect) continue;
       counted[j] = 1;
       repeated[j] = 1;
       observed++;
       expected += chance[j];
     }
-    const into = position + run.length - 1;
+    const into = position + length - 1;
     if (!suspect && into < n - 1) {
       counted[into] = 1;
       expected += chance[into];
     }
-    position += run.length;
   }
   const steps: number[] = [];
   for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
