@@ -441,8 +441,31 @@ const INVERSE_POWERS_OF_TEN = Array.from({ length: 9 }, (_, k) => 10 ** -k);
  */
 function decimalsShown(series: SeriesSlice, rows: number[]): Uint8Array {
   const shown = new Uint8Array(rows.length);
-  for (let k = 0; k < rows.length; k++) shown[k] = decimalsOf(series.values[rows[k]]);
+  // A series mostly shows one number of decimals: tried first, it usually settles a value in one step.
+  let guess = -1;
+  for (let k = 0; k < rows.length; k++) {
+    const value = series.values[rows[k]];
+    shown[k] = guess >= 0 && showsExactly(value, guess) ? guess : decimalsOf(value);
+    guess = shown[k] <= MAX_PROVEN_DECIMALS ? shown[k] : -1;
+  }
   return shown;
+}
+
+/** The most decimals `showsExactly` can prove (see there). */
+const MAX_PROVEN_DECIMALS = 5;
+
+/**
+ * True when `decimalsOf(value)` is `decimals` (at most MAX_PROVEN_DECIMALS), proven from that
+ * one power of ten instead of trying every smaller one first: scaled, the value is whole to
+ * within `decimalsOf`'s tolerance, below 1e9, and its last decimal is not 0. Then with d fewer
+ * decimals it lies at least 10^−d ≥ 1e−5 from a whole number, less rounding errors below
+ * 3e−7: far beyond the tolerance of 1e−6, so `decimalsOf` would pass every smaller count and
+ * stop at this one.
+ */
+function showsExactly(value: number, decimals: number): boolean {
+  const scaled = decimals === 0 ? value : value * POWERS_OF_TEN[decimals];
+  const whole = Math.round(scaled);
+  return scaled < 1e9 && Math.abs(scaled - whole) <= 1e-6 * Math.max(1, scaled * 1e-9) && whole % 10 !== 0;
 }
 
 /** `shown[k]`: the decimals observation `rows[k]` shows (`decimalsShown`). */
