@@ -274,8 +274,10 @@ function chanceModel(series: SeriesSlice, rows: number[], runStarts: Int32Array,
   if (n < 21) return undefined;
   // The typical one-day move in log terms, of the series alone (for steps the benchmark
   // cannot price) and of its residual against the benchmark.
+  const changes = new Float64Array(n - 1);
+  for (let k = 1; k < n; k++) changes[k - 1] = Math.log(series.values[rows[k]] / series.values[rows[k - 1]]);
+  const alone = robustScale(changes, 0);
   const returns = movesOf(series, context).model;
-  const alone = robustScale(logChanges(series, rows, returns), 0);
   const fitted = returns.hasBenchmark && returns.count >= 20 && returns.scale > 0;
   const benchmark = context.benchmark;
   const benchMoves = benchmark ? benchmarkStepMoves(context, benchmark) : undefined;
@@ -356,26 +358,6 @@ function chanceModel(series: SeriesSlice, rows: number[], runStarts: Int32Array,
       return (byChance ??= orderByKey(steps, chance));
     },
   };
-}
-
-/**
- * ln(v[rows[k]] / v[rows[k − 1]]) for each step k − 1, bit for bit what that expression gives:
- * 0 for a repeated value, and for a changed one the move model's raw log move, which is the
- * same expression over the same two values (its steps join consecutive changed values), read
- * instead of computed again.
- */
-function logChanges(series: SeriesSlice, rows: number[], model: ResidualMoves): Float64Array {
-  const changes = new Float64Array(rows.length - 1);
-  let step = 0;
-  for (let k = 1; k < rows.length; k++) {
-    const before = series.values[rows[k - 1]];
-    const value = series.values[rows[k]];
-    while (step < model.count && model.to[step] < rows[k]) step++;
-    if (value === before && Number.isFinite(value)) changes[k - 1] = 0;
-    else if (step < model.count && model.to[step] === rows[k] && series.values[model.from[step]] === before) changes[k - 1] = model.raw[step];
-    else changes[k - 1] = Math.log(value / before);
-  }
-  return changes;
 }
 
 /** The residual model's step from slice row `from` to row `to`, or −1 (a binary search: its steps are in date order). */
