@@ -1,9 +1,9 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
-import { movesOf } from '../src/checks/move-analysis.js';
+import { benchmarkStepMoves, movesOf } from '../src/checks/move-analysis.js';
 import { tailDensity, type ResidualMoves } from '../src/checks/residual-moves.js';
-import { calendarOf, firstRowOfEachDate, isoDate, makeFinding, median, orderByKey, robustScale } from '../src/checks/support.js';
+import { calendarOf, isoDate, makeFinding, median, orderByKey, robustScale } from '../src/checks/support.js';
 
 interface StaleParams {
   min_days: number;
@@ -31,37 +31,36 @@ export const staleValue: SeriesCheck<StaleParams> = {
   readsMoves: true,
   run(series, context, params) {
     if (context.master?.stable_value) return [];
-    const rows = firstRowOfEachDate(series, context.asOf).filter((i) => series.values[i] > 0);
+    const rows = positiveFirstRows(series, context.asOf);
     if (rows.length < 2 || accruesSmoothly(series, rows, params.accrual_max_daily)) return [];
-    const runs = equalValueRuns(series, rows);
-    const model = chanceModel(series, rows, runs, context, params);
+    const runStarts = equalValueRuns(series, rows);
+    const model = chanceModel(series, rows, runStarts, context, params);
     const calendar = calendarOf(context);
-    const judged: Array<{ run: number[]; days: number; chance: number; required: number }> = [];
+    const judged: Array<{ first: number; last: number; length: number; days: number; chance: number; required: number }> = [];
     const shiftStarts = shiftStartDays(series, context);
     const shiftedSpans = shiftedDateSpans(series, context);
-    let position = 0;
-    for (const run of runs) {
-      const at = position;
-      position += run.length;
-      if (run.length < 2) continue;
-      const days = context.calendars.businessDayDistance(calendar, series.dates[run[0]], series.dates[run[run.length - 1]]) + 1;
+    for (let r = 0; r + 1 < runStarts.length; r++) {
+      const at = runStarts[r];
+      const length = runStarts[r + 1] - at;
+      if (length < 2) continue;
+      const first = rows[at];
+      const last = rows[at + length - 1];
+      const days = context.calendars.businessDayDistance(calendar, series.dates[first], series.dates[last]) + 1;
       // Stamping a day late from some date on repeats that date's value once: the shift is the cause.
-      if (shiftStarts.some((day) => Math.abs(day - series.dates[run[run.length - 1]]) <= 7)) continue;
+      if (shiftStarts.some((day) => Math.abs(day - series.dates[last]) <= 7)) continue;
       if (days >= params.min_days) {
-        const { chance, required } = runChance(model, at, run.length, rows.length, params);
+        const { chance, required } = runChance(model, at, length, rows.length, params);
         if (rows.length * chance <= params.max_chance) {
-          judged.push({ run, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
+          judged.push({ first, last, length, days, chance: rows.length * chance, required: Math.max(params.min_days, required) });
           continue;
         }
       }
-      if (shiftedSpans.some(([from, to]) => series.dates[run[0]] >= from && series.dates[run[0]] <= to)) continue;
-      const glaring = glaringRepeatChance(model, at, run.length);
-      if (glaring !== undefined && rows.length * glaring <= params.max_chance) judged.push({ run, days, chance: rows.length * glaring, required: days });
+      if (shiftedSpans.some(([from, to]) => series.dates[first] >= from && series.dates[first] <= to)) continue;
+      const glaring = glaringRepeatChance(model, at, length);
+      if (glaring !== undefined && rows.length * glaring <= params.max_chance) judged.push({ first, last, length, days, chance: rows.length * glaring, required: days });
     }
     return judged
-      .map(({ run, days, chance, required }) => {
-        const first = run[0];
-        const last = run[run.length - 1];
+      .map(({ first, last, length, days, chance, required }) => {
         return makeFinding({
           check: 'stale_value',
           severity: 'warning',
@@ -72,7 +71,7 @@ export const staleValue: SeriesCheck<StaleParams> = {
           evidence: {
             value: series.values[first],
             business_days: days,
-            observations: run.length,
+            observations: length,
             first: { date: isoDate(series.dates[first]), line: series.lines[first] },
             last: { date: isoDate(series.dates[last]), line: series.lines[last] },
             required_days: required,
@@ -96,14 +95,29 @@ function shiftedDateSpans(series: SeriesSlice, context: SeriesContext): Array<[n
   return moves ? moves.shifts.map((shift) => [series.dates[moves.model.from[shift.firstStep]], series.dates[moves.model.to[shift.lastStep]]]) : [];
 }
 
-function equalValueRuns(series: SeriesSlice, rows: number[]): number[][] {
-  const runs: number[][] = [];
-  for (const row of rows) {
-    const run = runs[runs.length - 1];
-    if (run && series.values[run[0]] === series.values[row]) run.push(row);
-    else runs.push([row]);
+/** The first row of each date up to `asOf` whose value is positive. */
+function positiveFirstRows(series: SeriesSlice, asOf: number): number[] {
+  const rows: number[] = [];
+  for (let i = 0; i < series.dates.length; i++) {
+    if (series.dates[i] > asOf) break;
+    if ((i === 0 || series.dates[i] !== series.dates[i - 1]) && series.values[i] > 0) rows.push(i);
   }
-  return runs;
+  return rows;
+}
+
+/**
+ * The runs of equal values among `rows`, as positions in `rows`: run r is rows[starts[r]] to
+ * rows[starts[r + 1] − 1], and the last entry is rows.length. Positions, not an array per run:
+ * a series has thousands of runs, most of one value.
+ */
+function equalValueRuns(series: SeriesSlice, rows: number[]): Int32Array {
+  const starts = new Int32Array(rows.length + 1);
+  let count = 0;
+  for (let k = 0; k < rows.length; k++) {
+    if (k === 0 || series.values[rows[starts[count - 1]]] !== series.values[rows[k]]) starts[count++] = k;
+  }
+  starts[count] = rows.length;
+  return starts.subarray(0, count + 1);
 }
 
 /**
@@ -255,7 +269,7 @@ interface ChanceModel {
   readonly byChance: Int32Array;
 }
 
-function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], context: SeriesContext, params: StaleParams): ChanceModel | undefined {
+function chanceModel(series: SeriesSlice, rows: number[], runStarts: Int32Array, context: SeriesContext, params: StaleParams): ChanceModel | undefined {
   const n = rows.length;
   if (n < 21) return undefined;
   // The typical one-day move in log terms, of the series alone (for steps the benchmark
@@ -266,6 +280,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const returns = movesOf(series, context).model;
   const fitted = returns.hasBenchmark && returns.count >= 20 && returns.scale > 0;
   const benchmark = context.benchmark;
+  const benchMoves = benchmark ? benchmarkStepMoves(context, benchmark) : undefined;
   const calendar = calendarOf(context);
   const shown = decimalsShown(series, rows);
   const tickOf = blockTicks(series, rows, shown);
@@ -293,7 +308,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
       while (next < dates.length && dates[next] < dayB) next++;
       const q = next < dates.length && dates[next] === dayB ? next : -1;
       if (p >= 0 && q >= 0 && benchmark.values[p] > 0 && benchmark.values[q] > 0) {
-        mean = returns.beta * Math.log(benchmark.values[q] / benchmark.values[p]);
+        mean = returns.beta * (q === p + 1 && benchMoves ? benchMoves[p] : Math.log(benchmark.values[q] / benchmark.values[p]));
         sd = returns.scale * Math.sqrt(Math.max(span, q - p));
       }
     }
@@ -307,24 +322,24 @@ function chanceModel(series: SeriesSlice, rows: number[], runs: number[][], cont
   const repeated = new Uint8Array(n - 1);
   let observed = 0;
   let expected = 0;
-  let position = 0;
   const cutoff = Math.max(params.min_days, SUSPECT_RUN);
-  for (const run of runs) {
+  for (let r = 0; r + 1 < runStarts.length; r++) {
+    const position = runStarts[r];
+    const length = runStarts[r + 1] - position;
     // Steps inside the run and the step into it.
-    const suspect = run.length >= cutoff;
-    for (let j = position; j < position + run.length - 1; j++) {
+    const suspect = length >= cutoff;
+    for (let j = position; j < position + length - 1; j++) {
       if (suspect) continue;
       counted[j] = 1;
       repeated[j] = 1;
       observed++;
       expected += chance[j];
     }
-    const into = position + run.length - 1;
+    const into = position + length - 1;
     if (!suspect && into < n - 1) {
       counted[into] = 1;
       expected += chance[into];
     }
-    position += run.length;
   }
   const steps: number[] = [];
   for (let j = 0; j < n - 1; j++) if (counted[j]) steps.push(j);
@@ -408,8 +423,31 @@ const INVERSE_POWERS_OF_TEN = Array.from({ length: 9 }, (_, k) => 10 ** -k);
  */
 function decimalsShown(series: SeriesSlice, rows: number[]): Uint8Array {
   const shown = new Uint8Array(rows.length);
-  for (let k = 0; k < rows.length; k++) shown[k] = decimalsOf(series.values[rows[k]]);
+  // A series mostly shows one number of decimals: tried first, it usually settles a value in one step.
+  let guess = -1;
+  for (let k = 0; k < rows.length; k++) {
+    const value = series.values[rows[k]];
+    shown[k] = guess >= 0 && showsExactly(value, guess) ? guess : decimalsOf(value);
+    guess = shown[k] <= MAX_PROVEN_DECIMALS ? shown[k] : -1;
+  }
   return shown;
+}
+
+/** The most decimals `showsExactly` can prove (see there). */
+const MAX_PROVEN_DECIMALS = 5;
+
+/**
+ * True when `decimalsOf(value)` is `decimals` (at most MAX_PROVEN_DECIMALS), proven from that
+ * one power of ten instead of trying every smaller one first: scaled, the value is whole to
+ * within `decimalsOf`'s tolerance, below 1e9, and its last decimal is not 0. Then with d fewer
+ * decimals it lies at least 10^−d ≥ 1e−5 from a whole number, less rounding errors below
+ * 3e−7: far beyond the tolerance of 1e−6, so `decimalsOf` would pass every smaller count and
+ * stop at this one.
+ */
+function showsExactly(value: number, decimals: number): boolean {
+  const scaled = decimals === 0 ? value : value * POWERS_OF_TEN[decimals];
+  const whole = Math.round(scaled);
+  return scaled < 1e9 && Math.abs(scaled - whole) <= 1e-6 * Math.max(1, scaled * 1e-9) && whole % 10 !== 0;
 }
 
 /** `shown[k]`: the decimals observation `rows[k]` shows (`decimalsShown`). */
@@ -422,33 +460,62 @@ function printedTick(series: SeriesSlice, rows: number[], from: number, to: numb
 /**
  * `printedTick` of the window around each step k (observations k − NEAR_TICK to
  * k + NEAR_TICK + 1), with the count of decimals slid along instead of counted again per step.
+ *
+ * Most windows' values have no common divisor above one (a fund printed to 4 decimals), and
+ * the windows overlap: a stretch of observations whose values have none stays inside the next
+ * dozen windows, which then need no greatest common divisor at all. The divisor is exact on
+ * whole numbers, so finding it from the window's end instead of its start changes nothing.
  */
 function nearTicks(series: SeriesSlice, rows: number[], shown: Uint8Array): Float64Array {
   const ticks = new Float64Array(Math.max(0, rows.length - 1));
   const byDecimals = new Int32Array(9);
   let from = 0, to = 0;
+  // Observations coprimeFrom … coprimeTo, at coprimeDecimals, have no common divisor above one.
+  let coprimeFrom = -1, coprimeTo = -1, coprimeDecimals = -1;
   for (let k = 0; k < ticks.length; k++) {
     const nextFrom = Math.max(0, k - NEAR_TICK);
     const nextTo = Math.min(rows.length, k + NEAR_TICK + 2);
     for (; to < nextTo; to++) byDecimals[shown[to]]++;
     for (; from < nextFrom; from++) byDecimals[shown[from]]--;
-    ticks[k] = tickOfWindow(series, rows, from, to, shown, byDecimals);
+    const decimals = gridDecimals(byDecimals, to - from);
+    if (decimals === coprimeDecimals && coprimeFrom >= from && coprimeTo < to) {
+      ticks[k] = INVERSE_POWERS_OF_TEN[decimals];
+      continue;
+    }
+    let divisor = 0, at = to;
+    while (at > from && divisor !== 1) {
+      at--;
+      if (shown[at] <= decimals) divisor = gcd(divisor, Math.round(series.values[rows[at]] * POWERS_OF_TEN[decimals]));
+    }
+    if (divisor === 1) {
+      coprimeFrom = at;
+      coprimeTo = to - 1;
+      coprimeDecimals = decimals;
+    }
+    ticks[k] = Math.max(1, divisor) * INVERSE_POWERS_OF_TEN[decimals];
   }
   return ticks;
 }
 
 /** The tick of the window [from, to) whose observations show `byDecimals[d]` values with d decimals. */
 function tickOfWindow(series: SeriesSlice, rows: number[], from: number, to: number, shown: Uint8Array, byDecimals: Int32Array): number {
-  // Decimals shown, as most of the values show them: one odd value (a keying error re-rounded
-  // to 4 decimals) does not make a 2-decimal fund's grid finer.
-  let decimals = 0;
-  for (let seen = byDecimals[0]; decimals < 8 && seen < GRID_SHARE * (to - from); seen += byDecimals[++decimals]);
+  const decimals = gridDecimals(byDecimals, to - from);
   let divisor = 0;
   for (let k = from; k < to && divisor !== 1; k++) {
     const value = series.values[rows[k]];
     if (shown[k] <= decimals) divisor = gcd(divisor, Math.round(value * POWERS_OF_TEN[decimals]));
   }
   return Math.max(1, divisor) * INVERSE_POWERS_OF_TEN[decimals];
+}
+
+/**
+ * Decimals shown, as most of a window's `count` values show them (`byDecimals[d]` show d): one
+ * odd value (a keying error re-rounded to 4 decimals) does not make a 2-decimal fund's grid finer.
+ */
+function gridDecimals(byDecimals: Int32Array, count: number): number {
+  let decimals = 0;
+  for (let seen = byDecimals[0]; decimals < 8 && seen < GRID_SHARE * count; seen += byDecimals[++decimals]);
+  return decimals;
 }
 
 /** Share of a window's values whose printed decimals set its grid. */
@@ -481,13 +548,11 @@ function gcd(a: number, b: number): number {
 }
 
 function accruesSmoothly(series: SeriesSlice, rows: number[], maxDaily: number): boolean {
-  const changes: number[] = [];
   let falls = 0;
-  for (let k = 1; k < rows.length; k++) {
-    const change = series.values[rows[k]] / series.values[rows[k - 1]] - 1;
-    if (change < 0) falls++;
-    changes.push(Math.abs(change));
-  }
-  return falls <= 0.02 * changes.length && median(changes) <= maxDaily;
+  for (let k = 1; k < rows.length; k++) if (series.values[rows[k]] / series.values[rows[k - 1]] - 1 < 0) falls++;
+  // Most series fall on far more days than an accruing one may: their changes need no median.
+  if (!(falls <= 0.02 * (rows.length - 1))) return false;
+  const changes = new Float64Array(rows.length - 1);
+  for (let k = 1; k < rows.length; k++) changes[k - 1] = Math.abs(series.values[rows[k]] / series.values[rows[k - 1]] - 1);
+  return median(changes) <= maxDaily;
 }
-

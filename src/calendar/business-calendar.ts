@@ -35,6 +35,8 @@ export class BusinessCalendars {
   private readonly holidaysByCalendar = new Map<string, Set<number>>();
   /** Day tables built on first use per calendar name; adding a holiday discards them. */
   private readonly tables = new Map<string, DayTable>();
+  /** The table asked for last: the checks ask for one series' calendar day after day, and a hash lookup per day was a cost of its own. */
+  private last: { readonly name: string; readonly table: DayTable } | undefined;
 
   constructor(private readonly weekendDays: readonly number[] = [6, 7]) {}
 
@@ -43,6 +45,7 @@ export class BusinessCalendars {
     if (!days) this.holidaysByCalendar.set(calendar, (days = new Set()));
     days.add(day);
     this.tables.clear();
+    this.last = undefined;
   }
 
   /** Plain data that rebuilds these calendars (`BusinessCalendars.from`), for a worker thread. */
@@ -103,8 +106,10 @@ export class BusinessCalendars {
 
   private tableOf(calendar: string | undefined): DayTable {
     const name = calendar ?? BusinessCalendars.DEFAULT;
+    if (this.last !== undefined && this.last.name === name) return this.last.table;
     let table = this.tables.get(name);
     if (table === undefined) this.tables.set(name, (table = this.buildTable(name)));
+    this.last = { name, table };
     return table;
   }
 

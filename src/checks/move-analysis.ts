@@ -47,7 +47,7 @@ export function analyseMoves(series: SeriesSlice, context: SeriesContext, claimi
 }
 
 /** The day-to-day log moves of the series' benchmark, kept with the feed's benchmark frame (the same for every fund). */
-function benchmarkStepMoves(context: SeriesContext, benchmark: SeriesSlice): Float64Array | undefined {
+export function benchmarkStepMoves(context: SeriesContext, benchmark: SeriesSlice): Float64Array | undefined {
   const index = indexInFrame(context.benchmarks, benchmark);
   return index >= 0 ? stepLogMoves(context.benchmarks!, index) : undefined;
 }

@@ -7,6 +7,7 @@ import { findingKey, type Finding, type Severity } from '../findings.js';
 import type { SeriesContext } from './check.js';
 import type { SeriesSlice } from '../series/frame.js';
 import { indexOfSorted } from '../numeric/search.js';
+import { bracketedMedian, kthSmallest, medianInPlace } from './selection.js';
 
 export const isoDate = formatIsoDate;
 
@@ -65,56 +66,21 @@ export function capped<T>(items: readonly T[], limit = 20): T[] {
   return items.slice(0, limit);
 }
 
-/** Median by quickselect on a copy: linear time, which matters at thousands of series. */
+/**
+ * The median, in linear time (which matters at thousands of series): from a bracket when the
+ * array is long (`bracketedMedian`), else by quickselect on a copy.
+ */
 export function median(values: ArrayLike<number>): number {
   const n = values.length;
   if (n === 0) return NaN;
+  const bracketed = bracketedMedian(values);
+  if (bracketed !== undefined) return bracketed;
   const work = new Float64Array(n); // a plain copy loop: Float64Array.from walks an iterator
   for (let i = 0; i < n; i++) work[i] = values[i];
   return medianInPlace(work);
 }
 
-/** The median of `work`, whose order it changes (for arrays made to be summarised). */
-function medianInPlace(work: Float64Array): number {
-  const n = work.length;
-  if (n === 0) return NaN;
-  const upper = kthSmallest(work, n >> 1);
-  return n % 2 === 1 ? upper : (maxBelow(work, n >> 1) + upper) / 2;
-}
-
-/**
- * Rearranges `work` in place so that position k holds the k-th smallest value (0-based), every
- * value before it is no larger and every value after it no smaller; returns it. Linear time.
- */
-export function kthSmallest(work: Float64Array, k: number): number {
-  let low = 0;
-  let high = work.length - 1;
-  while (high > low) {
-    const pivot = work[(low + high) >> 1];
-    let i = low;
-    let j = high;
-    while (i <= j) {
-      while (work[i] < pivot) i++;
-      while (work[j] > pivot) j--;
-      if (i <= j) {
-        const t = work[i];
-        work[i++] = work[j];
-        work[j--] = t;
-      }
-    }
-    if (k <= j) high = j;
-    else if (k >= i) low = i;
-    else break;
-  }
-  return work[k];
-}
-
-/** After kthSmallest(work, k): the largest value left of k, the (k − 1)-th smallest. */
-function maxBelow(work: Float64Array, k: number): number {
-  let max = -Infinity;
-  for (let i = 0; i < k; i++) if (work[i] > max) max = work[i];
-  return max;
-}
+export { kthSmallest };
 
 /**
  * `indices` ordered by ascending `keys[index]`, ties kept in the order given: exactly what
@@ -187,7 +153,7 @@ function mergeRuns(order: Int32Array, sorted: Float64Array, toOrder: Int32Array,
 export function robustScale(values: ArrayLike<number>, centre = median(values)): number {
   const deviations = new Float64Array(values.length);
   for (let i = 0; i < values.length; i++) deviations[i] = Math.abs(values[i] - centre);
-  return 1.4826 * medianInPlace(deviations);
+  return 1.4826 * (bracketedMedian(deviations) ?? medianInPlace(deviations));
 }
 
 /** Pearson's correlation, from the one helper (`src/numeric/correlation.ts`). */
