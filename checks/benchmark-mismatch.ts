@@ -1,10 +1,10 @@
 import type { SeriesCheck } from '../src/checks/check.js';
-import type { SeriesFrame, SeriesSlice } from '../src/series/frame.js';
+import type { SeriesSlice } from '../src/series/frame.js';
 import { isoWeekStart } from '../src/calendar/days.js';
 import { seriesAt } from '../src/series/frame.js';
 import { movesOf } from '../src/checks/move-analysis.js';
 import { GROSS_Z, type ResidualMoves } from '../src/checks/residual-moves.js';
-import { dayTable, indexInFrame, searchTable, type DayTable } from '../src/checks/series-tables.js';
+import { FrameTables, indexInFrame, searchTable, type DayTable } from '../src/checks/series-tables.js';
 import { isoDate, makeFinding, round } from '../src/checks/support.js';
 
 interface MismatchParams {
@@ -58,10 +58,12 @@ export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
   run(series, context, params) {
     const { benchmark, benchmarks, master } = context;
     if (!benchmark || !benchmarks) return [];
+    // The runner's tables, shared by every fund; a check run on its own makes its own.
+    const tables = context.benchmarkTables ?? new FrameTables(benchmarks);
     const weeks = weeklyReturns(series, movesOf(series, context).model).slice(-params.window_weeks);
     if (weeks.length < params.min_weeks) return [];
     const isIndexFund = INDEX_CATEGORY.test(master?.category ?? '');
-    const verdict = isIndexFund ? judgeIndexFund(weeks, benchmark, benchmarks, params) : judgeActiveFund(weeks, benchmark, benchmarks, params);
+    const verdict = isIndexFund ? judgeIndexFund(weeks, benchmark, tables, params) : judgeActiveFund(weeks, benchmark, tables, params);
     if (!verdict) return [];
     const { assigned, better, from } = verdict;
     const start = weeks[from].start;
@@ -108,28 +110,28 @@ interface Priced {
   readonly days: DayTable;
 }
 
-function pricedAt(benchmarks: SeriesFrame, index: number): Priced {
-  return { series: seriesAt(benchmarks, index), days: dayTable(benchmarks, index) };
+function pricedAt(tables: FrameTables, index: number): Priced {
+  return { series: seriesAt(tables.frame, index), days: tables.dayTable(index) };
 }
 
 /** The assigned benchmark, a series of the feed's benchmark frame (the runner looked it up there). */
-function assignedOf(benchmark: SeriesSlice, benchmarks: SeriesFrame): Priced {
-  const index = indexInFrame(benchmarks, benchmark);
-  return index >= 0 ? pricedAt(benchmarks, index) : { series: benchmark, days: searchTable(benchmark) };
+function assignedOf(benchmark: SeriesSlice, tables: FrameTables): Priced {
+  const index = indexInFrame(tables.frame, benchmark);
+  return index >= 0 ? pricedAt(tables, index) : { series: benchmark, days: searchTable(benchmark) };
 }
 
-function judgeIndexFund(weeks: Week[], benchmark: SeriesSlice, benchmarks: SeriesFrame, params: MismatchParams): Verdict | null {
-  const assigned = suffixFits(weeks, assignedOf(benchmark, benchmarks), params.min_weeks)[0];
+function judgeIndexFund(weeks: Week[], benchmark: SeriesSlice, tables: FrameTables, params: MismatchParams): Verdict | null {
+  const assigned = suffixFits(weeks, assignedOf(benchmark, tables), params.min_weeks)[0];
   if (!(assigned < params.index_r2)) return null;
-  const better = bestAt(alternativeFits(weeks, benchmarks, benchmark.id, params.min_weeks), 0);
+  const better = bestAt(alternativeFits(weeks, tables, benchmark.id, params.min_weeks), 0);
   return better && better.r2 >= params.index_r2 ? { assigned, better, from: 0 } : null;
 }
 
 /** The weeks from the quarter where another benchmark explains the fund best, if one does. */
-function judgeActiveFund(weeks: Week[], benchmark: SeriesSlice, benchmarks: SeriesFrame, params: MismatchParams): Verdict | null {
-  const priced = assignedOf(benchmark, benchmarks);
+function judgeActiveFund(weeks: Week[], benchmark: SeriesSlice, tables: FrameTables, params: MismatchParams): Verdict | null {
+  const priced = assignedOf(benchmark, tables);
   const assignedFits = suffixFits(weeks, priced, params.min_weeks);
-  const others = alternativeFits(weeks, benchmarks, benchmark.id, params.min_weeks);
+  const others = alternativeFits(weeks, tables, benchmark.id, params.min_weeks);
   let verdict: Verdict | null = null;
   let bestScore = 0;
   for (let from = 0; from < weeks.length; from += QUARTER_WEEKS) {
@@ -138,7 +140,7 @@ function judgeActiveFund(weeks: Week[], benchmark: SeriesSlice, benchmarks: Seri
     const better = bestAt(others, from);
     if (!better || better.r2 < params.good_r2 || !(better.r2 >= assigned + params.min_sibling_gain)) continue;
     const poorAndBeaten = from === 0 && assigned < params.poor_r2 && better.r2 >= assigned + params.min_gain;
-    const t = addedByOther(weeks, from, priced, pricedAt(benchmarks, better.index));
+    const t = addedByOther(weeks, from, priced, pricedAt(tables, better.index));
     if (!poorAndBeaten && !(t >= Z_PER_COMPARISON)) continue;
     // The start where the evidence for the other benchmark is strongest.
     const score = poorAndBeaten ? Infinity : t;
@@ -246,10 +248,11 @@ function suffixFits(weeks: Week[], benchmark: Priced, minWeeks: number): Float64
 }
 
 /** Every other benchmark's R² per start (see `suffixFits`). */
-function alternativeFits(weeks: Week[], benchmarks: SeriesFrame, assignedId: string, minWeeks: number): Alternative[] {
+function alternativeFits(weeks: Week[], tables: FrameTables, assignedId: string, minWeeks: number): Alternative[] {
+  const benchmarks = tables.frame;
   const others: Alternative[] = [];
   for (let i = 0; i < benchmarks.ids.length; i++) {
-    if (benchmarks.ids[i] !== assignedId) others.push({ id: benchmarks.ids[i], index: i, fits: suffixFits(weeks, pricedAt(benchmarks, i), minWeeks) });
+    if (benchmarks.ids[i] !== assignedId) others.push({ id: benchmarks.ids[i], index: i, fits: suffixFits(weeks, pricedAt(tables, i), minWeeks) });
   }
   return others;
 }

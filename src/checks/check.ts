@@ -3,6 +3,7 @@ import type { Finding, Severity } from '../findings.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
 import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
 import type { MoveAnalysis } from './move-analysis.js';
+import type { FrameTables } from './series-tables.js';
 
 /**
  * A validation check: one file in `checks/`, pure, with its parameters and their defaults.
@@ -20,6 +21,11 @@ export interface SeriesContext {
   readonly benchmark: SeriesSlice | undefined;
   /** Every benchmark in the feed, for checks that look for a better fit. */
   readonly benchmarks: SeriesFrame | undefined;
+  /**
+   * Lookup tables over `benchmarks` (day tables, day-to-day moves), made once per run by the
+   * series runner and shared by every series; a check run on its own may go without.
+   */
+  readonly benchmarkTables?: FrameTables;
   /** Corporate actions of this series, ascending by ex-date. */
   readonly actions: readonly CorporateActionRecord[];
   /** This series in the previous snapshot, when one was given. */

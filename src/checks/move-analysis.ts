@@ -9,7 +9,7 @@
 import type { SeriesSlice } from '../series/frame.js';
 import type { SeriesContext } from './check.js';
 import { residualMoves, type ResidualMoves } from './residual-moves.js';
-import { indexInFrame, stepLogMoves } from './series-tables.js';
+import { benchmarkStepMoves } from './series-tables.js';
 import { findShifts, type Shift, type ShiftParams } from '../../checks/date-shift.js';
 import type { SplitParams } from '../../checks/split-like-jump.js';
 import type { SpikeParams } from '../../checks/spike-reversal.js';
@@ -46,11 +46,7 @@ export function analyseMoves(series: SeriesSlice, context: SeriesContext, claimi
   return { model, shifts, constantLag, shiftParams, split: claiming.split_like_jump, spike: claiming.spike_reversal };
 }
 
-/** The day-to-day log moves of the series' benchmark, kept with the feed's benchmark frame (the same for every fund). */
-export function benchmarkStepMoves(context: SeriesContext, benchmark: SeriesSlice): Float64Array | undefined {
-  const index = indexInFrame(context.benchmarks, benchmark);
-  return index >= 0 ? stepLogMoves(context.benchmarks!, index) : undefined;
-}
+export { benchmarkStepMoves };
 
 /**
  * The analysis the runner put in the context, or, for a check called on its own outside the

@@ -16,7 +16,7 @@ import type { SeriesContext } from './check.js';
 import type { CorporateActionRecord } from '../ingest/records.js';
 import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
 import { calendarOf, exactPosition, kthSmallest, median, robustScale } from './support.js';
-import { indexInFrame, stepLogMoves } from './series-tables.js';
+import { benchmarkStepMoves } from './series-tables.js';
 
 export interface ResidualMoves {
   readonly count: number;
@@ -102,8 +102,7 @@ function computeMoves(series: SeriesSlice, context: SeriesContext): ResidualMove
   const benchmark = context.benchmark;
   const benchPositions = benchmark ? positionsInBenchmark(series, anchors, benchmark) : undefined;
   // Day-to-day benchmark moves are the same for every fund of that benchmark: computed once.
-  const benchIndex = benchmark ? indexInFrame(context.benchmarks, benchmark) : -1;
-  const benchMoves = benchIndex >= 0 ? stepLogMoves(context.benchmarks!, benchIndex) : undefined;
+  const benchMoves = benchmark ? benchmarkStepMoves(context, benchmark) : undefined;
   let actionCursor = 0;
 
   for (let k = 0; k < count; k++) {

@@ -10,6 +10,7 @@ import { findSeries, seriesAt } from '../series/frame.js';
 import type { SeriesCheck, SeriesContext } from './check.js';
 import { analyseMoves, type ClaimingParams } from './move-analysis.js';
 import { CHECKS } from './registry.js';
+import { FrameTables } from './series-tables.js';
 import type { CheckInput } from './run.js';
 import type { ResolvedCheck, SettingsResolver } from './settings-resolver.js';
 
@@ -30,6 +31,7 @@ export function seriesChecker(input: CheckInput, resolver: SettingsResolver, fee
   const seriesChecks = CHECKS.filter((check): check is SeriesCheck => check.scope === 'series');
   const masterById = new Map((input.master ?? []).map((record) => [record.series_id, record]));
   const actionsById = groupActions(input.actions ?? []);
+  const benchmarkTables = input.benchmarks && new FrameTables(input.benchmarks);
 
   return (first, end) => {
     const findings: Finding[] = [];
@@ -42,6 +44,7 @@ export function seriesChecker(input: CheckInput, resolver: SettingsResolver, fee
         master,
         benchmark: master?.benchmark_id && input.benchmarks ? findSeries(input.benchmarks, master.benchmark_id) : undefined,
         benchmarks: input.benchmarks,
+        benchmarkTables,
         actions: actionsById.get(series.id) ?? [],
         previous: input.previous ? findSeries(input.previous, series.id) : undefined,
         feedLatest,

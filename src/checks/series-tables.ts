@@ -1,9 +1,11 @@
 /**
- * Tables over one series of a frame that many funds read again and again (every fund of a
- * benchmark looks up the same benchmark dates and the same day-to-day moves), built once per
- * frame and series, the first time they are asked for, and kept beside the frame (frames
- * never change once built). Each lookup gives exactly what the plain computation gives.
+ * Tables over the series of a frame that many funds read again and again (every fund of a
+ * benchmark looks up the same benchmark dates and the same day-to-day moves), each built the first
+ * time it is asked for. The series runner makes one `FrameTables` for the feed's benchmarks and
+ * hands it to every series in the check context; nothing is kept anywhere else. Each lookup gives
+ * exactly what the plain computation gives.
  */
+import type { SeriesContext } from './check.js';
 import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
 import { seriesAt } from '../series/frame.js';
 import { indexOfSorted } from '../numeric/search.js';
@@ -21,18 +23,45 @@ interface Tables {
   moves?: Float64Array;
 }
 
-const tablesOfFrame = new WeakMap<SeriesFrame, Array<Tables | undefined>>();
+/** The tables of one frame's series, built on first use (frames never change once built). */
+export class FrameTables {
+  private readonly bySeries: Array<Tables | undefined>;
 
-function tablesOf(frame: SeriesFrame, index: number): Tables {
-  let tables = tablesOfFrame.get(frame);
-  if (!tables) tablesOfFrame.set(frame, (tables = new Array<Tables | undefined>(frame.ids.length)));
-  return (tables[index] ??= {});
+  constructor(readonly frame: SeriesFrame) {
+    this.bySeries = new Array<Tables | undefined>(frame.ids.length);
+  }
+
+  /** The day table of series `index`. */
+  dayTable(index: number): DayTable {
+    const tables = (this.bySeries[index] ??= {});
+    return (tables.days ??= buildDayTable(seriesAt(this.frame, index).dates));
+  }
+
+  /**
+   * `moves[p]` = ln(values[p + 1] / values[p]) of series `index`, computed as that very
+   * expression (so it is bit for bit what a check computing it itself would get).
+   */
+  stepLogMoves(index: number): Float64Array {
+    const tables = (this.bySeries[index] ??= {});
+    if (!tables.moves) {
+      const values = seriesAt(this.frame, index).values;
+      const moves = new Float64Array(Math.max(0, values.length - 1));
+      for (let p = 0; p + 1 < values.length; p++) moves[p] = Math.log(values[p + 1] / values[p]);
+      tables.moves = moves;
+    }
+    return tables.moves;
+  }
 }
 
-/** The day table of series `index` of `frame`. */
-export function dayTable(frame: SeriesFrame, index: number): DayTable {
-  const tables = tablesOf(frame, index);
-  return (tables.days ??= buildDayTable(seriesAt(frame, index).dates));
+/**
+ * The day-to-day log moves of a series' benchmark from the runner's tables (the same for every
+ * fund of that benchmark), or undefined for a check run without them, which then computes each
+ * move itself.
+ */
+export function benchmarkStepMoves(context: SeriesContext, benchmark: SeriesSlice): Float64Array | undefined {
+  const tables = context.benchmarkTables;
+  const index = tables ? indexInFrame(tables.frame, benchmark) : -1;
+  return index >= 0 ? tables!.stepLogMoves(index) : undefined;
 }
 
 /** A day table for a series that is not known to belong to a frame: plain binary search. */
@@ -50,21 +79,6 @@ function buildDayTable(dates: Int32Array): DayTable {
   // From the end, so a date on several rows keeps its first row.
   for (let i = n - 1; i >= 0; i--) positions[dates[i] - first] = i;
   return { at: (day) => (day >= first && day - first < width ? positions[day - first] : -1) };
-}
-
-/**
- * `moves[p]` = ln(values[p + 1] / values[p]) of series `index` of `frame`, computed as that
- * very expression (so it is bit for bit what a check computing it itself would get).
- */
-export function stepLogMoves(frame: SeriesFrame, index: number): Float64Array {
-  const tables = tablesOf(frame, index);
-  if (!tables.moves) {
-    const values = seriesAt(frame, index).values;
-    const moves = new Float64Array(Math.max(0, values.length - 1));
-    for (let p = 0; p + 1 < values.length; p++) moves[p] = Math.log(values[p + 1] / values[p]);
-    tables.moves = moves;
-  }
-  return tables.moves;
 }
 
 /** The index in `frame` of the series `slice` views (same rows of the same arrays), or -1. */
