@@ -7,14 +7,13 @@ import type { ReconcileAnswer } from '../reconcile/reconcile.js';
 import type { CheckAnswer } from '../report/check-answer.js';
 import type { DailyReport } from '../report/daily/index.js';
 import type { SnapshotRef } from '../store/index.js';
-import type { TicketStageResult } from '../tickets/stage.js';
 import { loadDay, type Day, type PreviousSource } from './day.js';
 import { answersStage } from './stages/answers.js';
 import { checkStage } from './stages/checks.js';
 import { metricsStage } from './stages/metrics.js';
 import { reconcileStage } from './stages/reconcile.js';
 import { snapshotStage } from './stages/snapshot.js';
-import { ticketsStage } from './stages/tickets.js';
+import { ticketsStage, type TicketsStageResult } from './stages/tickets.js';
 
 /**
  * The daily job: load → checks → metrics → reconcile → tickets → snapshot → answers. Each stage
@@ -30,7 +29,7 @@ export interface DailyRun {
   readonly metrics: MetricsAnswer | null;
   /** The vendor's figures reconciled; null when the configuration names no vendor file (or no benchmarks and master). */
   readonly reconciliation: ReconcileAnswer | null;
-  readonly tickets: TicketStageResult;
+  readonly tickets: TicketsStageResult;
   readonly snapshot: SnapshotRef;
   /** The day's report, built from every stage; what `run` prints. */
   readonly report: DailyReport;

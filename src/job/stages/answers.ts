@@ -4,15 +4,14 @@ import type { Finding } from '../../findings.js';
 import type { MetricsAnswer } from '../../metrics/compute.js';
 import type { ReconcileAnswer } from '../../reconcile/reconcile.js';
 import { checkView, type CheckAnswer } from '../../report/check-answer.js';
-import { buildDailyReport, dailyFiles, navChart, type DailyReport, type NavChart } from '../../report/daily/index.js';
+import { buildDailyReport, dailyFiles, flagFigures, navChart, type DailyReport, type NavChart } from '../../report/daily/index.js';
 import { writeFileAtomically, writeQuarantine } from '../../report/files.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { reconcileView } from '../../report/reconcile-answer.js';
 import { renderInPieces, type OutputFormat } from '../../report/render.js';
-import type { TicketStageResult } from '../../tickets/stage.js';
 import type { TicketRecord } from '../../tickets/ticket.js';
 import type { Day } from '../day.js';
-import { reconciliationForTickets } from './tickets.js';
+import type { TicketsStageResult } from './tickets.js';
 
 export interface ReportPlace {
   readonly dir: string;
@@ -25,7 +24,7 @@ export interface StageAnswers {
   readonly check: CheckAnswer;
   readonly metrics: MetricsAnswer | null;
   readonly reconciliation: ReconcileAnswer | null;
-  readonly tickets: TicketStageResult;
+  readonly tickets: TicketsStageResult;
   /** What a person should know about the run (snapshot re-runs, pinned previous file, ledger …). */
   readonly notices: readonly string[];
 }
@@ -49,6 +48,8 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
   const notices = tooLong.length
     ? [`${tooLong.join(' and ')} ${tooLong.length > 1 ? 'have' : 'has'} more than ${READABLE_TABLE_ROWS} rows: written as json and csv only; report.html shows what needs a person.`]
     : [];
+  // Flagged once, for the day's report and for figures.csv.
+  const flaggedFigures = metrics && flagFigures(metrics, check.findings);
   const report = buildDailyReport({
     feed: answers.feed,
     previousAsOf: tickets.previousAsOf,
@@ -57,7 +58,8 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
     tickets: tickets.records,
     history: tickets.history,
     metrics,
-    reconciliation: reconciliation && reconciliationForTickets(reconciliation),
+    flaggedFigures: flaggedFigures ?? undefined,
+    reconciliation: tickets.reconciliation,
     charts: chartsOf(day, tickets.records, check.findings),
     notices: [...answers.notices, ...tickets.notices, ...notices],
   });
@@ -67,7 +69,7 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
     writeFileAtomically(path, text);
     written.push(path);
   };
-  for (const [name, make] of Object.entries(dailyFiles(report, metrics, check.findings))) write(name, make());
+  for (const [name, make] of Object.entries(dailyFiles(report, flaggedFigures))) write(name, make());
   const writeTable = (name: CommandAnswer, format: OutputFormat, text: () => string | Iterable<string>) => {
     if (!(FOR_READING.has(format) && tooLong.includes(name))) write(reportFileName(name, format), text());
   };

@@ -13,39 +13,38 @@ export interface TicketPlace {
   readonly acknowledgements?: string;
 }
 
+/** What the tickets stage answers: the tickets, and the reconciliation as they read it, for the day's report too. */
+export interface TicketsStageResult extends TicketStageResult {
+  /** Every result with its explanation in words, and the vendor-level explanations; null without a vendor file. */
+  readonly reconciliation: ReconciliationInput | null;
+}
+
 /**
  * The tickets stage: the check stage's findings and the reconcile stage's answer become tickets
  * (per series and check, per feed-level pattern, per series with breaches, per vendor-level
  * explanation), carried across days in the ledger in the store.
  */
-export function ticketsStage(day: Day, findings: readonly Finding[], reconciliation: ReconcileAnswer | null, place: TicketPlace): TicketStageResult {
-  return ticketStage({
+export function ticketsStage(day: Day, findings: readonly Finding[], reconciliation: ReconcileAnswer | null, place: TicketPlace): TicketsStageResult {
+  const prepared = reconciliation && reconciliationForTickets(reconciliation);
+  const result = ticketStage({
     storeDir: place.store,
     feed: place.feed,
     asOf: formatIsoDate(day.asOf),
     findings,
     nav: day.feed.nav,
     master: day.feed.master,
-    reconciliation: reconciliation && reconciliationForTickets(reconciliation),
+    reconciliation: prepared,
     acknowledgementsPath: place.acknowledgements,
   });
+  return { ...result, reconciliation: prepared };
 }
 
 /**
  * What tickets and the day's report take from a reconciliation: every result, and one
  * vendor-level explanation per shared cause (summary.vendor_patterns), naming the series whose
- * breaches it reproduces.
+ * breaches it reproduces. The tickets stage prepares it once and hands it on to the report.
  */
 export function reconciliationForTickets(answer: ReconcileAnswer): ReconciliationInput {
-  let input = forTickets.get(answer);
-  if (!input) forTickets.set(answer, (input = ticketInputOf(answer)));
-  return input;
-}
-
-/** The tickets and the day's report both take the reconciliation: it is prepared once per answer. */
-const forTickets = new WeakMap<ReconcileAnswer, ReconciliationInput>();
-
-function ticketInputOf(answer: ReconcileAnswer): ReconciliationInput {
   const breaches = answer.results.filter((result) => result.status === 'breach');
   const vendor_explanations = answer.summary.vendor_patterns.map((pattern) => {
     const signature = JSON.stringify(pattern.changes);

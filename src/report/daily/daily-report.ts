@@ -59,6 +59,8 @@ export interface DailyInputs {
   readonly tickets: readonly TicketRecord[];
   readonly history: readonly RunCounts[];
   readonly metrics: MetricsAnswer | null;
+  /** The metrics' figures flagged against the check's findings (`flagFigures`), when the caller has them already. */
+  readonly flaggedFigures?: readonly FlaggedFigure[];
   readonly reconciliation?: ReconciliationInput | null;
   readonly charts?: readonly NavChart[];
   readonly figuresFile?: string;
@@ -72,7 +74,9 @@ export function buildDailyReport(inputs: DailyInputs): DailyReport {
     previous_as_of: inputs.previousAsOf,
     patterns: inputs.patterns.map((p) => p.finding),
     tickets: { counts: countTickets(inputs.tickets), records: inputs.tickets },
-    figures: inputs.metrics ? summarizeFigures(inputs.metrics, inputs.check.findings, inputs.figuresFile ?? 'figures.csv') : null,
+    figures: inputs.metrics
+      ? summarizeFigures(inputs.metrics, inputs.flaggedFigures ?? flagFigures(inputs.metrics, inputs.check.findings), inputs.figuresFile ?? 'figures.csv')
+      : null,
     reconciliation: inputs.reconciliation ?? null,
     history: inputs.history,
     charts: inputs.charts ?? [],
@@ -86,8 +90,7 @@ function countTickets(records: readonly TicketRecord[]): TicketCounts {
   return { new: live('new'), open: live('open'), reopened: live('reopened'), resolved: records.filter((r) => r.state === 'resolved').length, acknowledged: records.filter((r) => r.silenced).length };
 }
 
-export function summarizeFigures(metrics: MetricsAnswer, findings: readonly Finding[], fullFile: string): FigureSummary {
-  const figures = flagFigures(metrics, findings);
+export function summarizeFigures(metrics: MetricsAnswer, figures: readonly FlaggedFigure[], fullFile: string): FigureSummary {
   const needsPerson = (f: FlaggedFigure) => f.value === null || f.flagged_by.length > 0;
   const complete = figures.length <= FIGURES_SHOWN_AT_MOST;
   const shown = complete ? figures : figures.filter(needsPerson).slice(0, FIGURES_SHOWN_AT_MOST);

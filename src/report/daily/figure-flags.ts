@@ -15,17 +15,6 @@ export interface FlaggedFigure extends MetricRow {
 }
 
 export function flagFigures(metrics: MetricsAnswer, findings: readonly Finding[]): FlaggedFigure[] {
-  // The day's report and its figures file both flag the same figures: once per answer and findings.
-  const known = flagged.get(metrics);
-  if (known && known.findings === findings) return known.figures;
-  const figures = flagEach(metrics, findings);
-  flagged.set(metrics, { findings, figures });
-  return figures;
-}
-
-const flagged = new WeakMap<MetricsAnswer, { readonly findings: readonly Finding[]; readonly figures: FlaggedFigure[] }>();
-
-function flagEach(metrics: MetricsAnswer, findings: readonly Finding[]): FlaggedFigure[] {
   const marked = markSuspectFigures(metrics, findings, []).metrics;
   return metrics.metrics.map((figure, index) => {
     const own = figure.suspect_data;

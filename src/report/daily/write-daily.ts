@@ -3,9 +3,7 @@ import { jsonPieces } from '../json-pieces.js';
 import { withFinalNewline } from '../render.js';
 import { csvLine } from '../safe-text.js';
 import { ticketsToCsv, ticketsToJsonLines } from '../../tickets/export.js';
-import type { MetricsAnswer } from '../../metrics/compute.js';
-import type { Finding } from '../../findings.js';
-import { flagFigures } from './figure-flags.js';
+import type { FlaggedFigure } from './figure-flags.js';
 import { renderDailyHtml } from './daily-html.js';
 import { renderDailyCsv, renderDailyMarkdown } from './daily-text.js';
 import type { DailyReport } from './daily-report.js';
@@ -25,7 +23,7 @@ export const DAILY_FILES = {
  * The day's files, by name, each made only when its maker is called, so the caller can write one
  * and let it go before making the next (at 10,000 series `report.json` alone is about 77 MB).
  */
-export function dailyFiles(report: DailyReport, metrics: MetricsAnswer | null, findings: readonly Finding[]): Record<string, () => string | Iterable<string>> {
+export function dailyFiles(report: DailyReport, flaggedFigures: readonly FlaggedFigure[] | null): Record<string, () => string | Iterable<string>> {
   const files: Record<string, () => string | Iterable<string>> = {
     [DAILY_FILES.html]: () => renderDailyHtml(report),
     [DAILY_FILES.markdown]: () => renderDailyMarkdown(report),
@@ -34,14 +32,14 @@ export function dailyFiles(report: DailyReport, metrics: MetricsAnswer | null, f
     [DAILY_FILES.ticketsJsonLines]: () => ticketsToJsonLines(report.tickets.records),
     [DAILY_FILES.ticketsCsv]: () => ticketsToCsv(report.tickets.records),
   };
-  if (metrics) files[DAILY_FILES.figures] = () => figuresCsv(metrics, findings);
+  if (flaggedFigures) files[DAILY_FILES.figures] = () => figuresCsv(flaggedFigures);
   return files;
 }
 
 /** Every figure, flat, with the flag of an error-level finding in its window: the file the report links. */
-export function figuresCsv(metrics: MetricsAnswer, findings: readonly Finding[]): string {
+export function figuresCsv(flaggedFigures: readonly FlaggedFigure[]): string {
   const lines = [csvLine(['series_id', 'window', 'metric', 'value', 'observations', 'reason', 'flagged_by'])];
-  for (const f of flagFigures(metrics, findings)) {
+  for (const f of flaggedFigures) {
     lines.push(csvLine([f.series_id, f.window, f.metric, f.value, f.observations, f.reason ?? null, f.flagged_by.join(' ')]));
   }
   return lines.join('\n') + '\n';
