@@ -38,7 +38,12 @@ const JSON_INDENT = 2;
  * answer is never one string in memory; the other formats are rendered whole.
  */
 export function renderInPieces(format: OutputFormat, answer: unknown, viewOrMaker: ReportView | (() => ReportView)): string | Iterable<string> {
-  return format === 'json' ? withFinalNewline(jsonPieces(answer, JSON_INDENT)) : render(format, answer, viewOrMaker);
+  return format === 'json' ? jsonAnswerInPieces(answer) : render(format, answer, viewOrMaker);
+}
+
+/** An answer's JSON text, as `render` writes it, in pieces. */
+export function jsonAnswerInPieces(answer: unknown): Iterable<string> {
+  return withFinalNewline(jsonPieces(answer, JSON_INDENT));
 }
 
 export function* withFinalNewline(pieces: Iterable<string>): Generator<string> {

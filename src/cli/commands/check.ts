@@ -4,7 +4,7 @@ import type { FeedPaths } from '../../ingest/feed.js';
 import { loadDay } from '../../job/day.js';
 import { checkStage } from '../../job/stages/checks.js';
 import { checkView, failsOn } from '../../report/check-answer.js';
-import { render } from '../../report/render.js';
+import { renderInPieces } from '../../report/render.js';
 import { asOfOption, chosenFormat, failOnOption, formatOption, loadOptionsFrom, outOption, parseAsOf, parseFailOn, profilesOption } from '../options.js';
 import { emit, quarantinePathFor, writeQuarantine } from '../output.js';
 
@@ -63,7 +63,7 @@ async function runCheckCommand(options: CheckOptions): Promise<number> {
   const previous = options.previous === undefined ? undefined : ({ kind: 'file', path: options.previous, profile: load.profiles?.nav } as const);
   const day = await loadDay({ paths, asOf, load, previous });
   const answer = await checkStage(day);
-  emit(render(chosenFormat(options.format), answer, checkView(answer)), options.out);
+  emit(renderInPieces(chosenFormat(options.format), answer, () => checkView(answer)), options.out);
   if (options.out !== undefined && day.feed.rejected.length > 0) writeQuarantine(quarantinePathFor(options.out), day.feed.rejected);
   return failsOn(answer.findings, failOn) ? 1 : 0;
 }

@@ -6,7 +6,7 @@ import { ConfigError } from '../../ingest/errors.js';
 import type { FeedPaths } from '../../ingest/feed.js';
 import { loadDay } from '../../job/day.js';
 import { snapshotStage } from '../../job/stages/snapshot.js';
-import { render } from '../../report/render.js';
+import { renderInPieces } from '../../report/render.js';
 import { tableView } from '../../report/view.js';
 import { asOfOption, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf } from '../options.js';
 import { requireDirectoryLocation } from '../locations.js';
@@ -80,7 +80,7 @@ async function runIngest(options: IngestOptions): Promise<number> {
     answer.files.map((f) => [f.kind, f.path, f.rows.read, f.rows.accepted, f.rows.rejected]),
     'No files.',
   );
-  emit(render(chosenFormat(options.format), answer, view), options.out);
+  emit(renderInPieces(chosenFormat(options.format), answer, view), options.out);
   return 0;
 }
 

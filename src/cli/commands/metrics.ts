@@ -8,7 +8,7 @@ import { DEFAULT_METHODOLOGY, MethodologyChangesSchema, withChanges, type Method
 import { loadRunConfig } from '../../config/run-config.js';
 import { parseWindow } from '../../metrics/windows.js';
 import { metricsView } from '../../report/metrics-answer.js';
-import { render } from '../../report/render.js';
+import { renderInPieces } from '../../report/render.js';
 import { asOfOption, withFigureInputs, chosenFormat, formatOption, loadOptionsOf, outOption, parseAsOf, profilesOption } from '../options.js';
 import { annualizationNotices, printNotices } from '../notices.js';
 import { emit } from '../output.js';
@@ -53,7 +53,7 @@ async function runMetricsCommand(options: MetricsOptions): Promise<number> {
   // A figure whose window holds an error-level finding of the checks carries the finding keys.
   const findings = (await checkStage(day, config?.checks)).findings;
   const answer = metricsStage(day, { asOf, windows, methodology }, findings)!; // benchmarks and master are required options
-  emit(render(chosenFormat(options.format), answer, metricsView(answer)), options.out);
+  emit(renderInPieces(chosenFormat(options.format), answer, () => metricsView(answer)), options.out);
   return 0;
 }
 

@@ -10,7 +10,7 @@ import { DEFAULT_METHODOLOGY } from '../../metrics/methodology.js';
 import type { ReconcileAnswer } from '../../reconcile/reconcile.js';
 import { loadToleranceFile } from '../../reconcile/tolerance-file.js';
 import { reconcileView } from '../../report/reconcile-answer.js';
-import { render } from '../../report/render.js';
+import { renderInPieces } from '../../report/render.js';
 import { asOfOption, withFigureInputs, chosenFormat, failOnOption, formatOption, loadOptionsOf, outOption, parseAsOf, parseFailOn, profilesOption } from '../options.js';
 import { emit } from '../output.js';
 import { chosenMethodology, parseRate } from './metrics.js';
@@ -61,7 +61,7 @@ async function runReconcileCommand(options: ReconcileOptions): Promise<number> {
   const day = asOf === undefined ? { ...loaded, asOf: lastDay(loaded.feed.nav.dates) } : loaded;
   const findings = (await checkStage(day, config?.checks)).findings;
   const answer = reconcileStage(day, findings, { methodology, tolerances, asOf })!; // vendor, benchmarks and master are required options
-  emit(render(chosenFormat(options.format), answer, reconcileView(answer)), options.out);
+  emit(renderInPieces(chosenFormat(options.format), answer, () => reconcileView(answer)), options.out);
   return reconcileFailsOn(answer, failOn) ? 1 : 0;
 }
 

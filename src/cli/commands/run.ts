@@ -5,7 +5,7 @@ import { runDailyJob } from '../../job/daily-job.js';
 import { join } from 'node:path';
 import { failsOn } from '../../report/check-answer.js';
 import { DAILY_FILES, renderDailyCsv, renderDailyHtml, renderDailyMarkdown, renderDailyTerminal, type DailyReport } from '../../report/daily/index.js';
-import type { OutputFormat } from '../../report/render.js';
+import { jsonAnswerInPieces, type OutputFormat } from '../../report/render.js';
 import { requireDirectoryLocation, requireFileLocation } from '../locations.js';
 import { annualizationNotices, printNotices, unknownSeriesNotices } from '../notices.js';
 import { asOfOption, chosenFormat, failOnOption, formatOption, outOption, parseAsOf, parseFailOn, parseThreads, threadsOption } from '../options.js';
@@ -65,10 +65,10 @@ export async function runCommandLine(configPath: string, options: RunOptions): P
 }
 
 /** The whole day on standard output, in the chosen format: the day's report. */
-function renderDay(format: OutputFormat, report: DailyReport, outputDir: string): string {
+function renderDay(format: OutputFormat, report: DailyReport, outputDir: string): string | Iterable<string> {
   switch (format) {
     case 'json':
-      return JSON.stringify(report, null, 2) + '\n';
+      return jsonAnswerInPieces(report);
     case 'html':
       return renderDailyHtml(report);
     case 'markdown':
