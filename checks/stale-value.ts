@@ -1,7 +1,8 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
 import type { SeriesContext } from '../src/checks/check.js';
-import { benchmarkStepMoves, movesOf } from '../src/checks/move-analysis.js';
+import { movesOf } from '../src/checks/move-analysis.js';
+import { benchmarkStepMoves } from '../src/checks/series-tables.js';
 import { tailDensity, type ResidualMoves } from '../src/checks/residual-moves.js';
 import { calendarOf, isoDate, makeFinding, median, orderByKey, robustScale } from '../src/checks/support.js';
 

@@ -46,7 +46,6 @@ export function analyseMoves(series: SeriesSlice, context: SeriesContext, claimi
   return { model, shifts, constantLag, shiftParams, split: claiming.split_like_jump, spike: claiming.spike_reversal };
 }
 
-export { benchmarkStepMoves };
 
 /**
  * The analysis the runner put in the context, or, for a check called on its own outside the

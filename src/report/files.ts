@@ -4,8 +4,10 @@ import type { RejectedRow } from '../ingest/records.js';
 import { renameDurably, writeFileDurably } from '../store/durable-files.js';
 import { rejectedRowsToCsv } from '../store/rejected-csv.js';
 
-/** The store's durable steps for one file: write a temporary sibling, flush it, rename it into place. */
-/** Writes `text` (whole, or in pieces joined as they come) to a temporary file, then renames it over `path`. */
+/**
+ * The store's durable steps for one file: write a temporary sibling (`text` whole, or in pieces
+ * encoded as they come), flush it, rename it into place.
+ */
 export function writeFileAtomically(path: string, text: string | Iterable<string>): void {
   const directory = dirname(path);
   mkdirSync(directory, { recursive: true });

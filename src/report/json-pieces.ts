@@ -9,7 +9,7 @@
  * depth. JSON strings never hold a raw line break, so re-indenting every line break is safe.
  */
 
-/** Arrays longer than this are written element by element; shorter ones are stringified whole. */
+/** Arrays longer than this are written a slice at a time; shorter ones are walked, or stringified whole when they hold no container. */
 const LONG_ARRAY = 64;
 
 export function* jsonPieces(value: unknown, indent: number): Generator<string> {
@@ -66,7 +66,7 @@ function elementsAt(array: readonly unknown[], start: number, end: number, inden
   return depth === 0 || indent === 0 ? inside : inside.replaceAll('\n', lineStart(indent, depth));
 }
 
-function hasToJson(value: unknown): boolean {
+function hasToJson(value: unknown): value is { toJSON(key: string): unknown } {
   return value !== null && typeof value === 'object' && typeof (value as { toJSON?: unknown }).toJSON === 'function';
 }
 
@@ -86,7 +86,7 @@ function* objectPieces(object: Record<string, unknown>, indent: number, depth: n
 
 /** What JSON.stringify would write for a value under `key`: after toJSON, or undefined when it skips it. */
 function jsonValueOf(value: unknown, key: string): unknown {
-  const own = value !== null && typeof value === 'object' && typeof (value as { toJSON?: unknown }).toJSON === 'function' ? (value as { toJSON(key: string): unknown }).toJSON(key) : value;
+  const own = hasToJson(value) ? value.toJSON(key) : value;
   return typeof own === 'function' || typeof own === 'symbol' || own === undefined ? undefined : own;
 }
 

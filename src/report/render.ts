@@ -16,7 +16,7 @@ export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
  * view may be given as a function, so that json (which never reads it) does not build it.
  */
 export function render(format: OutputFormat, answer: unknown, viewOrMaker: ReportView | (() => ReportView)): string {
-  if (format === 'json') return JSON.stringify(answer, null, JSON_INDENT) + '\n';
+  if (format === 'json') return [...jsonAnswerInPieces(answer)].join('');
   const view = typeof viewOrMaker === 'function' ? viewOrMaker() : viewOrMaker;
   switch (format) {
     case 'table':
