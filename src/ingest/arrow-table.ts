@@ -72,14 +72,31 @@ function validityBitmap(length: number, isValid: (row: number) => boolean): { nu
  */
 const NO_NULLS = { nullBitmap: new Uint8Array(0), nullCount: 0 };
 
-function countMissing(values: Int32Array | Float64Array | Uint8Array, missing: (value: number) => boolean): number {
+/*
+ * The missing-value counts, one plain loop per array type: one shared loop taking a test per
+ * value was not inlined (it saw three array types and three tests) and took half a second for
+ * the 25 M rows of the standard universe.
+ */
+function countNegative(values: Int32Array): number {
   let count = 0;
-  for (let row = 0; row < values.length; row++) if (missing(values[row])) count++;
+  for (let row = 0; row < values.length; row++) if (values[row] < 0) count++;
+  return count;
+}
+
+function countNaN(values: Float64Array): number {
+  let count = 0;
+  for (let row = 0; row < values.length; row++) if (values[row] !== values[row]) count++;
+  return count;
+}
+
+function countEqual(values: Int32Array | Uint8Array, missing: number): number {
+  let count = 0;
+  for (let row = 0; row < values.length; row++) if (values[row] === missing) count++;
   return count;
 }
 
 function textVector(codes: Int32Array, dictionary: readonly string[]): Vector {
-  const complete = countMissing(codes, (code) => code < 0) === 0;
+  const complete = countNegative(codes) === 0;
   const { nullBitmap, nullCount } = complete ? NO_NULLS : validityBitmap(codes.length, (row) => codes[row] >= 0);
   // Null slots still need an index inside the dictionary; 0 is never read through the bitmap.
   const indices = complete ? codes : codes.map((code) => (code < 0 ? 0 : code));
@@ -93,13 +110,13 @@ function primitiveVector<T extends DateDay | Float64>(
   values: T['TArray'],
   holdsValue: (value: number) => boolean,
 ): Vector {
-  const complete = countMissing(values as Int32Array | Float64Array, (value) => !holdsValue(value)) === 0;
+  const complete = (values instanceof Float64Array ? countNaN(values) : countEqual(values as Int32Array, NULL_DATE)) === 0;
   const { nullBitmap, nullCount } = complete ? NO_NULLS : validityBitmap(values.length, (row) => holdsValue(values[row] as number));
   return makeVector(makeData({ type, length: values.length, nullCount, nullBitmap, data: values } as never));
 }
 
 function booleanVector(values: Uint8Array, length: number): Vector {
-  const complete = countMissing(values, (value) => value === NULL_BOOLEAN) === 0;
+  const complete = countEqual(values, NULL_BOOLEAN) === 0;
   const { nullBitmap, nullCount } = complete ? NO_NULLS : validityBitmap(length, (row) => values[row] !== NULL_BOOLEAN);
   const bits = new Uint8Array(Math.ceil(length / 8));
   for (let row = 0; row < length; row++) if (values[row] === 1) bits[row >> 3] |= 1 << (row & 7);
