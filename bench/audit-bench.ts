@@ -157,6 +157,10 @@ function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): 
   const rss = results.map((r) => r.report.maxRssBytes / 2 ** 20);
   console.log(`  ${'process'.padEnd(10)} median ${median(walls).toFixed(2).padStart(7)} s   best ${best(walls).toFixed(2).padStart(7)} s  (whole child process, start-up included)`);
   console.log(`  ${'peak RSS'.padEnd(10)} median ${median(rss).toFixed(0).padStart(7)} MiB best ${best(rss).toFixed(0).padStart(7)} MiB`);
+  for (const name of Object.keys(first.background ?? {})) {
+    const seconds = results.map((r) => r.report.background?.[name] ?? NaN);
+    console.log(`  ${name} ran on its own thread for ${median(seconds).toFixed(2)} s (median) beside the stages after the checks; its row above is the wait left after the tickets`);
+  }
   const peaks = stageNames.map((name) => `${name} ${median(results.map((r) => r.report.peakAfter[name] / 2 ** 20)).toFixed(0)}`);
   console.log(`  ${'peak after'.padEnd(10)} ${peaks.join(', ')} MiB (median; the stage where it rises set the peak)`);
 }

@@ -12,11 +12,12 @@ import { answersStage } from './stages/answers.js';
 import { checkStage } from './stages/checks.js';
 import { metricsStage } from './stages/metrics.js';
 import { reconcileStage } from './stages/reconcile.js';
-import { snapshotStage } from './stages/snapshot.js';
+import { snapshotStageInBackground } from './stages/snapshot.js';
 import { ticketsStage, type TicketsStageResult } from './stages/tickets.js';
 
 /**
- * The daily job: load → checks → metrics → reconcile → tickets → snapshot → answers. Each stage
+ * The daily job: load → checks → metrics → reconcile → tickets → snapshot → answers, the snapshot
+ * written on a worker thread from the end of the checks to the tickets. Each stage
  * takes the day (and what earlier stages produced) and returns typed output; commands only
  * parse options, call the job, render and set the exit status.
  */
@@ -47,15 +48,20 @@ export async function runDailyJob(config: RunConfig, asOf: number, onStage: Stag
   const series = day.feed.nav.ids.length;
   onStage(`checking ${series} series, ${day.feed.rows.accepted} rows …`);
   const check = await checkStage(day, config.checks, { threads: config.threads });
-  onStage(`computing risk figures for ${series} series …`);
-  // Risk figures stand at the last month-end on or before the as-of date.
-  const metrics = metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology }, check.findings);
-  if (day.feed.vendor) onStage(`reconciling ${day.feed.vendor.length} vendor figures …`);
-  // A vendor figure dated after the day cannot be judged on the day's data: it waits for its own day.
-  const reconciliation = reconcileStage(day, check.findings, { methodology: config.methodology, tolerances: config.reconcile.tolerances, through: asOf });
-  onStage('carrying the tickets and storing the snapshot …');
-  const tickets = ticketsStage(day, check.findings, reconciliation, { store: config.store, feed: config.feed, acknowledgements: config.acknowledgements });
-  const snapshot = snapshotStage(day, { store: config.store, feed: config.feed, previous: config.previous });
+  // The snapshot is written on another thread while this one computes, reconciles and carries the tickets.
+  const storing = snapshotStageInBackground(day, { store: config.store, feed: config.feed, previous: config.previous });
+  const { metrics, reconciliation, tickets } = await whileStoring(storing, () => {
+    onStage(`computing risk figures for ${series} series …`);
+    // Risk figures stand at the last month-end on or before the as-of date.
+    const metrics = metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology }, check.findings);
+    if (day.feed.vendor) onStage(`reconciling ${day.feed.vendor.length} vendor figures …`);
+    // A vendor figure dated after the day cannot be judged on the day's data: it waits for its own day.
+    const reconciliation = reconcileStage(day, check.findings, { methodology: config.methodology, tolerances: config.reconcile.tolerances, through: asOf });
+    onStage('carrying the tickets and storing the snapshot …');
+    const tickets = ticketsStage(day, check.findings, reconciliation, { store: config.store, feed: config.feed, acknowledgements: config.acknowledgements });
+    return { metrics, reconciliation, tickets };
+  });
+  const snapshot = await storing;
   onStage('writing the reports …');
   const answers = answersStage(day, { feed: config.feed, check, metrics, reconciliation, tickets, notices: snapshot.notices }, config.output);
   return {
@@ -70,6 +76,22 @@ export async function runDailyJob(config: RunConfig, asOf: number, onStage: Stag
     reportFiles: answers.files,
     notices: answers.report.notices,
   };
+}
+
+/**
+ * Runs `work` while the snapshot is being stored. When the work fails, its error is the one
+ * told (as when the stages ran one after the other), but only once the snapshot's writer has
+ * finished, so no write is left running behind the error.
+ */
+export async function whileStoring<T>(storing: Promise<unknown>, work: () => T): Promise<T> {
+  // Awaited by the caller; this keeps a quick failure from counting as unhandled meanwhile.
+  storing.catch(() => {});
+  try {
+    return work();
+  } catch (error) {
+    await storing.catch(() => {});
+    throw error;
+  }
 }
 
 /**

@@ -1,5 +1,6 @@
 import { formatIsoDate } from '../../calendar/days.js';
-import { findSnapshot, listSnapshots, previousSnapshot, writeSnapshot, type SnapshotRef } from '../../store/index.js';
+import { writeSnapshotInBackground, type BackgroundOptions } from '../../store/background-write.js';
+import { findSnapshot, listSnapshots, previousSnapshot, writeSnapshot, type SnapshotInput, type SnapshotRef } from '../../store/index.js';
 import type { Day } from '../day.js';
 
 export interface SnapshotPlace {
@@ -21,18 +22,48 @@ export interface StoredSnapshot {
  * is kept as it is, one of other files is replaced and the notice says so.
  */
 export function snapshotStage(day: Day, place: SnapshotPlace): StoredSnapshot {
+  const plan = planSnapshot(day, place);
+  return plan.kept ?? afterWrite(plan, place, writeSnapshot(place.store, plan.input));
+}
+
+/**
+ * The snapshot stage with the write on a worker thread (src/store/background-write.ts): what
+ * to keep is decided here at once, and the promise settles when the snapshot is on the disk,
+ * while this thread goes on with the day's figures. Same snapshot, notices and errors as
+ * `snapshotStage`.
+ */
+export async function snapshotStageInBackground(day: Day, place: SnapshotPlace, options: BackgroundOptions = {}): Promise<StoredSnapshot> {
+  const plan = planSnapshot(day, place);
+  return plan.kept ?? afterWrite(plan, place, await writeSnapshotInBackground(place.store, plan.input, options));
+}
+
+interface SnapshotPlan {
+  readonly asOf: string;
+  readonly input: SnapshotInput;
+  /** The stored snapshot of the same files, kept as it is; null when today's must be written. */
+  readonly kept: StoredSnapshot | null;
+  readonly replacing: SnapshotRef | undefined;
+  readonly notices: string[];
+}
+
+function planSnapshot(day: Day, place: SnapshotPlace): SnapshotPlan {
   const asOf = formatIsoDate(day.asOf);
   const notices: string[] = [];
   const pinned = pinnedPreviousNotice(place, asOf);
   if (pinned) notices.push(pinned);
   const existing = findSnapshot(place.store, place.feed, asOf);
+  const input: SnapshotInput = { feed: place.feed, asOf, results: day.feed.results, sources: day.feed.sources };
   if (existing && sameSources(existing, day.feed.sources)) {
     notices.push(`the snapshot of ${asOf} stored at ${existing.manifest.created_at} holds the same files; it was kept.`);
-    return { ref: existing, notices };
+    return { asOf, input, kept: { ref: existing, notices }, replacing: undefined, notices };
   }
-  const ref = writeSnapshot(place.store, { feed: place.feed, asOf, results: day.feed.results, sources: day.feed.sources });
-  if (existing) notices.push(`the snapshot of ${asOf} stored at ${existing.manifest.created_at} held other files; it was replaced by today's.`);
-  const later = listSnapshots(place.store, place.feed).filter((snapshot) => snapshot.asOf > asOf).map((snapshot) => snapshot.asOf);
+  return { asOf, input, kept: null, replacing: existing, notices };
+}
+
+function afterWrite(plan: SnapshotPlan, place: SnapshotPlace, ref: SnapshotRef): StoredSnapshot {
+  const notices = [...plan.notices];
+  if (plan.replacing) notices.push(`the snapshot of ${plan.asOf} stored at ${plan.replacing.manifest.created_at} held other files; it was replaced by today's.`);
+  const later = listSnapshots(place.store, place.feed).filter((snapshot) => snapshot.asOf > plan.asOf).map((snapshot) => snapshot.asOf);
   if (later.length > 0) notices.push(`the store holds later snapshots (${later.join(', ')}); this run is a re-run of an earlier day.`);
   return { ref, notices };
 }
