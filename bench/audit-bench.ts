@@ -137,6 +137,12 @@ function measure(scenario: Scenario, universe: StandardUniverse): Run[] {
   return results;
 }
 
+/** Where each stage that runs beside others is timed (bench/audit-child.ts). */
+const BESIDE: Record<string, string> = {
+  figures: 'computed on the main thread while the check workers run, inside the checks row; the metrics row is their marks',
+  store: 'the snapshot written on its own thread from the end of the checks; the store row is the wait left after the tickets',
+};
+
 function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): void {
   const first = results[0].report;
   const rows = first.navRows;
@@ -159,7 +165,7 @@ function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): 
   console.log(`  ${'peak RSS'.padEnd(10)} median ${median(rss).toFixed(0).padStart(7)} MiB best ${best(rss).toFixed(0).padStart(7)} MiB`);
   for (const name of Object.keys(first.background ?? {})) {
     const seconds = results.map((r) => r.report.background?.[name] ?? NaN);
-    console.log(`  ${name} ran on its own thread for ${median(seconds).toFixed(2)} s (median) beside the stages after the checks; its row above is the wait left after the tickets`);
+    console.log(`  ${name.padEnd(10)} ${median(seconds).toFixed(2).padStart(7)} s beside other stages (median): ${BESIDE[name] ?? 'on another thread'}`);
   }
   const peaks = stageNames.map((name) => `${name} ${median(results.map((r) => r.report.peakAfter[name] / 2 ** 20)).toFixed(0)}`);
   console.log(`  ${'peak after'.padEnd(10)} ${peaks.join(', ')} MiB (median; the stage where it rises set the peak)`);

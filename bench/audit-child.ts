@@ -13,11 +13,11 @@
 import { lastMonthEndOnOrBefore } from '../src/calendar/days.js';
 import { defaultThreads } from '../src/checks/parallel.js';
 import { loadRunConfig } from '../src/config/run-config.js';
-import { loadOptionsOf } from '../src/job/daily-job.js';
+import { beside, loadOptionsOf } from '../src/job/daily-job.js';
 import { loadDay } from '../src/job/day.js';
 import { answersStage } from '../src/job/stages/answers.js';
 import { checkStage } from '../src/job/stages/checks.js';
-import { metricsStage } from '../src/job/stages/metrics.js';
+import { computeFigures, markFigures } from '../src/job/stages/metrics.js';
 import { reconcileStage } from '../src/job/stages/reconcile.js';
 import { ticketsStage } from '../src/job/stages/tickets.js';
 import { snapshotStageInBackground } from '../src/job/stages/snapshot.js';
@@ -64,17 +64,26 @@ async function stage<T>(name: string, work: () => T | Promise<T>): Promise<T> {
 
 // The stages of the daily job (src/job/daily-job.ts), each timed on its own.
 const day = await stage('ingest', () => loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: { kind: 'store', store: config.store, feed: config.feed } }));
-const check = await stage('checks', () => checkStage(day, config.checks, { threads }));
-// As in the daily job, the snapshot is written on its own thread from here to the end of the
-// tickets stage; the 'store' row is the wait that is left, `background.store` the whole write.
+// As in the daily job, this thread computes the risk figures while the check workers run: the
+// 'checks' row holds both, `background.figures` the figures' share; the 'metrics' row is the
+// marks left for after the checks.
+const figureRequest = { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology };
+let figures: ReturnType<typeof computeFigures> = null;
+const check = await stage('checks', async () => {
+  const checking = checkStage(day, config.checks, { threads });
+  const figuresStarted = process.hrtime.bigint();
+  figures = await beside(checking, () => computeFigures(day, figureRequest));
+  background.figures = Number(process.hrtime.bigint() - figuresStarted) / 1e9;
+  return checking;
+});
+// Then the snapshot is written on its own thread to the end of the tickets stage; the 'store'
+// row is the wait that is left, `background.store` the whole write.
 const storeStarted = process.hrtime.bigint();
 const storing = snapshotStageInBackground(day, { store: config.store, feed: config.feed, previous: config.previous }).then((stored) => {
   background.store = Number(process.hrtime.bigint() - storeStarted) / 1e9;
   return stored;
 });
-const metrics = await stage('metrics', () =>
-  metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology }, check.findings),
-);
+const metrics = await stage('metrics', () => markFigures(day, figures, check.findings));
 const reconciliation = await stage('reconcile', () =>
   reconcileStage(day, check.findings, { methodology: config.methodology, tolerances: config.reconcile.tolerances, through: asOf }),
 );

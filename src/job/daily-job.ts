@@ -10,14 +10,16 @@ import type { SnapshotRef } from '../store/index.js';
 import { loadDay, type Day, type PreviousSource } from './day.js';
 import { answersStage } from './stages/answers.js';
 import { checkStage } from './stages/checks.js';
-import { metricsStage } from './stages/metrics.js';
+import { computeFigures, markFigures } from './stages/metrics.js';
 import { reconcileStage } from './stages/reconcile.js';
 import { snapshotStageInBackground } from './stages/snapshot.js';
 import { ticketsStage, type TicketsStageResult } from './stages/tickets.js';
 
 /**
- * The daily job: load → checks → metrics → reconcile → tickets → snapshot → answers, the snapshot
- * written on a worker thread from the end of the checks to the tickets. Each stage
+ * The daily job: load → checks → metrics → reconcile → tickets → snapshot → answers. Two stages
+ * run beside others: the figures are computed on this thread while worker threads run the
+ * checks, and the snapshot is written on a worker thread from the end of the checks to the
+ * tickets. Each stage
  * takes the day (and what earlier stages produced) and returns typed output; commands only
  * parse options, call the job, render and set the exit status.
  */
@@ -46,14 +48,17 @@ export async function runDailyJob(config: RunConfig, asOf: number, onStage: Stag
   onStage('reading the feed …');
   const day = await loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: previousSourceOf(config) });
   const series = day.feed.nav.ids.length;
-  onStage(`checking ${series} series, ${day.feed.rows.accepted} rows …`);
-  const check = await checkStage(day, config.checks, { threads: config.threads });
-  // The snapshot is written on another thread while this one computes, reconciles and carries the tickets.
+  onStage(`checking ${series} series, ${day.feed.rows.accepted} rows, and computing their risk figures …`);
+  const checking = checkStage(day, config.checks, { threads: config.threads });
+  // Risk figures stand at the last month-end on or before the as-of date.
+  const figureRequest = { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology };
+  // The figures need no finding (only their marks do): this thread computes them while the check workers run.
+  const figures = await beside(checking, () => computeFigures(day, figureRequest));
+  const check = await checking;
+  // The snapshot is written on another thread while this one marks the figures, reconciles and carries the tickets.
   const storing = snapshotStageInBackground(day, { store: config.store, feed: config.feed, previous: config.previous });
-  const { metrics, reconciliation, tickets } = await whileStoring(storing, () => {
-    onStage(`computing risk figures for ${series} series …`);
-    // Risk figures stand at the last month-end on or before the as-of date.
-    const metrics = metricsStage(day, { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology }, check.findings);
+  const { metrics, reconciliation, tickets } = await beside(storing, () => {
+    const metrics = markFigures(day, figures, check.findings);
     if (day.feed.vendor) onStage(`reconciling ${day.feed.vendor.length} vendor figures …`);
     // A vendor figure dated after the day cannot be judged on the day's data: it waits for its own day.
     const reconciliation = reconcileStage(day, check.findings, { methodology: config.methodology, tolerances: config.reconcile.tolerances, through: asOf });
@@ -79,17 +84,17 @@ export async function runDailyJob(config: RunConfig, asOf: number, onStage: Stag
 }
 
 /**
- * Runs `work` while the snapshot is being stored. When the work fails, its error is the one
- * told (as when the stages ran one after the other), but only once the snapshot's writer has
- * finished, so no write is left running behind the error.
+ * Runs `work` on this thread while `pending` work (check workers, the snapshot's writer) goes on
+ * elsewhere. When `work` fails, its error is the one told (as when the stages ran one after the
+ * other), but only once the pending work has settled, so nothing is left running behind it.
  */
-export async function whileStoring<T>(storing: Promise<unknown>, work: () => T): Promise<T> {
+export async function beside<T>(pending: Promise<unknown>, work: () => T): Promise<T> {
   // Awaited by the caller; this keeps a quick failure from counting as unhandled meanwhile.
-  storing.catch(() => {});
+  pending.catch(() => {});
   try {
     return work();
   } catch (error) {
-    await storing.catch(() => {});
+    await pending.catch(() => {});
     throw error;
   }
 }

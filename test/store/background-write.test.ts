@@ -106,10 +106,10 @@ describe('errors crossing threads', () => {
 
 describe('work beside a snapshot being stored', () => {
   it("tells the work's own error, and only once the write has finished", async () => {
-    const { whileStoring } = await import('../../src/job/daily-job.js');
+    const { beside } = await import('../../src/job/daily-job.js');
     const order: string[] = [];
     const storing = new Promise<void>((_, reject) => setTimeout(() => { order.push('write failed'); reject(new ConfigError('store full')); }, 20));
-    const failed = await whileStoring(storing, () => {
+    const failed = await beside(storing, () => {
       throw new InputError('reconcile failed');
     }).catch((error: Error) => { order.push(error.message); return error; });
     expect(failed).toBeInstanceOf(InputError);
@@ -117,9 +117,9 @@ describe('work beside a snapshot being stored', () => {
   });
 
   it("answers the work's result and leaves the write's failure to whoever awaits it", async () => {
-    const { whileStoring } = await import('../../src/job/daily-job.js');
+    const { beside } = await import('../../src/job/daily-job.js');
     const storing = Promise.reject(new ConfigError('store full'));
-    await expect(whileStoring(storing, () => 42)).resolves.toBe(42);
+    await expect(beside(storing, () => 42)).resolves.toBe(42);
     await expect(storing).rejects.toThrow('store full');
   });
 });

@@ -17,7 +17,20 @@ export interface FigureRequest {
  * error-level finding carries their keys as `suspect_data`.
  */
 export function metricsStage(day: Day, request: FigureRequest, findings: readonly Finding[] = []): MetricsAnswer | null {
+  return markFigures(day, computeFigures(day, request), findings);
+}
+
+/**
+ * The metrics stage's first half, which needs no finding: the figures themselves. The daily
+ * job computes them while the check workers run.
+ */
+export function computeFigures(day: Day, request: FigureRequest): MetricsAnswer | null {
   if (!day.figures) return null;
-  const answer = computeMetrics({ ...day.figures.inputs, ...request }, day.figures.calculator);
-  return markSuspectFigures(answer, findings, day.figures.inputs.master);
+  return computeMetrics({ ...day.figures.inputs, ...request }, day.figures.calculator);
+}
+
+/** The metrics stage's second half: the figures whose window holds an error-level finding marked. */
+export function markFigures(day: Day, figures: MetricsAnswer | null, findings: readonly Finding[]): MetricsAnswer | null {
+  if (!figures || !day.figures) return figures;
+  return markSuspectFigures(figures, findings, day.figures.inputs.master);
 }
