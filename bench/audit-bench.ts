@@ -62,6 +62,12 @@ const median = (values: number[]) => {
 };
 const best = (values: number[]) => Math.min(...values);
 
+/** Where each stage that runs beside others is timed (bench/audit-child.ts). */
+const BESIDE: Record<string, string> = {
+  figures: 'computed on the main thread while the check workers run, inside the checks row; the metrics row is their marks',
+  store: 'the snapshot written on its own thread from the end of the checks; the store row is the wait left after the tickets',
+};
+
 console.log(`navassay audit bench: the whole daily audit in a fresh process per run, ${runs} run${runs === 1 ? '' : 's'} per size, warm page cache`);
 console.log(`machine: ${cpus()[0]?.model.trim() ?? 'unknown cpu'}, ${cpus().length} cores, ${(totalmem() / 2 ** 30).toFixed(1)} GiB, Node ${process.version}; load average at start ${loadavg().map((l) => l.toFixed(1)).join(' ')}`);
 console.log(`date: ${new Date().toISOString().slice(0, 16)}Z; child options: ${[...nodeArgs, ...extra].join(' ') || 'none'}`);
@@ -136,12 +142,6 @@ function measure(scenario: Scenario, universe: StandardUniverse): Run[] {
   // The CSV scenario's store must survive for the Arrow scenario, so only the report folder goes.
   return results;
 }
-
-/** Where each stage that runs beside others is timed (bench/audit-child.ts). */
-const BESIDE: Record<string, string> = {
-  figures: 'computed on the main thread while the check workers run, inside the checks row; the metrics row is their marks',
-  store: 'the snapshot written on its own thread from the end of the checks; the store row is the wait left after the tickets',
-};
 
 function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): void {
   const first = results[0].report;
