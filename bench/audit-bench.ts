@@ -3,20 +3,22 @@
  * child process (bench/audit-child.ts) with a clean store and report folder, several times per
  * size. Prints per-stage seconds (median and best), NAV rows/s and MB/s of ingestion, the whole
  * process's wall time and its peak resident memory, with the machine and the run count. Then the
+ * same audit on "day two", as a team runs it every day: the store already holds the previous
+ * business day's snapshot, which the run loads and compares with (restated history). Then the
  * same audit from the Arrow snapshot the first run stored.
  *
  *   npm run build && node dist/bench/audit-bench.js                 # 10,000 series × 10 years, 3 runs
  *   node dist/bench/audit-bench.js --sizes 1000,5000,10000,20000 --years 10 --runs 3
  *   node dist/bench/audit-bench.js --sizes 2000 --runs 1 --no-arrow --node-arg --cpu-prof
  *
- * Options: --sizes (series counts), --years, --runs, --no-arrow, --cache DIR (where the universe
+ * Options: --sizes (series counts), --years, --runs, --no-day-two, --no-arrow, --cache DIR (where the universe
  * is kept), --node-arg ARG (passed to node for the child), --child-arg ARG (passed to the child,
  * e.g. `--child-arg --threads --child-arg 1`).
  *
  * The generated files are kept under bench/.cache/ (gitignored), so later runs do not regenerate.
  */
 import { spawnSync } from 'node:child_process';
-import { copyFileSync, mkdirSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { copyFileSync, linkSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, totalmem } from 'node:os';
 import { dirname, join, relative, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -30,12 +32,13 @@ const repositoryRoot = here.includes(`${join('dist', 'bench')}`) ? resolve(here,
 const child = join(here, `audit-child${import.meta.url.endsWith('.ts') ? '.ts' : '.js'}`);
 
 const args = process.argv.slice(2);
-const USAGE = `usage: node dist/bench/audit-bench.js [--sizes N,N,…] [--years Y] [--runs R] [--no-arrow] [--cache DIR]
+const USAGE = `usage: node dist/bench/audit-bench.js [--sizes N,N,…] [--years Y] [--runs R] [--no-day-two] [--no-arrow] [--cache DIR]
                                      [--node-arg ARG]… [--child-arg ARG]…
   --sizes      series counts of the standard universe (default ${STANDARD_SIZE.series})
   --years      years of business days (default ${STANDARD_SIZE.years})
   --runs       fresh processes per size; medians and bests are printed (default 3)
-  --no-arrow   skip the second audit, from the Arrow snapshot the first run stored
+  --no-day-two skip the audit with the previous business day's snapshot in the store
+  --no-arrow   skip the audit from the Arrow snapshot the first run stored
   --cache      where generated universes are kept (default bench/.cache)
   --node-arg   passed to node for each run, e.g. --node-arg --cpu-prof
   --child-arg  passed to the audit child, e.g. --child-arg --threads --child-arg 1`;
@@ -52,6 +55,7 @@ const sizes = option('--sizes', String(STANDARD_SIZE.series)).split(',').map(Num
 const years = Number(option('--years', String(STANDARD_SIZE.years)));
 const runs = Number(option('--runs', '3'));
 const withArrow = !args.includes('--no-arrow');
+const withDayTwo = !args.includes('--no-day-two');
 const extra = args.flatMap((a, i) => (a === '--child-arg' ? [args[i + 1]] : []));
 const nodeArgs = args.flatMap((a, i) => (a === '--node-arg' ? [args[i + 1]] : []));
 
@@ -76,6 +80,14 @@ interface Scenario {
   readonly label: string;
   readonly config: string;
   readonly inputBytes: number;
+  /** A stored snapshot put in the run's store before each run, as the previous business day's. */
+  readonly previous?: StoredPrevious;
+}
+
+interface StoredPrevious {
+  readonly asOf: string;
+  /** A snapshot directory, linked file by file into the store. */
+  readonly dir: string;
 }
 
 for (const series of sizes) {
@@ -83,6 +95,10 @@ for (const series of sizes) {
   const csv = scenario(universe, 'csv', csvFiles(universe));
   const results = measure(csv, universe);
   print(csv, universe, results);
+  if (withDayTwo) {
+    const dayTwo = scenario(universe, 'csv-day-two', csvFiles(universe), previousDay(universe, join(dirname(csv.config), 'store')));
+    print(dayTwo, universe, measure(dayTwo, universe));
+  }
   if (withArrow) {
     const arrow = scenario(universe, 'arrow', arrowFiles(universe, join(dirname(csv.config), 'store')));
     print(arrow, universe, measure(arrow, universe));
@@ -107,7 +123,27 @@ function arrowFiles(universe: StandardUniverse, store: string): Record<string, s
   return files;
 }
 
-function scenario(universe: StandardUniverse, label: string, files: Record<string, string>): Scenario {
+/**
+ * The snapshot the CSV runs stored, kept beside the universe as the previous business day's
+ * (2026-11-27, the Friday before the as-of Monday): the same tables, so the restated-history
+ * comparison reads every row and finds nothing, which is its usual day.
+ */
+function previousDay(universe: StandardUniverse, store: string): StoredPrevious {
+  const asOf = formatIsoDate(AS_OF - 3);
+  const stored = join(store, 'bench', formatIsoDate(AS_OF));
+  const dir = join(universe.dir, 'previous-snapshot', asOf);
+  rmSync(dir, { recursive: true, force: true });
+  mkdirSync(dir, { recursive: true });
+  for (const name of readdirSync(stored)) {
+    if (name === 'manifest.json') continue;
+    copyFileSync(join(stored, name), join(dir, name));
+  }
+  const manifest = JSON.parse(readFileSync(join(stored, 'manifest.json'), 'utf8')) as { as_of: string };
+  writeFileSync(join(dir, 'manifest.json'), JSON.stringify({ ...manifest, as_of: asOf }, null, 2));
+  return { asOf, dir };
+}
+
+function scenario(universe: StandardUniverse, label: string, files: Record<string, string>, previous?: StoredPrevious): Scenario {
   const dir = join(universe.dir, `run-${label}`);
   mkdirSync(dir, { recursive: true });
   const config = join(dir, 'navassay.yaml');
@@ -116,7 +152,7 @@ function scenario(universe: StandardUniverse, label: string, files: Record<strin
   lines.push('windows: [1y, 3y, 5y]', 'output:', '  dir: report', '  formats: [json, html]', 'fail_on: none', 'limits:', `  max_input_bytes: ${LARGEST_BENCH_INPUT}`, '');
   writeFileSync(config, lines.join('\n'));
   const inputBytes = Object.values(files).reduce((sum, path) => sum + statSync(path).size, 0);
-  return { label, config, inputBytes };
+  return { label, config, inputBytes, previous };
 }
 
 interface Run {
@@ -131,6 +167,7 @@ function measure(scenario: Scenario, universe: StandardUniverse): Run[] {
     const dir = dirname(scenario.config);
     rmSync(join(dir, 'store'), { recursive: true, force: true });
     rmSync(join(dir, 'report'), { recursive: true, force: true });
+    if (scenario.previous) linkPrevious(scenario.previous, join(dir, 'store', 'bench', scenario.previous.asOf));
     const t0 = process.hrtime.bigint();
     const loader = child.endsWith('.ts') ? ['--import', 'tsx'] : [];
     const out = spawnSync(process.execPath, [...loader, ...nodeArgs, child, scenario.config, ...extra], { encoding: 'utf8', maxBuffer: 1 << 26, cwd: repositoryRoot });
@@ -143,11 +180,23 @@ function measure(scenario: Scenario, universe: StandardUniverse): Run[] {
   return results;
 }
 
+function scenarioTitle(scenario: Scenario, report: ChildReport): string {
+  const [input] = scenario.label.split('-');
+  if (!scenario.previous) return input.toUpperCase();
+  return `${input.toUpperCase()} on day two (the store holds ${scenario.previous.asOf}'s snapshot: ${(report.previousRows ?? 0).toLocaleString('en')} NAV rows loaded and compared)`;
+}
+
+/** The previous day's snapshot in a fresh store, by hard links: a run only reads it. */
+function linkPrevious(previous: StoredPrevious, target: string): void {
+  mkdirSync(target, { recursive: true });
+  for (const name of readdirSync(previous.dir)) linkSync(join(previous.dir, name), join(target, name));
+}
+
 function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): void {
   const first = results[0].report;
   const rows = first.navRows;
   console.log(
-    `\n${universe.size.series.toLocaleString('en')} series × ${universe.size.years}y from ${scenario.label.toUpperCase()}: ${rows.toLocaleString('en')} NAV rows, ${(scenario.inputBytes / 2 ** 20).toFixed(0)} MiB of input, ` +
+    `\n${universe.size.series.toLocaleString('en')} series × ${universe.size.years}y from ${scenarioTitle(scenario, first)}: ${rows.toLocaleString('en')} NAV rows, ${(scenario.inputBytes / 2 ** 20).toFixed(0)} MiB of input, ` +
       `${first.rowsRead.toLocaleString('en')} rows read in all, ${first.findings.toLocaleString('en')} findings, ${first.figures.toLocaleString('en')} figures; ${first.threads} check thread${first.threads === 1 ? '' : 's'}`,
   );
   for (const note of first.skipped) console.log(`  skipped: ${note}`);
@@ -155,7 +204,7 @@ function print(scenario: Scenario, universe: StandardUniverse, results: Run[]): 
   for (const name of [...stageNames, 'total']) {
     const seconds = results.map((r) => r.report.stages[name]);
     let rate = '';
-    if (name === 'ingest') rate = `  ${(rows / median(seconds) / 1e6).toFixed(2)} M NAV rows/s, ${(scenario.inputBytes / median(seconds) / 1e6).toFixed(0)} MB/s (median)`;
+    if (name === 'ingest') rate = `  ${(rows / median(seconds) / 1e6).toFixed(2)} M NAV rows/s, ${(scenario.inputBytes / median(seconds) / 1e6).toFixed(0)} MB/s (median)${scenario.previous ? ", yesterday's snapshot included" : ''}`;
     const cpu = results.map((r) => r.report.cpu[name]);
     console.log(`  ${name.padEnd(10)} median ${median(seconds).toFixed(2).padStart(7)} s   best ${best(seconds).toFixed(2).padStart(7)} s   CPU median ${median(cpu).toFixed(2).padStart(7)} s${rate}`);
   }

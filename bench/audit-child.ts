@@ -29,6 +29,8 @@ export interface ChildReport {
   readonly threads: number;
   readonly skipped: string[];
   readonly navRows: number;
+  /** NAV rows of the previous day's snapshot the run loaded from the store (0 without one). */
+  readonly previousRows?: number;
   readonly rowsRead: number;
   readonly findings: number;
   readonly figures: number;
@@ -104,6 +106,7 @@ const report: ChildReport = {
   threads,
   skipped,
   navRows: day.feed.nav.dates.length,
+  previousRows: day.previous?.dates.length ?? 0,
   rowsRead: day.feed.rows.read,
   findings: check.findings.length,
   figures: metrics?.metrics.length ?? 0,
