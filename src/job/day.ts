@@ -1,11 +1,10 @@
 import { formatIsoDate } from '../calendar/days.js';
-import { toSeriesFrame } from '../ingest/convert.js';
 import { loadFeed, loadPreviousNav, type FeedPaths, type LoadedFeed, type LoadOptions } from '../ingest/feed.js';
 import type { FeedProfile } from '../ingest/profile.js';
 import { MetricCalculator, type MetricInputs } from '../metrics/compute.js';
 import { adjustForCorporateActions } from '../series/adjust.js';
 import type { SeriesFrame } from '../series/frame.js';
-import { previousReadableSnapshot } from '../store/index.js';
+import { previousNav } from '../store/previous-nav.js';
 
 /**
  * One day of a feed, loaded once and shared by every stage of the daily job. Each rule that
@@ -96,10 +95,10 @@ async function loadPrevious(source: PreviousSource, asOf: number, load: LoadOpti
     case 'file':
       return { nav: await loadPreviousNav(source.path, source.profile, load?.limits), skipped: [] };
     case 'store': {
-      const { snapshot, skipped } = previousReadableSnapshot(source.store, source.feed, formatIsoDate(asOf));
+      // Only the NAV table of the previous snapshot is compared with, so only it is read.
+      const { nav, skipped } = previousNav(source.store, source.feed, formatIsoDate(asOf));
       for (const entry of skipped) process.stderr.write(`navassay: skipping the stored snapshot of ${entry.asOf}: ${entry.reason}\n`);
-      const nav = snapshot?.tables.nav;
-      return { nav: nav && toSeriesFrame(nav, 'nav'), skipped: skipped.map((entry) => ({ as_of: entry.asOf, reason: entry.reason })) };
+      return { nav, skipped: skipped.map((entry) => ({ as_of: entry.asOf, reason: entry.reason })) };
     }
   }
 }
