@@ -4,7 +4,7 @@ import type { FeedProfile } from '../ingest/profile.js';
 import { MetricCalculator, type MetricInputs } from '../metrics/compute.js';
 import { adjustForCorporateActions } from '../series/adjust.js';
 import type { SeriesFrame } from '../series/frame.js';
-import { previousNav } from '../store/previous-nav.js';
+import { previousNav, previousNavInBackground, type PreviousNav as StoredPreviousNav } from '../store/previous-nav.js';
 
 /**
  * One day of a feed, loaded once and shared by every stage of the daily job. Each rule that
@@ -53,8 +53,11 @@ export interface DayRequest {
 
 /** The load stage: reads the files and shapes them once for every later stage. */
 export async function loadDay(request: DayRequest): Promise<Day> {
-  const feed = await loadFeed(request.paths, request.load);
-  const { nav: previous, skipped } = await loadPrevious(request.previous ?? { kind: 'none' }, request.asOf, request.load);
+  const source = request.previous ?? { kind: 'none' };
+  // The store's previous NAVs are read on another thread while today's files are parsed here.
+  const stored = source.kind === 'store' ? startReadingStoredPrevious(source, request.asOf) : null;
+  const feed = await loadFeedBeside(stored, request);
+  const { nav: previous, skipped } = stored ? reportSkipped(await stored) : await loadPrevious(source, request.asOf, request.load);
   return { asOf: request.asOf, feed, previous, skippedSnapshots: skipped, figures: figureSource(feed, request.constantRate) };
 }
 
@@ -94,11 +97,33 @@ async function loadPrevious(source: PreviousSource, asOf: number, load: LoadOpti
       return { skipped: [] };
     case 'file':
       return { nav: await loadPreviousNav(source.path, source.profile, load?.limits), skipped: [] };
-    case 'store': {
-      // Only the NAV table of the previous snapshot is compared with, so only it is read.
-      const { nav, skipped } = previousNav(source.store, source.feed, formatIsoDate(asOf));
-      for (const entry of skipped) process.stderr.write(`navassay: skipping the stored snapshot of ${entry.asOf}: ${entry.reason}\n`);
-      return { nav, skipped: skipped.map((entry) => ({ as_of: entry.asOf, reason: entry.reason })) };
-    }
+    case 'store':
+      return reportSkipped(previousNav(source.store, source.feed, formatIsoDate(asOf)));
   }
+}
+
+/**
+ * Only the NAV table of the previous snapshot is compared with, so only it is read: on a worker
+ * thread for a large store (src/store/previous-nav.ts).
+ */
+function startReadingStoredPrevious(source: Extract<PreviousSource, { kind: 'store' }>, asOf: number): Promise<StoredPreviousNav> {
+  const reading = previousNavInBackground(source.store, source.feed, formatIsoDate(asOf));
+  reading.catch(() => {}); // awaited by loadDay once today's files are read
+  return reading;
+}
+
+/** Today's files; when they fail, their error is told once the previous NAVs' reader has finished. */
+async function loadFeedBeside(stored: Promise<unknown> | null, request: DayRequest): Promise<LoadedFeed> {
+  try {
+    return await loadFeed(request.paths, request.load);
+  } catch (error) {
+    await stored?.catch(() => {});
+    throw error;
+  }
+}
+
+/** Each damaged snapshot passed over is told once on standard error, and kept for the answer. */
+function reportSkipped({ nav, skipped }: StoredPreviousNav): PreviousNav {
+  for (const entry of skipped) process.stderr.write(`navassay: skipping the stored snapshot of ${entry.asOf}: ${entry.reason}\n`);
+  return { nav, skipped: skipped.map((entry) => ({ as_of: entry.asOf, reason: entry.reason })) };
 }

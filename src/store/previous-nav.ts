@@ -5,6 +5,8 @@ import { arrowToCanonical } from '../ingest/arrow-table.js';
 import { toSeriesFrame } from '../ingest/convert.js';
 import { cutInput, InputError, NavassayError } from '../ingest/errors.js';
 import { buildSeriesFrame, type SeriesFrame } from '../series/frame.js';
+import { siblingModuleWorker } from '../threads/module-worker.js';
+import { rebuildThrown, type ThrownElsewhere } from '../threads/thrown.js';
 import { sha256Bytes } from './durable-files.js';
 import type { SnapshotFile } from './manifest.js';
 import { scanSnapshots, type UnreadableSnapshot } from './snapshot-store.js';
@@ -121,3 +123,40 @@ function readShared(path: string): Buffer {
 function byDate(entries: UnreadableSnapshot[]): UnreadableSnapshot[] {
   return entries.sort((a, b) => (a.asOf < b.asOf ? -1 : a.asOf > b.asOf ? 1 : 0));
 }
+
+/** Below this many stored NAV rows the previous NAVs are read on the calling thread. */
+const MIN_ROWS_FOR_BACKGROUND = 200_000;
+
+/**
+ * `previousNav` on a worker thread, so the previous day's table is read, checked and framed
+ * while this thread parses today's files. The frame's columns come back as the same shared
+ * memory; a small store is read here at once. It never throws: its errors reject the promise.
+ */
+export function previousNavInBackground(storeDir: string, feed: string, asOfExclusive: string, minRows = MIN_ROWS_FOR_BACKGROUND): Promise<PreviousNav> {
+  try {
+    if (latestNavRows(storeDir, feed, asOfExclusive) < minRows) return Promise.resolve(previousNav(storeDir, feed, asOfExclusive));
+  } catch (error) {
+    return Promise.reject(error);
+  }
+  return new Promise((resolve, reject) => {
+    const worker = siblingModuleWorker(import.meta.url, 'previous-nav-worker', { workerData: { storeDir, feed, asOfExclusive } });
+    let answered = false;
+    worker.once('message', (outcome: PreviousNavOutcome) => {
+      answered = true;
+      if ('previous' in outcome) resolve(outcome.previous);
+      else reject(rebuildThrown(outcome.thrown));
+    });
+    worker.once('error', reject);
+    worker.once('exit', (code) => {
+      if (!answered) reject(new Error(`the reader of the previous snapshot stopped (exit code ${code}) before answering`));
+    });
+  });
+}
+
+/** The NAV rows of the latest earlier snapshot, as its manifest counts them. */
+function latestNavRows(storeDir: string, feed: string, asOfExclusive: string): number {
+  const latest = scanSnapshots(storeDir, feed).snapshots.filter((snapshot) => snapshot.asOf < asOfExclusive).at(-1);
+  return latest?.manifest.files.find((file) => file.kind === 'nav')?.rows.accepted ?? 0;
+}
+
+export type PreviousNavOutcome = { readonly previous: PreviousNav } | { readonly thrown: ThrownElsewhere };

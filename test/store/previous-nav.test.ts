@@ -5,7 +5,7 @@ import fc from 'fast-check';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { arrowIpcToCanonical } from '../../src/ingest/arrow-table.js';
 import { toSeriesFrame } from '../../src/ingest/convert.js';
-import { previousNav, readStoredNavFrame } from '../../src/store/previous-nav.js';
+import { previousNav, previousNavInBackground, readStoredNavFrame } from '../../src/store/previous-nav.js';
 import { readManifest, writeSnapshot, type SnapshotInput } from '../../src/store/index.js';
 import { tableFromRows } from '../ingest-formats/tables.js';
 import type { SeriesFrame } from '../../src/series/frame.js';
@@ -106,5 +106,34 @@ describe('the previous NAV frame read from the store', () => {
     expect(previous.asOf).toBe('2026-03-02');
     expect(previous.skipped[0].reason).toContain('it is missing');
     expect(previousNav(join(work, 'store'), 'f', '2026-03-02')).toEqual({ skipped: [] });
+  });
+});
+
+describe('the previous NAVs read on a worker thread', () => {
+  it('answer what the calling thread reads, damaged snapshots included, with the columns still shared', async () => {
+    store('2026-03-02', [{ series_id: 'NVA0001', date: '2026-03-02', nav: 100 }, { series_id: 'NVA0002', date: '2026-03-02', nav: 7 }]);
+    const damaged = store('2026-03-03', [{ series_id: 'NVA0001', date: '2026-03-03', nav: 101 }]);
+    rmSync(join(damaged, 'nav.arrow'));
+    // minRows 0: a small store would otherwise be read on this thread.
+    const onWorker = await previousNavInBackground(join(work, 'store'), 'f', '2026-03-04', 0);
+    const here = previousNav(join(work, 'store'), 'f', '2026-03-04');
+    expect(plain(onWorker.nav!)).toEqual(plain(here.nav!));
+    expect([...onWorker.nav!.indexById]).toEqual([...here.nav!.indexById]);
+    expect(onWorker.skipped).toEqual(here.skipped);
+    expect(onWorker.asOf).toBe('2026-03-02');
+    expect(onWorker.nav!.values.buffer).toBeInstanceOf(SharedArrayBuffer);
+  });
+
+  it('reject with the error class the calling thread would throw', async () => {
+    await expect(previousNavInBackground(join(work, 'store'), '../outside', '2026-03-04', 0)).rejects.toThrow();
+    let here: unknown;
+    try {
+      previousNav(join(work, 'store'), '../outside', '2026-03-04');
+    } catch (error) {
+      here = error;
+    }
+    const there = await previousNavInBackground(join(work, 'store'), '../outside', '2026-03-04', 0).catch((error: unknown) => error);
+    expect(there).toBeInstanceOf((here as object).constructor);
+    expect((there as Error).message).toBe((here as Error).message);
   });
 });
