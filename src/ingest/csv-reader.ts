@@ -1,5 +1,6 @@
 import { BooleanBuilder, DateBuilder, NumberBuilder, TextBuilder, type ColumnBuilder } from './column-builders.js';
 import { CsvRowScanner } from './csv-rows.js';
+import { sharedInt32Array } from './shared-columns.js';
 import { outsideRange, rangeReason, shownColumnNames } from './columnar-ingest.js';
 import { resolveDateFormat, UNSETTLED } from './date-order.js';
 import { InputError, quoteInput } from './errors.js';
@@ -269,7 +270,8 @@ class RowReader {
   private accepted = 0;
   private read = 0;
   private readonly rejected: RejectedRow[] = [];
-  private lines = new Int32Array(1024);
+  /** On shared memory, as the frame's other columns (shared-columns.ts). */
+  private lines = sharedInt32Array(1024);
 
   constructor(
     private bytes: Buffer,
@@ -654,7 +656,7 @@ class RowReader {
 
   private growTo(rows: number): void {
     const size = Math.max(rows, this.lines.length * 2);
-    const lines = new Int32Array(size);
+    const lines = sharedInt32Array(size);
     lines.set(this.lines);
     this.lines = lines;
     for (const plan of this.plans) {
