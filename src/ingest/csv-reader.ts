@@ -5,7 +5,7 @@ import { outsideRange, rangeReason, shownColumnNames } from './columnar-ingest.j
 import { resolveDateFormat, UNSETTLED } from './date-order.js';
 import { InputError, quoteInput } from './errors.js';
 import { cleanIdentifier, type IdentifierMode } from './identifiers.js';
-import { FileWindow, WINDOW_BYTES, wholeWindow, type CsvWindow } from './csv-window.js';
+import { BACKGROUND_HASH_BYTES, FileWindow, WINDOW_BYTES, wholeWindow, type CsvWindow } from './csv-window.js';
 import { DEFAULT_READ_LIMITS, limitsForKind, type ReadLimits } from './limits.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
@@ -66,8 +66,9 @@ export function readCsvSource(
   profile: FeedProfile,
   limits: ReadLimits = DEFAULT_READ_LIMITS,
   windowBytes = WINDOW_BYTES,
+  backgroundHashBytes = BACKGROUND_HASH_BYTES,
 ): { result: IngestResult; sha256: string } {
-  const window = FileWindow.open(path, limits.maxInputBytes, windowBytes);
+  const window = FileWindow.open(path, limits.maxInputBytes, windowBytes, backgroundHashBytes);
   try {
     const result = readCsvWindow(window, path, kind, profile, limits);
     return { result, sha256: window.sha256() };
