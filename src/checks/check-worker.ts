@@ -1,6 +1,7 @@
 /**
  * A worker thread of the parallel check runner (src/checks/parallel.ts): runs every
- * series-level check over each range of series dealt to it, and posts the findings range by range.
+ * series-level check over each range of series dealt to it, reading the frames on shared
+ * memory, and posts the findings range by range.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { BusinessCalendars } from '../calendar/business-calendar.js';
@@ -23,5 +24,5 @@ const input = {
 };
 // The settings were validated on the main thread; the worker only resolves them.
 const check = seriesChecker(input, new SettingsResolver(job.settings), job.feedLatest);
-const answer: WorkerAnswer = job.numbers.map((range, j) => [range, check(job.cuts[j], job.cuts[j + 1])]);
+const answer: WorkerAnswer = job.numbers.map((range, j) => [range, check(job.ranges[j][0], job.ranges[j][1])]);
 parentPort!.postMessage(answer);

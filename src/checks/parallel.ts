@@ -2,24 +2,27 @@
  * The check runner on worker threads: the series are cut into many consecutive ranges of about
  * equal row counts, dealt to the workers in turn (range r to worker r mod threads), so a
  * stretch of costly series is shared by every worker instead of holding one of them up at the
- * end. Each worker receives a copy of its ranges' rows, moved (not copied again) into it and
- * freed with it, runs every series-level check over each range (src/checks/check-worker.ts)
- * while this thread runs the feed-level checks, and answers the findings of each range. The
- * findings are put back in range order and sorted exactly as `runChecks` sorts them: same
- * findings as `runChecks`, in the same order (test/checks/parallel.test.ts).
+ * end. Every worker receives the whole frame on shared memory (the readers build frames on
+ * SharedArrayBuffers, src/ingest/shared-columns.ts, so the rows are neither copied nor moved;
+ * a frame made of ordinary arrays is copied once onto shared memory for all the workers) and
+ * the list of its ranges, runs every series-level check over each range
+ * (src/checks/check-worker.ts) while this thread runs the feed-level checks, and answers the
+ * findings of each range. The findings are put back in range order and sorted exactly as
+ * `runChecks` sorts them: same findings as `runChecks`, in the same order
+ * (test/checks/parallel.test.ts).
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
 import type { Finding } from '../findings.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
-import type { SeriesFrame } from '../series/frame.js';
+import { sharedFrame, type SeriesFrame } from '../series/frame.js';
 import type { CalendarDescription } from '../calendar/business-calendar.js';
 import { compareFindings, latestDateUpTo, runChecks, runFeedChecks, type CheckInput } from './run.js';
 import { parseCheckSettings, SettingsResolver, type CheckSettings } from './settings.js';
 
-/** A frame as plain arrays, which a worker receives without its `indexById` map. */
+/** A frame on shared memory, which a worker receives without its `indexById` map. */
 export interface FrameData {
-  readonly ids: string[];
+  readonly ids: readonly string[];
   readonly offsets: Int32Array;
   readonly dates: Int32Array;
   readonly values: Float64Array;
@@ -28,7 +31,7 @@ export interface FrameData {
 
 /** What one worker needs for the ranges of series dealt to it. */
 export interface WorkerInput {
-  /** The worker's series, range after range. */
+  /** The whole feed; the worker checks only the series of its ranges. */
   readonly nav: FrameData;
   readonly benchmarks?: FrameData;
   readonly previous?: FrameData;
@@ -38,9 +41,9 @@ export interface WorkerInput {
   readonly asOf: number;
   readonly feedLatest: number | undefined;
   readonly settings: CheckSettings;
-  /** The worker's ranges: range `numbers[j]` is its series `cuts[j]` to `cuts[j + 1] − 1`. */
+  /** The worker's ranges: range `numbers[j]` is the series `ranges[j][0]` to `ranges[j][1] − 1` of `nav`. */
   readonly numbers: number[];
-  readonly cuts: number[];
+  readonly ranges: Array<[first: number, end: number]>;
 }
 
 /** What a worker answers: the findings of each of its ranges, by range number. */
@@ -76,19 +79,18 @@ export async function runChecksInParallel(input: CheckInput, settings: CheckSett
   if (threads <= 1 || small) return runChecks(input, parsed);
   const feedLatest = latestDateUpTo(input.nav, input.asOf);
   const calendars = input.calendars.describe();
-  const benchmarks = input.benchmarks && framePart(input.benchmarks, indicesFrom(0, input.benchmarks.ids.length));
+  const nav = frameData(sharedFrame(input.nav));
+  const benchmarks = input.benchmarks && frameData(sharedFrame(input.benchmarks));
+  const previous = input.previous && frameData(sharedFrame(input.previous));
   const ranges = seriesRanges(input.nav, threads * RANGES_PER_THREAD);
   const pending = Array.from({ length: threads }, (_, worker) => {
     const numbers = ranges.map((_, r) => r).filter((r) => r % threads === worker);
     const mine = numbers.map((r) => ranges[r]);
-    const cuts = [0];
-    for (const [first, end] of mine) cuts.push(cuts[cuts.length - 1] + end - first);
-    const nav = framePart(input.nav, mine.flatMap(([first, end]) => indicesFrom(first, end)));
-    const ids = new Set(nav.ids);
+    const ids = new Set(mine.flatMap(([first, end]) => input.nav.ids.slice(first, end)));
     const job: WorkerInput = {
       nav,
       benchmarks,
-      previous: input.previous && previousPart(input.previous, ids),
+      previous,
       master: (input.master ?? []).filter((record) => ids.has(record.series_id)),
       actions: (input.actions ?? []).filter((action) => ids.has(action.series_id)),
       calendars,
@@ -96,7 +98,7 @@ export async function runChecksInParallel(input: CheckInput, settings: CheckSett
       feedLatest,
       settings: parsed,
       numbers,
-      cuts,
+      ranges: mine,
     };
     return runWorker(job);
   });
@@ -126,35 +128,10 @@ export function seriesRanges(frame: SeriesFrame, threads: number): Array<[number
   return ranges;
 }
 
-/** first, first + 1, …, end − 1. */
-function indicesFrom(first: number, end: number): number[] {
-  return Array.from({ length: end - first }, (_, k) => first + k);
-}
-
-/** The series of `frame` whose ids are in `ids`, in the frame's order. */
-function previousPart(frame: SeriesFrame, ids: ReadonlySet<string>): FrameData {
-  const kept: number[] = [];
-  for (let i = 0; i < frame.ids.length; i++) if (ids.has(frame.ids[i])) kept.push(i);
-  return framePart(frame, kept);
-}
-
-/** The series `chosen` (frame indices) of a frame, in that order, copied into fresh arrays the worker can take over. */
-function framePart(frame: SeriesFrame, chosen: readonly number[]): FrameData {
-  let rows = 0;
-  for (const i of chosen) rows += frame.offsets[i + 1] - frame.offsets[i];
-  const offsets = new Int32Array(chosen.length + 1);
-  const dates = new Int32Array(rows);
-  const values = new Float64Array(rows);
-  const lines = new Int32Array(rows);
-  chosen.forEach((i, k) => {
-    const start = frame.offsets[i];
-    const stop = frame.offsets[i + 1];
-    dates.set(frame.dates.subarray(start, stop), offsets[k]);
-    values.set(frame.values.subarray(start, stop), offsets[k]);
-    lines.set(frame.lines.subarray(start, stop), offsets[k]);
-    offsets[k + 1] = offsets[k] + stop - start;
-  });
-  return { ids: chosen.map((i) => frame.ids[i]), offsets, dates, values, lines };
+/** The frame's arrays without its map, which the worker rebuilds from the ids. */
+function frameData(frame: SeriesFrame): FrameData {
+  const { ids, offsets, dates, values, lines } = frame;
+  return { ids, offsets, dates, values, lines };
 }
 
 /**
@@ -170,11 +147,9 @@ function workerScript(): { script: string | URL; eval: boolean } {
 
 function runWorker(job: WorkerInput): Promise<WorkerAnswer> {
   const { script, eval: evaluate } = workerScript();
-  // The worker's rows were copied for it alone, so they move instead of being copied again.
-  const frames = job.previous ? [job.nav, job.previous] : [job.nav];
-  const transfer = frames.flatMap((f) => [f.offsets.buffer, f.dates.buffer, f.values.buffer, f.lines.buffer] as ArrayBuffer[]);
+  // The frames' arrays are on shared memory: the worker sees the same rows, nothing is copied.
   return new Promise((resolve, reject) => {
-    const worker = new Worker(script, { eval: evaluate, workerData: job, transferList: transfer });
+    const worker = new Worker(script, { eval: evaluate, workerData: job });
     let answered = false;
     worker.once('message', (answer: WorkerAnswer) => {
       answered = true;

@@ -6,6 +6,7 @@ import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import type { FeedProfile } from './profile.js';
 import type { FileKind } from './schema.js';
 import { NULL_BOOLEAN, NULL_DATE, type IngestResult } from './table.js';
+import { sharedFloat64Array, sharedInt32Array } from './shared-columns.js';
 
 const MILLIS_PER_DAY = 86_400_000;
 
@@ -87,7 +88,7 @@ function nullTest(data: Data): ((index: number) => boolean) | null {
 }
 
 function arrowDays(vector: Vector): Int32Array {
-  const days = new Int32Array(vector.length);
+  const days = sharedInt32Array(vector.length);
   const type = vector.type as DataType;
   const millisPerUnit = DataType.isTimestamp(type) ? timestampMillisPerUnit(type.unit) : 1;
   eachChunk(vector, (data, firstRow) => {
@@ -119,7 +120,7 @@ function timestampMillisPerUnit(unit: TimeUnit): number {
 }
 
 function arrowNumbers(vector: Vector): Float64Array {
-  const numbers = new Float64Array(vector.length);
+  const numbers = sharedFloat64Array(vector.length);
   const type = vector.type as DataType;
   // Float16 stores raw half-precision bits and Decimal stores 128-bit words: only `get` decodes them.
   const decodesItself = DataType.isDecimal(type) || (DataType.isFloat(type) && type.precision === 0);

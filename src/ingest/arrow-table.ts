@@ -21,6 +21,7 @@ import type { SourceColumn } from './columnar-ingest.js';
 import { InputError } from './errors.js';
 import { CANONICAL_COLUMNS, type FileKind } from './schema.js';
 import { NULL_BOOLEAN, NULL_DATE, type CanonicalTable, type Column } from './table.js';
+import { sharedInt32Array } from './shared-columns.js';
 
 /**
  * Canonical tables as Arrow tables, the form snapshots are stored in and tests and the bench
@@ -138,14 +139,26 @@ export function arrowToCanonical(kind: FileKind, arrow: Table, fileName = `${kin
     columns[field.name] = sourceToColumn(arrowSourceColumn(arrow.getChild(field.name)!, field.name, fileName));
   }
   const lineVector = arrow.getChild(LINE_COLUMN);
-  const lines = lineVector ? copyOfLines(lineVector) : Int32Array.from({ length: arrow.numRows }, (_, row) => row + 1);
+  const lines = lineVector ? copyOfLines(lineVector) : recordNumbers(arrow.numRows);
   return { kind, length: arrow.numRows, lines, columns };
 }
 
-/** The stored line column as a copy of its own (a view would keep the whole file's bytes alive). */
+/**
+ * The stored line column as a copy of its own (a view would keep the whole file's bytes alive),
+ * on shared memory as the frame's other columns (shared-columns.ts).
+ */
 function copyOfLines(vector: Vector): Int32Array {
   const array = vector.toArray() as ArrayLike<number>;
-  return array instanceof Int32Array ? array.slice() : Int32Array.from(array);
+  const lines = sharedInt32Array(array.length);
+  lines.set(array);
+  return lines;
+}
+
+/** 1, 2, …, rows: the lines of a table stored without its line column. */
+function recordNumbers(rows: number): Int32Array {
+  const lines = sharedInt32Array(rows);
+  for (let row = 0; row < rows; row++) lines[row] = row + 1;
+  return lines;
 }
 
 function sourceToColumn(source: SourceColumn): Column {

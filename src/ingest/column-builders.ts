@@ -1,3 +1,4 @@
+import { isShared, sharedFloat64Array, sharedInt32Array, sharedPrefix, type SharedColumn } from './shared-columns.js';
 import type { Column, } from './table.js';
 import { NULL_BOOLEAN, NULL_DATE } from './table.js';
 
@@ -11,9 +12,13 @@ export interface ColumnBuilder {
   finish(length: number): Column;
 }
 
-/** The filled part of a column: a view when it is most of the array, else a compact copy. */
+/**
+ * The filled part of a column: a view when it is most of the array, else a compact copy (on
+ * shared memory when the array is).
+ */
 function filled<T extends Int32Array | Float64Array | Uint8Array>(array: T, length: number): T {
-  return (length * 4 >= array.length * 3 ? array.subarray(0, length) : array.slice(0, length)) as T;
+  if (length * 4 >= array.length * 3) return array.subarray(0, length) as T;
+  return (isShared(array) ? sharedPrefix(array as SharedColumn, length) : array.slice(0, length)) as T;
 }
 
 function grow<T extends Int32Array | Float64Array | Uint8Array>(array: T, rows: number, make: (n: number) => T): T {
@@ -23,10 +28,11 @@ function grow<T extends Int32Array | Float64Array | Uint8Array>(array: T, rows: 
   return bigger;
 }
 
+/** Dates and numbers are series frame columns, so they live on shared memory (shared-columns.ts). */
 export class DateBuilder implements ColumnBuilder {
-  values = new Int32Array(1024);
+  values = sharedInt32Array(1024);
   ensureCapacity(rows: number) {
-    this.values = grow(this.values, rows, (n) => new Int32Array(n));
+    this.values = grow(this.values, rows, sharedInt32Array);
   }
   setMissing(row: number) {
     this.values[row] = NULL_DATE;
@@ -37,9 +43,9 @@ export class DateBuilder implements ColumnBuilder {
 }
 
 export class NumberBuilder implements ColumnBuilder {
-  values = new Float64Array(1024);
+  values = sharedFloat64Array(1024);
   ensureCapacity(rows: number) {
-    this.values = grow(this.values, rows, (n) => new Float64Array(n));
+    this.values = grow(this.values, rows, sharedFloat64Array);
   }
   setMissing(row: number) {
     this.values[row] = NaN;

@@ -8,6 +8,7 @@ import type { RejectedRow } from './records.js';
 import { numberStyle, parseBooleanWord, parseDateText, parseNumberText, type NumberStyle } from './scalars.js';
 import { CANONICAL_COLUMNS, type ColumnSpec, type FileKind } from './schema.js';
 import { NULL_BOOLEAN, NULL_DATE, type CanonicalTable, type Column, type IngestResult } from './table.js';
+import { sharedFloat64Array, sharedInt32Array } from './shared-columns.js';
 
 /**
  * The format-neutral half of reading a columnar file (Arrow IPC, Parquet). A format reader only
@@ -208,14 +209,14 @@ function toDates(source: SourceColumn, format: DateFormat, context: ConversionCo
   const text = toText(source);
   const resolved = resolveDateFormat(text.dictionary, format, text.codes, context);
   const daysOfCode = Int32Array.from(text.dictionary, (entry) => parseDateText(entry, resolved) ?? NULL_DATE);
-  return { type: 'date', values: mapCodes(text.codes, daysOfCode, NULL_DATE, Int32Array) };
+  return { type: 'date', values: mapCodes(text.codes, daysOfCode, NULL_DATE, sharedInt32Array) };
 }
 
 function toNumbers(source: SourceColumn, style: NumberStyle): Column {
   if (source.form === 'number') return { type: 'number', values: source.values };
-  if (source.form !== 'text') return { type: 'number', values: new Float64Array(rowCountOf(source)).fill(NaN) };
+  if (source.form !== 'text') return { type: 'number', values: sharedFloat64Array(rowCountOf(source)).fill(NaN) };
   const valueOfCode = Float64Array.from(source.dictionary, (entry) => parseNumberText(entry, style));
-  return { type: 'number', values: mapCodes(source.codes, valueOfCode, NaN, Float64Array) };
+  return { type: 'number', values: mapCodes(source.codes, valueOfCode, NaN, sharedFloat64Array) };
 }
 
 function toBooleans(source: SourceColumn): Column {
@@ -225,7 +226,7 @@ function toBooleans(source: SourceColumn): Column {
     source.values.forEach((value, row) => (values[row] = value === 1 ? 1 : value === 0 ? 0 : NULL_BOOLEAN));
   } else if (source.form === 'text') {
     const valueOfCode = Uint8Array.from(source.dictionary, (word) => parseBooleanWord(word) ?? NULL_BOOLEAN);
-    return { type: 'boolean', values: mapCodes(source.codes, valueOfCode, NULL_BOOLEAN, Uint8Array) };
+    return { type: 'boolean', values: mapCodes(source.codes, valueOfCode, NULL_BOOLEAN, (length) => new Uint8Array(length)) };
   }
   return { type: 'boolean', values };
 }
@@ -235,9 +236,9 @@ function mapCodes<T extends Int32Array | Float64Array | Uint8Array>(
   codes: Int32Array,
   valueOfCode: T,
   missing: number,
-  Output: { new (length: number): T },
+  make: (length: number) => T,
 ): T {
-  const values = new Output(codes.length);
+  const values = make(codes.length);
   for (let row = 0; row < codes.length; row++) values[row] = codes[row] < 0 ? missing : valueOfCode[codes[row]];
   return values;
 }
@@ -362,7 +363,8 @@ function assembleResult(file: ColumnarFile, kind: FileKind, found: readonly Foun
     if (spec.keepsText) columns[`${spec.name}_text`] = keep ? gatherColumn(toText(source), keep) : toText(source);
   }
   const length = file.rowCount - rejected.length;
-  const lines = new Int32Array(length);
+  // Dates, numbers and lines are series frame columns: on shared memory (shared-columns.ts).
+  const lines = sharedInt32Array(length);
   if (keep) for (let i = 0; i < length; i++) lines[i] = lineOfRecord(keep[i]);
   else for (let i = 0; i < length; i++) lines[i] = lineOfRecord(i);
   const table: CanonicalTable = { kind, length, lines, columns };
@@ -415,22 +417,22 @@ function problemReason({ spec, sourceName, source, converted, complaints }: Foun
 function gatherColumn(column: Column, keep: Int32Array): Column {
   switch (column.type) {
     case 'date':
-      return { type: 'date', values: gather(column.values, keep, Int32Array) };
+      return { type: 'date', values: gather(column.values, keep, sharedInt32Array) };
     case 'number':
-      return { type: 'number', values: gather(column.values, keep, Float64Array) };
+      return { type: 'number', values: gather(column.values, keep, sharedFloat64Array) };
     case 'boolean':
-      return { type: 'boolean', values: gather(column.values, keep, Uint8Array) };
+      return { type: 'boolean', values: gather(column.values, keep, (length) => new Uint8Array(length)) };
     case 'text':
-      return compactDictionary(gather(column.codes, keep, Int32Array), column.dictionary);
+      return compactDictionary(gather(column.codes, keep, (length) => new Int32Array(length)), column.dictionary);
   }
 }
 
 function gather<T extends Int32Array | Float64Array | Uint8Array>(
   values: T,
   keep: Int32Array,
-  Output: { new (length: number): T },
+  make: (length: number) => T,
 ): T {
-  const out = new Output(keep.length);
+  const out = make(keep.length);
   for (let i = 0; i < keep.length; i++) out[i] = values[keep[i]];
   return out;
 }

@@ -1,10 +1,11 @@
 import { BooleanBuilder, DateBuilder, NumberBuilder, TextBuilder, type ColumnBuilder } from './column-builders.js';
 import { CsvRowScanner } from './csv-rows.js';
+import { sharedInt32Array } from './shared-columns.js';
 import { outsideRange, rangeReason, shownColumnNames } from './columnar-ingest.js';
 import { resolveDateFormat, UNSETTLED } from './date-order.js';
 import { InputError, quoteInput } from './errors.js';
 import { cleanIdentifier, type IdentifierMode } from './identifiers.js';
-import { FileWindow, WINDOW_BYTES, wholeWindow, type CsvWindow } from './csv-window.js';
+import { BACKGROUND_HASH_BYTES, FileWindow, WINDOW_BYTES, wholeWindow, type CsvWindow } from './csv-window.js';
 import { DEFAULT_READ_LIMITS, limitsForKind, type ReadLimits } from './limits.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
@@ -65,8 +66,9 @@ export function readCsvSource(
   profile: FeedProfile,
   limits: ReadLimits = DEFAULT_READ_LIMITS,
   windowBytes = WINDOW_BYTES,
+  backgroundHashBytes = BACKGROUND_HASH_BYTES,
 ): { result: IngestResult; sha256: string } {
-  const window = FileWindow.open(path, limits.maxInputBytes, windowBytes);
+  const window = FileWindow.open(path, limits.maxInputBytes, windowBytes, backgroundHashBytes);
   try {
     const result = readCsvWindow(window, path, kind, profile, limits);
     return { result, sha256: window.sha256() };
@@ -269,7 +271,8 @@ class RowReader {
   private accepted = 0;
   private read = 0;
   private readonly rejected: RejectedRow[] = [];
-  private lines = new Int32Array(1024);
+  /** On shared memory, as the frame's other columns (shared-columns.ts). */
+  private lines = sharedInt32Array(1024);
 
   constructor(
     private bytes: Buffer,
@@ -654,7 +657,7 @@ class RowReader {
 
   private growTo(rows: number): void {
     const size = Math.max(rows, this.lines.length * 2);
-    const lines = new Int32Array(size);
+    const lines = sharedInt32Array(size);
     lines.set(this.lines);
     this.lines = lines;
     for (const plan of this.plans) {

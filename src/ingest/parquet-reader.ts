@@ -13,6 +13,7 @@ import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import type { FeedProfile } from './profile.js';
 import type { FileKind } from './schema.js';
 import { NULL_BOOLEAN, NULL_DATE, type IngestResult } from './table.js';
+import { sharedFloat64Array, sharedInt32Array } from './shared-columns.js';
 
 const MILLIS_PER_DAY = 86_400_000n;
 
@@ -162,12 +163,12 @@ function parquetSourceColumn(
   };
   switch (form) {
     case 'days': {
-      const days = new Int32Array(rowCount).fill(NULL_DATE);
+      const days = sharedInt32Array(rowCount).fill(NULL_DATE);
       eachValue((row, value) => typeof value === 'number' && (days[row] = value));
       return { form, days };
     }
     case 'number': {
-      const numbers = new Float64Array(rowCount).fill(NaN);
+      const numbers = sharedFloat64Array(rowCount).fill(NaN);
       eachValue((row, value) => (numbers[row] = toNumber(value)));
       return { form, values: numbers };
     }

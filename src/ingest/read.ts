@@ -1,8 +1,10 @@
 import { createHash } from 'node:crypto';
 import { extname } from 'node:path';
 import { readArrowBuffer } from './arrow-reader.js';
+import { BackgroundHash } from './background-hash.js';
 import { decodeArrowUnderWatchdog } from './arrow-watchdog.js';
 import { readCsvBuffer, readCsvSource } from './csv-reader.js';
+import { BACKGROUND_HASH_BYTES } from './csv-window.js';
 import { cutInput, InputError, NavassayError } from './errors.js';
 import { readInputFile } from './input-file.js';
 import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
@@ -43,8 +45,27 @@ export async function readSourceFile(
     }
   }
   const bytes = readInputFile(path, limits.maxInputBytes, 'the file', formatOf(path) === 'arrow');
-  const sha256 = createHash('sha256').update(bytes).digest('hex');
-  return { result: await parseFeedBytes(bytes, path, kind, profile, limits), sha256 };
+  const hash = hashOfBytes(bytes);
+  try {
+    const result = await parseFeedBytes(bytes, path, kind, profile, limits);
+    return { result, sha256: hash.sha256() };
+  } finally {
+    hash.stop();
+  }
+}
+
+/**
+ * The SHA-256 of a whole input. A large one already in shared memory (an Arrow file, read there
+ * for the watchdog) is hashed on another thread while it is decoded and parsed; nothing writes
+ * to those bytes, so the digest is of the very bytes parsed.
+ */
+function hashOfBytes(bytes: Buffer): { sha256(): string; stop(): void } {
+  if (bytes.buffer instanceof SharedArrayBuffer && bytes.length >= BACKGROUND_HASH_BYTES) {
+    const hash = new BackgroundHash();
+    hash.add(bytes);
+    return hash;
+  }
+  return { sha256: () => createHash('sha256').update(bytes).digest('hex'), stop: () => undefined };
 }
 
 /** Reads one canonical file in whatever format its extension names, within the limits. */

@@ -6,6 +6,8 @@
  * Rows with the same (series, date) are kept, adjacent and in file order: duplicates are for
  * the checks to judge, never silently collapsed here.
  */
+import { isShared, onSharedMemory, sharedFloat64Array, sharedInt32Array } from '../ingest/shared-columns.js';
+
 export interface SeriesFrame {
   /** Series ids in ascending order; the position of an id is its series index. */
   readonly ids: readonly string[];
@@ -95,7 +97,9 @@ function framedInFileOrder(input: UnsortedObservations): SeriesFrame | null {
   starts.push(codes.length);
   const ids = runCodes.map((code) => input.dictionary[code]);
   const indexById = new Map(ids.map((id, i) => [id, i]));
-  return { ids, offsets: Int32Array.from(starts), dates, values: input.values, lines: input.lines, indexById };
+  const offsets = sharedInt32Array(starts.length);
+  offsets.set(starts);
+  return { ids, offsets, dates, values: input.values, lines: input.lines, indexById };
 }
 
 /** The rank of every dictionary entry in ascending id order (as `rankDictionary` compares them). */
@@ -113,7 +117,7 @@ function compareIdsOf(dictionary: readonly string[]) {
 function sortedFrame(input: UnsortedObservations): SeriesFrame {
   const { rankOfCode, sortedIds } = rankDictionary(input.dictionary, input.codes);
   const seriesCount = sortedIds.length;
-  const offsets = new Int32Array(seriesCount + 1);
+  const offsets = sharedInt32Array(seriesCount + 1);
   for (let row = 0; row < input.codes.length; row++) offsets[rankOfCode[input.codes[row]] + 1]++;
   for (let s = 0; s < seriesCount; s++) offsets[s + 1] += offsets[s];
 
@@ -123,9 +127,9 @@ function sortedFrame(input: UnsortedObservations): SeriesFrame {
   for (let s = 0; s < seriesCount; s++) sortByDateWithin(order.subarray(offsets[s], offsets[s + 1]), input.dates);
 
   const indexById = new Map(sortedIds.map((id, i) => [id, i]));
-  const dates = new Int32Array(order.length);
-  const values = new Float64Array(order.length);
-  const lines = new Int32Array(order.length);
+  const dates = sharedInt32Array(order.length);
+  const values = sharedFloat64Array(order.length);
+  const lines = sharedInt32Array(order.length);
   for (let i = 0; i < order.length; i++) {
     const row = order[i];
     dates[i] = input.dates[row];
@@ -152,6 +156,27 @@ function sortByDateWithin(rows: Int32Array, dates: Int32Array): void {
   if (sorted) return;
   // Row index as the tie-break keeps same-date duplicates in file order.
   rows.sort((a, b) => dates[a] - dates[b] || a - b);
+}
+
+/** True when every array of the frame is on shared memory, so a worker thread can read it without a copy. */
+export function isSharedFrame(frame: SeriesFrame): boolean {
+  return isShared(frame.offsets) && isShared(frame.dates) && isShared(frame.values) && isShared(frame.lines);
+}
+
+/**
+ * The frame itself when it is on shared memory (as the readers build it), else one copy of it
+ * on shared memory: a frame a library caller made from ordinary arrays.
+ */
+export function sharedFrame(frame: SeriesFrame): SeriesFrame {
+  if (isSharedFrame(frame)) return frame;
+  return {
+    ids: frame.ids,
+    offsets: onSharedMemory(frame.offsets),
+    dates: onSharedMemory(frame.dates),
+    values: onSharedMemory(frame.values),
+    lines: onSharedMemory(frame.lines),
+    indexById: frame.indexById,
+  };
 }
 
 /** A frame built from per-series arrays; convenient for tests and generated data. */

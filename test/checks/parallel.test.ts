@@ -16,6 +16,9 @@ import { runChecksInParallel, seriesRanges } from '../../src/checks/parallel.js'
 import { DEMO_AS_OF, DEMO_PREVIOUS_AS_OF, demoFiles } from '../../src/demo/scenario.js';
 import { loadFeed } from '../../src/ingest/feed.js';
 import { FeedProfileSchema } from '../../src/ingest/profile.js';
+import { readCsvFile } from '../../src/ingest/csv-reader.js';
+import { writeArrowIpc } from '../../src/ingest/arrow-table.js';
+import { isSharedFrame, sharedFrame, type SeriesFrame } from '../../src/series/frame.js';
 
 describe('checks on worker threads', () => {
   it('cut the series into disjoint ranges that cover every series once, in order', () => {
@@ -65,4 +68,43 @@ describe('checks on worker threads', () => {
     expect(plain.some((f) => f.check === 'restated_value')).toBe(true); // the previous snapshot reached the workers' checks
     expect(await runChecksInParallel(input, {}, { threads: 2, minRows: 0 })).toEqual(plain);
   });
+
+  it('give the same findings whether the frames are read onto shared memory or copied there once', async () => {
+    const universe = generateUniverse({ seed: 2004 });
+    // A caller's own arrays, copied once onto shared memory for every worker.
+    const ordinary = { ...universe, nav: ordinaryFrame(universe.nav), benchmarks: universe.benchmarks && ordinaryFrame(universe.benchmarks) };
+    expect(isSharedFrame(ordinary.nav)).toBe(false);
+    expect(isSharedFrame(universe.nav)).toBe(true);
+    const plain = runChecks(ordinary);
+    expect(runChecks(universe)).toEqual(plain);
+    expect(await runChecksInParallel(ordinary, {}, { threads: 2, minRows: 0 })).toEqual(plain);
+    expect(await runChecksInParallel(universe, {}, { threads: 3, minRows: 0 })).toEqual(plain);
+  });
+
+  it('receive the frames read from CSV and from Arrow as they are, on shared memory, and find what the plain runner finds', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'navassay-shared-'));
+    writeFiles(dir, demoFiles());
+    const at = (name: string) => join(dir, name);
+    const profile = FeedProfileSchema.parse({});
+    writeArrowIpc(readCsvFile(at('nav.csv'), 'nav', profile).table, at('nav.arrow'));
+    writeArrowIpc(readCsvFile(at('nav-previous.csv'), 'nav', profile).table, at('nav-previous.arrow'));
+    const others = { master: at('master.csv'), rates: at('rates.csv'), holidays: at('holidays.csv'), actions: at('actions.csv') };
+    for (const extension of ['csv', 'arrow']) {
+      const feed = await loadFeed({ nav: at(`nav.${extension}`), ...others });
+      const previous = (await loadFeed({ nav: at(`nav-previous.${extension}`) })).nav;
+      expect(isSharedFrame(feed.nav)).toBe(true);
+      expect(isSharedFrame(feed.rates!)).toBe(true);
+      expect(isSharedFrame(previous)).toBe(true);
+      expect(sharedFrame(feed.nav)).toBe(feed.nav);
+      const input = { ...feed, previous, asOf: DEMO_AS_OF };
+      const plain = runChecks(input);
+      expect(plain.some((f) => f.check === 'restated_value')).toBe(true);
+      expect(await runChecksInParallel(input, {}, { threads: 2, minRows: 0 })).toEqual(plain);
+    }
+  });
 });
+
+/** The frame's rows in ordinary arrays, as a library caller might hand them in. */
+function ordinaryFrame(frame: SeriesFrame): SeriesFrame {
+  return { ...frame, offsets: frame.offsets.slice(), dates: frame.dates.slice(), values: frame.values.slice(), lines: frame.lines.slice() };
+}

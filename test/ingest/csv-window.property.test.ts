@@ -63,4 +63,26 @@ describe('reading a CSV file through a window gives what the whole file gives', 
       { numRuns: 1500 },
     );
   });
+
+  it('with the SHA-256 taken on another thread while the rows are parsed', () => {
+    fc.assert(
+      fc.property(csvFile, fc.integer({ min: 1, max: 80 }), (text, windowBytes) => {
+        const path = join(dir, `feed-${fileNumber++}.csv`);
+        const bytes = Buffer.from(text, 'utf8');
+        writeFileSync(path, bytes);
+        const feedProfile = profile({ date_format: 'iso' });
+        const whole = outcome(() => readCsvBuffer(bytes, path, 'nav', feedProfile, ANY_DATE_LIMITS));
+        // Every file from 0 bytes on is hashed on the hashing thread here.
+        const windowed = outcome(() => readCsvSource(path, 'nav', feedProfile, ANY_DATE_LIMITS, windowBytes, 0));
+        if ('value' in (windowed as object)) {
+          const { result, sha256 } = (windowed as { value: ReturnType<typeof readCsvSource> }).value;
+          expect(sha256).toBe(createHash('sha256').update(bytes).digest('hex'));
+          expect({ value: result }).toEqual(whole);
+        } else {
+          expect(windowed).toEqual(whole);
+        }
+      }),
+      { numRuns: 60 },
+    );
+  });
 });

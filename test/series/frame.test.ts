@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { buildSeriesFrame } from '../../src/series/frame.js';
+import { buildSeriesFrame, isSharedFrame, sharedFrame } from '../../src/series/frame.js';
 
 /**
  * The series frame against the plainest statement of its rule: rows ordered by (series id,
@@ -53,3 +53,51 @@ describe('buildSeriesFrame', () => {
     );
   });
 });
+
+describe('frames on shared memory', () => {
+  const someRows = fc.array(observation, { maxLength: 40 });
+
+  it('columns read onto shared memory give a frame on shared memory, the plain sort\'s frame', () => {
+    fc.assert(
+      fc.property(someRows, (rows) => {
+        const dictionary = [...new Set(rows.map((row) => row.id))].reverse();
+        const frame = buildSeriesFrame({
+          codes: Int32Array.from(rows, (row) => dictionary.indexOf(row.id)),
+          dictionary,
+          dates: sharedCopyOf(Int32Array.from(rows, (row) => row.date)),
+          values: sharedCopyOf(Float64Array.from(rows, (row) => row.value)),
+          lines: sharedCopyOf(Int32Array.from(rows, (_, index) => index + 2)),
+        });
+        expect(isSharedFrame(frame)).toBe(true);
+        const plain = { ids: frame.ids, offsets: [...frame.offsets], dates: [...frame.dates], values: [...frame.values], lines: [...frame.lines] };
+        expect(plain).toEqual(naiveFrame(rows));
+      }),
+    );
+  });
+
+  it('sharedFrame keeps a shared frame as it is and copies an ordinary one once, row for row', () => {
+    fc.assert(
+      fc.property(someRows, (rows) => {
+        const dictionary = ['B2', 'A1', 'C3', 'A10', 'É1'];
+        const ordinary = buildSeriesFrame({
+          codes: Int32Array.from(rows, (row) => dictionary.indexOf(row.id)),
+          dictionary,
+          dates: Int32Array.from(rows, (row) => row.date),
+          values: Float64Array.from(rows, (row) => row.value),
+          lines: Int32Array.from(rows, (_, index) => index + 2),
+        });
+        const shared = sharedFrame(ordinary);
+        expect(isSharedFrame(shared)).toBe(true);
+        expect(sharedFrame(shared)).toBe(shared);
+        expect(shared.ids).toEqual(ordinary.ids);
+        for (const column of ['offsets', 'dates', 'values', 'lines'] as const) expect([...shared[column]]).toEqual([...ordinary[column]]);
+      }),
+    );
+  });
+});
+
+function sharedCopyOf<T extends Int32Array | Float64Array>(array: T): T {
+  const copy = new (array.constructor as { new (buffer: SharedArrayBuffer): T })(new SharedArrayBuffer(array.byteLength));
+  copy.set(array);
+  return copy;
+}
