@@ -12,7 +12,7 @@
  * (test/checks/parallel.test.ts).
  */
 import { availableParallelism } from 'node:os';
-import { Worker } from 'node:worker_threads';
+import { answerOfSiblingWorker } from '../threads/module-worker.js';
 import type { Finding } from '../findings.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
 import { sharedFrame, type SeriesFrame } from '../series/frame.js';
@@ -134,30 +134,7 @@ function frameData(frame: SeriesFrame): FrameData {
   return { ids, offsets, dates, values, lines };
 }
 
-/**
- * The worker's module: the compiled .js beside this file; under tsx and the tests, where this
- * file is TypeScript source, a small bootstrap that registers tsx's loader in the worker first
- * (a worker does not inherit the loader of the thread that starts it).
- */
-function workerScript(): { script: string | URL; eval: boolean } {
-  if (!import.meta.url.endsWith('.ts')) return { script: new URL('./check-worker.js', import.meta.url), eval: false };
-  const source = new URL('./check-worker.ts', import.meta.url).href;
-  return { script: `import('tsx/esm/api').then(({ register }) => { register(); return import(${JSON.stringify(source)}); });`, eval: true };
-}
-
 function runWorker(job: WorkerInput): Promise<WorkerAnswer> {
-  const { script, eval: evaluate } = workerScript();
   // The frames' arrays are on shared memory: the worker sees the same rows, nothing is copied.
-  return new Promise((resolve, reject) => {
-    const worker = new Worker(script, { eval: evaluate, workerData: job });
-    let answered = false;
-    worker.once('message', (answer: WorkerAnswer) => {
-      answered = true;
-      resolve(answer);
-    });
-    worker.once('error', reject);
-    worker.once('exit', (code) => {
-      if (!answered) reject(new Error(`a check worker stopped (exit code ${code}) before answering`));
-    });
-  });
+  return answerOfSiblingWorker(import.meta.url, 'check-worker', job, 'a check worker');
 }

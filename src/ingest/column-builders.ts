@@ -70,12 +70,13 @@ export class BooleanBuilder implements ColumnBuilder {
 
 /** Dictionary-coded strings: each distinct string is stored once and rows hold its code. */
 export class TextBuilder implements ColumnBuilder {
-  codes = new Int32Array(1024);
+  // Shared too: the snapshot's writer thread takes the day's tables without copying their codes.
+  codes = sharedInt32Array(1024);
   readonly dictionary: string[] = [];
   private readonly codeByText = new Map<string, number>();
 
   ensureCapacity(rows: number) {
-    this.codes = grow(this.codes, rows, (n) => new Int32Array(n));
+    this.codes = grow(this.codes, rows, sharedInt32Array);
   }
   setMissing(row: number) {
     this.codes[row] = -1;
@@ -99,7 +100,7 @@ export class TextBuilder implements ColumnBuilder {
     if (inOrderOfFirstUse(codes, this.dictionary.length)) return { type: 'text', codes, dictionary: this.dictionary };
     const newCodeOf = new Int32Array(this.dictionary.length).fill(-1);
     const dictionary: string[] = [];
-    const renumbered = new Int32Array(length);
+    const renumbered = sharedInt32Array(length);
     for (let row = 0; row < length; row++) {
       const code = codes[row];
       if (code < 0) renumbered[row] = code;

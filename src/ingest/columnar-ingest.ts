@@ -148,7 +148,7 @@ function cleanIdColumn(name: string, column: TextColumn, mode: IdentifierMode): 
   });
   // Ids that are all clean and distinct keep their codes: no second column of codes.
   if (newCode.every((code, entry) => code === entry)) return { column: { type: 'text', codes: column.codes, dictionary }, complaints };
-  const codes = new Int32Array(column.codes.length);
+  const codes = sharedInt32Array(column.codes.length);
   for (let row = 0; row < codes.length; row++) {
     const code = column.codes[row];
     codes[row] = code < 0 ? code : newCode[code];
@@ -423,7 +423,7 @@ function gatherColumn(column: Column, keep: Int32Array): Column {
     case 'boolean':
       return { type: 'boolean', values: gather(column.values, keep, (length) => new Uint8Array(length)) };
     case 'text':
-      return compactDictionary(gather(column.codes, keep, (length) => new Int32Array(length)), column.dictionary);
+      return compactDictionary(gather(column.codes, keep, sharedInt32Array), column.dictionary);
   }
 }
 
@@ -441,7 +441,7 @@ function gather<T extends Int32Array | Float64Array | Uint8Array>(
 export function compactDictionary(codes: Int32Array, dictionary: readonly string[]): TextColumn {
   const newCodeOf = new Int32Array(dictionary.length).fill(-1);
   const kept: string[] = [];
-  const out = new Int32Array(codes.length);
+  const out = sharedInt32Array(codes.length);
   for (let row = 0; row < codes.length; row++) {
     const code = codes[row];
     if (code < 0) {
@@ -464,7 +464,7 @@ export class TextDictionaryBuilder {
   private readonly codeOf = new Map<string, number>();
 
   constructor(length: number) {
-    this.codes = new Int32Array(length);
+    this.codes = sharedInt32Array(length);
   }
 
   set(row: number, value: string | null | undefined): void {

@@ -1,4 +1,4 @@
-import { siblingModuleWorker } from '../threads/module-worker.js';
+import { answerOfSiblingWorker } from '../threads/module-worker.js';
 import { rebuildThrown, type ThrownElsewhere } from '../threads/thrown.js';
 import { writeSnapshot, type SnapshotInput, type SnapshotRef } from './snapshot-store.js';
 
@@ -39,17 +39,8 @@ export function writeSnapshotInBackground(storeDir: string, input: SnapshotInput
     }
   }
   const job: SnapshotJob = { storeDir, input };
-  return new Promise((resolve, reject) => {
-    const worker = siblingModuleWorker(import.meta.url, 'snapshot-worker', { workerData: job });
-    let answered = false;
-    worker.once('message', (outcome: SnapshotOutcome) => {
-      answered = true;
-      if ('ref' in outcome) resolve(outcome.ref);
-      else reject(rebuildThrown(outcome.thrown));
-    });
-    worker.once('error', reject);
-    worker.once('exit', (code) => {
-      if (!answered) reject(new Error(`the snapshot writer stopped (exit code ${code}) before answering`));
-    });
+  return answerOfSiblingWorker<SnapshotOutcome>(import.meta.url, 'snapshot-worker', job, 'the snapshot writer').then((outcome) => {
+    if ('ref' in outcome) return outcome.ref;
+    throw rebuildThrown(outcome.thrown);
   });
 }

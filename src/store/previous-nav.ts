@@ -5,7 +5,7 @@ import { arrowToCanonical } from '../ingest/arrow-table.js';
 import { toSeriesFrame } from '../ingest/convert.js';
 import { cutInput, InputError, NavassayError } from '../ingest/errors.js';
 import { buildSeriesFrame, type SeriesFrame } from '../series/frame.js';
-import { siblingModuleWorker } from '../threads/module-worker.js';
+import { answerOfSiblingWorker } from '../threads/module-worker.js';
 import { rebuildThrown, type ThrownElsewhere } from '../threads/thrown.js';
 import { sha256Bytes } from './durable-files.js';
 import type { SnapshotFile } from './manifest.js';
@@ -138,18 +138,10 @@ export function previousNavInBackground(storeDir: string, feed: string, asOfExcl
   } catch (error) {
     return Promise.reject(error);
   }
-  return new Promise((resolve, reject) => {
-    const worker = siblingModuleWorker(import.meta.url, 'previous-nav-worker', { workerData: { storeDir, feed, asOfExclusive } });
-    let answered = false;
-    worker.once('message', (outcome: PreviousNavOutcome) => {
-      answered = true;
-      if ('previous' in outcome) resolve(outcome.previous);
-      else reject(rebuildThrown(outcome.thrown));
-    });
-    worker.once('error', reject);
-    worker.once('exit', (code) => {
-      if (!answered) reject(new Error(`the reader of the previous snapshot stopped (exit code ${code}) before answering`));
-    });
+  const job = { storeDir, feed, asOfExclusive };
+  return answerOfSiblingWorker<PreviousNavOutcome>(import.meta.url, 'previous-nav-worker', job, 'the reader of the previous snapshot').then((outcome) => {
+    if ('previous' in outcome) return outcome.previous;
+    throw rebuildThrown(outcome.thrown);
   });
 }
 

@@ -12,3 +12,23 @@ export function siblingModuleWorker(callerUrl: string, name: string, options: Om
   const bootstrap = `import('tsx/esm/api').then(({ register }) => { register(); return import(${JSON.stringify(source)}); });`;
   return new Worker(bootstrap, { ...options, eval: true });
 }
+
+/**
+ * Runs the sibling module `name` on a worker thread with `workerData` and answers the first
+ * message it posts: the whole job of a worker that does one thing and stops. `what` names it in
+ * the error of a worker that stops without answering.
+ */
+export function answerOfSiblingWorker<T>(callerUrl: string, name: string, workerData: unknown, what: string): Promise<T> {
+  return new Promise((resolve, reject) => {
+    const worker = siblingModuleWorker(callerUrl, name, { workerData });
+    let answered = false;
+    worker.once('message', (answer: T) => {
+      answered = true;
+      resolve(answer);
+    });
+    worker.once('error', reject);
+    worker.once('exit', (code) => {
+      if (!answered) reject(new Error(`${what} stopped (exit code ${code}) before answering`));
+    });
+  });
+}
