@@ -63,21 +63,27 @@ export type FundSample = Pick<WindowSample, 'fund' | 'navPath' | 'pointDays'>;
  * search asks for the same window under many methodologies: another benchmark leaves the fund's
  * returns and the risk-free returns as they were, another rate conversion the fund's and the
  * benchmark's. Each function gets the part's computation and returns its result, computed or kept.
+ * The benchmark's and the rate's parts depend on the fund only through its sample days, which
+ * they are given: funds on one calendar have the same days, so those parts can be kept across series.
  */
 export interface SampleParts {
   readonly fund: (compute: () => Outcome<FundSample>) => Outcome<FundSample>;
-  readonly benchmark: (compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
-  readonly riskFree: (compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
+  readonly benchmark: (pointDays: Int32Array, compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
+  readonly riskFree: (pointDays: Int32Array, compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
 }
 
-const COMPUTED_EACH_TIME: SampleParts = { fund: (compute) => compute(), benchmark: (compute) => compute(), riskFree: (compute) => compute() };
+const COMPUTED_EACH_TIME: SampleParts = {
+  fund: (compute) => compute(),
+  benchmark: (_pointDays, compute) => compute(),
+  riskFree: (_pointDays, compute) => compute(),
+};
 
 export function sampleWindow(request: WindowRequest, parts: SampleParts = COMPUTED_EACH_TIME): Outcome<WindowSample> {
   const sampled = parts.fund(() => sampleFund(request));
   if (!sampled.ok) return sampled;
   const { pointDays } = sampled.value;
-  const benchmark = parts.benchmark(() => benchmarkReturns(request, pointDays));
-  const riskFree = parts.riskFree(() => riskFreeReturns(request, pointDays));
+  const benchmark = parts.benchmark(pointDays, () => benchmarkReturns(request, pointDays));
+  const riskFree = parts.riskFree(pointDays, () => riskFreeReturns(request, pointDays));
   return {
     ok: true,
     value: {
