@@ -102,7 +102,14 @@ function drawdownObservations(stats: WindowStatistics, methodology: Methodology)
  */
 export class MetricCalculator {
   private readonly masterById = new Map<string, SeriesMasterRecord>();
-  private readonly cache = new Map<string, Outcome<WindowStatistics>>();
+  /**
+   * Statistics by series, then by window and sampling settings: a small map per series keeps a
+   * look-up cheap (the reconcile stage looks up every figure again, and the search its variants).
+   */
+  private readonly cache = new Map<string, Map<string, Outcome<WindowStatistics>>>();
+  /** The sampling key of the methodology asked for last (most requests share one methodology object). */
+  private lastMethodology: Methodology | null = null;
+  private lastSamplingKey = '';
   private readonly parts = new LatestSeriesParts();
   private readonly sources = new SourceParts();
   private readonly spans = new Map<string, WindowMonths>();
@@ -132,15 +139,17 @@ export class MetricCalculator {
   /** The window's statistics (cached), or why the window cannot be computed at all. */
   statistics(request: Omit<MetricRequest, 'metric'>): Outcome<WindowStatistics> {
     const methodology = this.effectiveMethodology(request.methodology);
-    const key = this.cacheKey(request, methodology);
-    let stats = this.cache.get(key);
+    let seriesCache = this.cache.get(request.seriesId);
+    if (!seriesCache) this.cache.set(request.seriesId, (seriesCache = new Map()));
+    const key = `${request.asOf}|${request.window}|${this.samplingKey(methodology)}`;
+    let stats = seriesCache.get(key);
     if (!stats) {
       const reuse = this.parts.reuseFor(request, methodology);
       const window = this.windowRequest({ ...request, methodology });
       const sample = window.ok ? sampleWindow(window.value, this.partsFor(window.value, reuse)) : window;
       const logOf = (returns: Float64Array) => this.sources.logOf(returns) ?? (reuse ? reuse.logOf(returns) : log1pAll(returns));
       stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, logOf) } : sample;
-      this.cache.set(key, stats);
+      seriesCache.set(key, stats);
     }
     return stats;
   }
@@ -232,9 +241,14 @@ export class MetricCalculator {
    * Everything that changes a window's sampling or its risk-free returns (the dimensions marked
    * `resamples` in METHODOLOGY_DIMENSIONS); the other dimensions are arithmetic on its statistics.
    */
-  private cacheKey(request: Omit<MetricRequest, 'metric'>, m: Methodology): string {
-    return `${request.seriesId}|${request.asOf}|${request.window}|${m.frequency}|${m.window_end}|${m.benchmark ?? ''}|${riskFreeKey(m)}|${ratePeriodsOf(m)}|${m.rate_conversion}`;
+  private samplingKey(m: Methodology): string {
+    if (m !== this.lastMethodology) {
+      this.lastMethodology = m;
+      this.lastSamplingKey = `${m.frequency}|${m.window_end}|${m.benchmark ?? ''}|${riskFreeKey(m)}|${ratePeriodsOf(m)}|${m.rate_conversion}`;
+    }
+    return this.lastSamplingKey;
   }
+
 }
 
 /** A window request with the two rate settings the risk-free part depends on, for its key. */

@@ -54,27 +54,77 @@ export interface WindowStatistics {
  * same arrays to many windows (src/metrics/compute.ts, for the convention search's variants).
  */
 export function windowStatistics(sample: WindowSample, logOf: (returns: Float64Array) => Float64Array = log1pAll): WindowStatistics {
-  const n = sample.fund.length;
-  const zeros = new Float64Array(n);
-  const fund = sample.fund;
-  const benchmark = sample.benchmark ?? zeros;
-  const riskFree = sample.riskFree ?? zeros;
-  const logFund = logOf(fund);
-  const logBenchmark = logOf(benchmark);
-  return {
-    n,
-    simple: basisStatistics(fund, benchmark, riskFree),
-    log: basisStatistics(logFund, logBenchmark, riskFree),
-    growth: { fund: sum(logFund), benchmark: sum(logBenchmark), riskFree: sum(logOf(riskFree)) },
-    maxDrawdown: maxDrawdown(sample.navPath),
-    navObservations: sample.navPath.length,
-    sampledMaxDrawdown: maxDrawdownOfReturns(fund),
-    days: sample.pointDays.length > 0 ? sample.pointDays[sample.pointDays.length - 1] - sample.pointDays[0] : 0,
-    fundReturns: { simple: fund, log: logFund },
-    fixedTargets: new Map(),
-    benchmarkReason: sample.benchmarkReason,
-    riskFreeReason: sample.riskFreeReason,
-  };
+  return new LazyWindowStatistics(sample, logOf);
+}
+
+/**
+ * A window's statistics, each part built on first use from the sample it keeps: a figure reads
+ * only some of them (a beta never reads the drawdown, a figure on simple returns never the log
+ * moments), and the convention search builds many windows to read one figure from each. A part
+ * is the same function of the same returns whenever it is built, so the figures are those of
+ * building every part at once.
+ */
+class LazyWindowStatistics implements WindowStatistics {
+  readonly n: number;
+  readonly navObservations: number;
+  readonly days: number;
+  readonly fixedTargets = new Map<string, TargetSums>();
+  readonly benchmarkReason: string | null;
+  readonly riskFreeReason: string | null;
+  private readonly fund: Float64Array;
+  /** The benchmark's and the rate's returns, zeros where the sample has none. */
+  private readonly benchmark: Float64Array;
+  private readonly riskFree: Float64Array;
+  private builtSimple: BasisStatistics | undefined;
+  private builtLog: BasisStatistics | undefined;
+  private builtGrowth: WindowStatistics['growth'] | undefined;
+  private builtMaxDrawdown: number | undefined;
+  private builtSampledMaxDrawdown: number | undefined;
+  private builtFundReturns: WindowStatistics['fundReturns'] | undefined;
+
+  constructor(
+    private readonly sample: WindowSample,
+    private readonly logOf: (returns: Float64Array) => Float64Array,
+  ) {
+    this.n = sample.fund.length;
+    this.fund = sample.fund;
+    const zeros = sample.benchmark && sample.riskFree ? null : new Float64Array(this.n);
+    this.benchmark = sample.benchmark ?? zeros!;
+    this.riskFree = sample.riskFree ?? zeros!;
+    this.navObservations = sample.navPath.length;
+    const days = sample.pointDays;
+    this.days = days.length > 0 ? days[days.length - 1] - days[0] : 0;
+    this.benchmarkReason = sample.benchmarkReason;
+    this.riskFreeReason = sample.riskFreeReason;
+  }
+
+  get simple(): BasisStatistics {
+    return (this.builtSimple ??= basisStatistics(this.fund, this.benchmark, this.riskFree));
+  }
+
+  get log(): BasisStatistics {
+    return (this.builtLog ??= basisStatistics(this.logOf(this.fund), this.logOf(this.benchmark), this.riskFree));
+  }
+
+  get growth(): WindowStatistics['growth'] {
+    return (this.builtGrowth ??= {
+      fund: sum(this.logOf(this.fund)),
+      benchmark: sum(this.logOf(this.benchmark)),
+      riskFree: sum(this.logOf(this.riskFree)),
+    });
+  }
+
+  get maxDrawdown(): number {
+    return (this.builtMaxDrawdown ??= maxDrawdown(this.sample.navPath));
+  }
+
+  get sampledMaxDrawdown(): number {
+    return (this.builtSampledMaxDrawdown ??= maxDrawdownOfReturns(this.fund));
+  }
+
+  get fundReturns(): WindowStatistics['fundReturns'] {
+    return (this.builtFundReturns ??= { simple: this.fund, log: this.logOf(this.fund) });
+  }
 }
 
 /** All of one basis' moments in a single pass over fund, benchmark and risk-free returns. */
