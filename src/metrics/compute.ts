@@ -103,16 +103,17 @@ function drawdownObservations(stats: WindowStatistics, methodology: Methodology)
 export class MetricCalculator {
   private readonly masterById = new Map<string, SeriesMasterRecord>();
   /**
-   * Statistics by series, then by window and sampling settings: a small map per series keeps a
-   * look-up cheap (the reconcile stage looks up every figure again, and the search its variants).
+   * Statistics by series, sampling settings, window and as-of, one map per level: a look-up
+   * builds no key string (the reconcile stage looks up every figure again, and the search its
+   * variants; building and hashing a long key cost more than the rest of a look-up).
    */
-  private readonly cache = new Map<string, Map<string, Outcome<WindowStatistics>>>();
+  private readonly cache = new Map<string, Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>>>();
   /** The sampling key of the methodology asked for last (most requests share one methodology object). */
   private lastMethodology: Methodology | null = null;
   private lastSamplingKey = '';
   private readonly parts = new LatestSeriesParts();
   private readonly sources = new SourceParts();
-  private readonly spans = new Map<string, WindowMonths>();
+  private readonly spans = new Map<string, Map<number, Map<number, WindowMonths>>>();
 
   constructor(private readonly inputs: MetricInputs) {
     for (const record of inputs.master) {
@@ -139,17 +140,17 @@ export class MetricCalculator {
   /** The window's statistics (cached), or why the window cannot be computed at all. */
   statistics(request: Omit<MetricRequest, 'metric'>): Outcome<WindowStatistics> {
     const methodology = this.effectiveMethodology(request.methodology);
-    let seriesCache = this.cache.get(request.seriesId);
-    if (!seriesCache) this.cache.set(request.seriesId, (seriesCache = new Map()));
-    const key = `${request.asOf}|${request.window}|${this.samplingKey(methodology)}`;
-    let stats = seriesCache.get(key);
+    const bySampling = mapUnder(this.cache, request.seriesId);
+    const byWindow = mapUnder(bySampling, this.samplingKey(methodology));
+    const byAsOf = mapUnder(byWindow, request.window);
+    let stats = byAsOf.get(request.asOf);
     if (!stats) {
       const reuse = this.parts.reuseFor(request, methodology);
       const window = this.windowRequest({ ...request, methodology });
       const sample = window.ok ? sampleWindow(window.value, this.partsFor(window.value, reuse)) : window;
       const logOf = (returns: Float64Array) => this.sources.logOf(returns) ?? (reuse ? reuse.logOf(returns) : log1pAll(returns));
       stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, logOf) } : sample;
-      seriesCache.set(key, stats);
+      byAsOf.set(request.asOf, stats);
     }
     return stats;
   }
@@ -184,12 +185,12 @@ export class MetricCalculator {
 
   /** The window's months, made once per (as-of, window label, window end); an unknown label throws. */
   private spanOf(asOf: number, window: string, windowEnd: number): WindowMonths {
-    const key = `${asOf}|${window}|${windowEnd}`;
-    let span = this.spans.get(key);
+    const byWindowEnd = mapUnder(mapUnder(this.spans, window), asOf);
+    let span = byWindowEnd.get(windowEnd);
     if (!span) {
       const months = parseWindow(window);
       if (months === null) throw new RangeError(unknownWindowMessage(window));
-      this.spans.set(key, (span = windowMonths(asOf, months, windowEnd)));
+      byWindowEnd.set(windowEnd, (span = windowMonths(asOf, months, windowEnd)));
     }
     return span;
   }
@@ -201,8 +202,8 @@ export class MetricCalculator {
   private partsFor(window: SharedPartsRequest, reuse: SeriesReuse | null): SampleParts {
     return {
       fund: reuse ? reuse.fund : (compute) => compute(),
-      benchmark: this.sources.keeperOf(benchmarkPartKey(window)),
-      riskFree: this.sources.keeperOf(riskFreePartKey(window)),
+      benchmark: this.sources.benchmarkKeeper(window),
+      riskFree: this.sources.riskFreeKeeper(window),
     };
   }
 
@@ -257,23 +258,11 @@ interface SharedPartsRequest extends WindowRequest {
   readonly rateConversion: Methodology['rate_conversion'];
 }
 
-/** What a window's benchmark returns depend on besides the fund's sample days. */
-function benchmarkPartKey(window: SharedPartsRequest): string | null {
-  // A missing benchmark's reason names the series, so it is never shared (and costs nothing).
-  if (!window.benchmark.ok) return null;
-  return `${window.benchmark.value.id}|${spanKey(window)}`;
-}
-
-/** What a window's risk-free returns depend on besides the fund's sample days. */
-function riskFreePartKey(window: SharedPartsRequest): string | null {
-  if (!window.riskFree.ok) return null;
-  const source = window.riskFree.value;
-  const rate = 'annualRate' in source ? `constant:${source.annualRate}` : `series:${source.id}`;
-  return `${rate}|${spanKey(window)}|${window.ratePeriods}|${window.rateConversion}`;
-}
-
-function spanKey(window: WindowRequest): string {
-  return `${window.asOf}|${window.span.startMonth}|${window.span.months}|${window.frequency}`;
+/** The map under `key` in `map`, made on first use. */
+function mapUnder<K, V extends Map<unknown, unknown>>(map: Map<K, V>, key: K): V {
+  let child = map.get(key);
+  if (child === undefined) map.set(key, (child = new Map() as V));
+  return child;
 }
 
 type PartKeeper = SampleParts['benchmark'];
@@ -288,17 +277,31 @@ type PartKeeper = SampleParts['benchmark'];
  * hundred keys at most (benchmarks × frequencies × window ends × windows).
  */
 class SourceParts {
-  private readonly kept = new Map<string, KeptPart[]>();
   /** Every kept returns array, with its logarithms once computed (null before). */
   private readonly logs = new Map<Float64Array, Float64Array | null>();
 
-  keeperOf(key: string | null): PartKeeper {
-    return key === null ? (_days, compute) => compute() : (days, compute) => this.part(key, days, compute);
+  /** By span (made once per as-of, window and window end), frequency and benchmark. */
+  private readonly benchmarkParts = new Map<WindowMonths, Map<string, Map<string, KeptPart[]>>>();
+  /** By span, frequency, rate id (or constant annual rate), periods a year and conversion. */
+  private readonly riskFreeParts = new Map<WindowMonths, Map<string, Map<string | number, Map<number, Map<string, KeptPart[]>>>>>();
+
+  /** Where the window's benchmark returns are kept; a missing benchmark's reason names the series, so it is never kept. */
+  benchmarkKeeper(window: SharedPartsRequest): PartKeeper {
+    if (!window.benchmark.ok) return (_days, compute) => compute();
+    const kept = keptUnder(mapUnder(mapUnder(this.benchmarkParts, window.span), window.frequency), window.benchmark.value.id);
+    return (days, compute) => this.part(kept, days, compute);
   }
 
-  private part(key: string, days: Int32Array, compute: () => Outcome<Float64Array>): Outcome<Float64Array> {
-    let kept = this.kept.get(key);
-    if (!kept) this.kept.set(key, (kept = []));
+  /** Where the window's risk-free returns are kept; a missing rate's reason may name the series, so it is never kept. */
+  riskFreeKeeper(window: SharedPartsRequest): PartKeeper {
+    if (!window.riskFree.ok) return (_days, compute) => compute();
+    const source = window.riskFree.value;
+    const byPeriods = mapUnder(mapUnder(mapUnder(this.riskFreeParts, window.span), window.frequency), 'annualRate' in source ? source.annualRate : source.id);
+    const kept = keptUnder(mapUnder(byPeriods, window.ratePeriods), window.rateConversion);
+    return (days, compute) => this.part(kept, days, compute);
+  }
+
+  private part(kept: KeptPart[], days: Int32Array, compute: () => Outcome<Float64Array>): Outcome<Float64Array> {
     const at = kept.findIndex((entry) => sameDays(entry.days, days));
     if (at >= 0) {
       const entry = kept[at];
@@ -324,6 +327,12 @@ class SourceParts {
     this.logs.set(returns, computed);
     return computed;
   }
+}
+
+function keptUnder<K>(map: Map<K, KeptPart[]>, key: K): KeptPart[] {
+  let kept = map.get(key);
+  if (kept === undefined) map.set(key, (kept = []));
+  return kept;
 }
 
 interface KeptPart {

@@ -127,26 +127,70 @@ class LazyWindowStatistics implements WindowStatistics {
   }
 }
 
-/** All of one basis' moments in a single pass over fund, benchmark and risk-free returns. */
+/**
+ * One basis' moments, each built on first use by its own pass over the returns (a beta reads only
+ * the excess pair, a standard deviation only the raw one). Each accumulator sees the same values
+ * in the same order as in one pass over all of them, so its sums are the same to the last bit.
+ */
 export function basisStatistics(fund: Float64Array, benchmark: Float64Array, riskFree: Float64Array): BasisStatistics {
-  const stats = {
-    raw: new PairMoments(),
-    excess: new PairMoments(),
-    active: new SeriesMoments(),
-    belowRiskFree: new TargetSums(),
-    belowZero: new TargetSums(),
-  };
-  for (let i = 0; i < fund.length; i++) {
-    const p = fund[i];
-    const b = benchmark[i];
-    const f = riskFree[i];
-    stats.raw.add(b, p);
-    stats.excess.add(b - f, p - f);
-    stats.active.add(p - b);
-    stats.belowRiskFree.add(p, f);
-    stats.belowZero.add(p, 0);
+  return new LazyBasisStatistics(fund, benchmark, riskFree);
+}
+
+class LazyBasisStatistics implements BasisStatistics {
+  private builtRaw: PairMoments | undefined;
+  private builtExcess: PairMoments | undefined;
+  private builtActive: SeriesMoments | undefined;
+  private builtBelowRiskFree: TargetSums | undefined;
+  private builtBelowZero: TargetSums | undefined;
+
+  constructor(
+    private readonly fund: Float64Array,
+    private readonly benchmark: Float64Array,
+    private readonly riskFree: Float64Array,
+  ) {}
+
+  get raw(): PairMoments {
+    if (this.builtRaw) return this.builtRaw;
+    const { fund, benchmark } = this;
+    const raw = new PairMoments();
+    for (let i = 0; i < fund.length; i++) raw.add(benchmark[i], fund[i]);
+    return (this.builtRaw = raw);
   }
-  return stats;
+
+  get excess(): PairMoments {
+    if (this.builtExcess) return this.builtExcess;
+    const { fund, benchmark, riskFree } = this;
+    const excess = new PairMoments();
+    for (let i = 0; i < fund.length; i++) {
+      const f = riskFree[i];
+      excess.add(benchmark[i] - f, fund[i] - f);
+    }
+    return (this.builtExcess = excess);
+  }
+
+  get active(): SeriesMoments {
+    if (this.builtActive) return this.builtActive;
+    const { fund, benchmark } = this;
+    const active = new SeriesMoments();
+    for (let i = 0; i < fund.length; i++) active.add(fund[i] - benchmark[i]);
+    return (this.builtActive = active);
+  }
+
+  get belowRiskFree(): TargetSums {
+    if (this.builtBelowRiskFree) return this.builtBelowRiskFree;
+    const { fund, riskFree } = this;
+    const sums = new TargetSums();
+    for (let i = 0; i < fund.length; i++) sums.add(fund[i], riskFree[i]);
+    return (this.builtBelowRiskFree = sums);
+  }
+
+  get belowZero(): TargetSums {
+    if (this.builtBelowZero) return this.builtBelowZero;
+    const { fund } = this;
+    const sums = new TargetSums();
+    for (let i = 0; i < fund.length; i++) sums.add(fund[i], 0);
+    return (this.builtBelowZero = sums);
+  }
 }
 
 /** The largest fall from a running peak, as a positive fraction of the peak; NaN if a value is not positive. */
