@@ -102,7 +102,9 @@ function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'fre
   const { fund, span, asOf, frequency } = request;
   const fundMonthEnds = coverWindow(fund, span, asOf, 'NAV');
   if (!fundMonthEnds.ok) return fundMonthEnds;
-  const sampled = positiveAt(fund, samplePoints(fund.dates, fundMonthEnds.value, frequency), 'NAV');
+  const candidates = samplePoints(fund.dates, fundMonthEnds.value, frequency);
+  // Monthly, the points are the month-end values coverWindow has already found positive.
+  const sampled = candidates === fundMonthEnds.value ? fundMonthEnds : positiveAt(fund, candidates, 'NAV');
   if (!sampled.ok) return sampled;
   const points = sampled.value;
   return {
@@ -137,8 +139,11 @@ export function monthEndIndex(dates: Int32Array, month: number, cutoff: number):
 /** Month-end indices for every month of the span (start month included), −1 where missing. */
 export function monthEndIndices(dates: Int32Array, span: WindowMonths, cutoff: number): Int32Array {
   const indices = new Int32Array(span.months + 1);
+  // The months ascend, so each month's search starts where the previous one ended.
+  let above = 0;
   for (let k = 0; k <= span.months; k++) {
-    const last = upperBound(dates, Math.min(span.lastDays[k + 1], cutoff)) - 1;
+    above = firstAbove(dates, Math.min(span.lastDays[k + 1], cutoff), above);
+    const last = above - 1;
     indices[k] = last >= 0 && dates[last] > span.lastDays[k] ? last : -1;
   }
   return indices;
