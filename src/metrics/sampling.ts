@@ -1,5 +1,5 @@
 import type { Outcome } from '../outcome.js';
-import { firstAbove, firstAtOrAbove } from '../numeric/search.js';
+import { firstAbove } from '../numeric/search.js';
 import { formatIsoDate, isoWeekStart, monthEndDay, monthIndex } from '../calendar/days.js';
 import type { Frequency } from './methodology.js';
 import { formatMonth, monthStartDay, type WindowMonths } from './windows.js';
@@ -120,6 +120,23 @@ function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'fre
 // ---------------------------------------------------------------------------------------------
 // Month-end values
 
+/**
+ * firstAbove(sorted, x, start) found by steps doubling from `start` (1, 2, 4 …), then a binary
+ * search between the last two: a few comparisons when the answer lies near `start`, as it does
+ * for the next month's or the next day's point.
+ */
+export function firstAboveNear(sorted: Int32Array, x: number, start: number): number {
+  let low = start;
+  let high = start;
+  let step = 1;
+  while (high < sorted.length && sorted[high] <= x) {
+    low = high + 1;
+    high = low + step;
+    step *= 2;
+  }
+  return firstAbove(sorted, x, low, Math.min(high, sorted.length));
+}
+
 /** Index of the first date above `day` (binary search). */
 export function upperBound(dates: Int32Array, day: number): number {
   return firstAbove(dates, day);
@@ -142,7 +159,7 @@ export function monthEndIndices(dates: Int32Array, span: WindowMonths, cutoff: n
   // The months ascend, so each month's search starts where the previous one ended.
   let above = 0;
   for (let k = 0; k <= span.months; k++) {
-    above = firstAbove(dates, Math.min(span.lastDays[k + 1], cutoff), above);
+    above = firstAboveNear(dates, Math.min(span.lastDays[k + 1], cutoff), above);
     const last = above - 1;
     indices[k] = last >= 0 && dates[last] > span.lastDays[k] ? last : -1;
   }
@@ -259,7 +276,7 @@ export function benchmarkPointsOnFundDates(
   // walk for daily points, a narrowed binary search for monthly ones. `above` is upperBound(dates, fundDays[k]).
   let above = 0;
   for (let k = 0; k <= last; k++) {
-    above = firstAbove(dates, fundDays[k], above);
+    above = firstAboveNear(dates, fundDays[k], above);
     const latest = above - 1;
     const month = monthOfPoint(k, last, request);
     if (month === null) {
@@ -309,8 +326,9 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
   let end = 0;
   for (let k = 0; k < periods; k++) {
     const [from, to] = periodDays(request, pointDays, k);
-    begin = firstAtOrAbove(dates, from, begin);
-    end = firstAbove(dates, to, Math.max(end, begin));
+    // Epoch days are whole numbers: the first rate on or after `from` is the first above from − 1.
+    begin = firstAboveNear(dates, from - 1, begin);
+    end = firstAboveNear(dates, to, Math.max(end, begin));
     const rate = meanRate(source.rates, begin, end) ?? lookBackRate(source.rates, begin, to, request.frequency);
     if (rate === null) missing.push(describePeriod(pointDays[k + 1], request.frequency));
     else perPeriod[k] = request.ratePerPeriod(rate);

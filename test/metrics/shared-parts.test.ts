@@ -5,6 +5,8 @@ import { METRIC_IDS } from '../../src/metrics/kernels.js';
 import type { MetricInputs } from '../../src/metrics/compute.js';
 import { PairMoments, SeriesMoments, TargetSums } from '../../src/metrics/moments.js';
 import { basisStatistics, maxDrawdown } from '../../src/metrics/statistics.js';
+import { firstAboveNear } from '../../src/metrics/sampling.js';
+import { firstAbove } from '../../src/numeric/search.js';
 import { SeededRandom } from '../../src/random.js';
 import { frameFromSeries, findSeries } from '../../src/series/frame.js';
 import { masterRecord } from './builders.js';
@@ -15,7 +17,8 @@ import { AS_OF, universe } from '../reconcile/universe.js';
  * - the benchmark's and the risk-free returns of a window are kept across series and reused for a
  *   fund with the same sample days (a few calendars per key, the least recently used dropped);
  * - a window's moments are built part by part on first use, each by its own pass;
- * - the drawdown takes one division per peak instead of one per value.
+ * - the drawdown takes one division per peak instead of one per value;
+ * - the date searches step from the previous position by doubling steps.
  * Each is compared with the plain computation, with Object.is (so −0 and NaN count too).
  */
 
@@ -151,6 +154,18 @@ describe('max drawdown from each peak’s trough', () => {
         const withBad = [...values];
         withBad.splice(at % (values.length + 1), 0, bad);
         expect(Object.is(maxDrawdown(withBad), drawdownAtEveryValue(withBad))).toBe(true);
+      }),
+    );
+  });
+});
+
+describe('the search by doubling steps', () => {
+  it('finds what the binary search from the same start finds', () => {
+    fc.assert(
+      fc.property(fc.array(fc.integer({ min: -50, max: 400 }), { maxLength: 120 }), fc.integer({ min: -60, max: 420 }), fc.nat(), (days, x, start) => {
+        const sorted = Int32Array.from(days.sort((a, b) => a - b));
+        const from = start % (sorted.length + 1);
+        expect(firstAboveNear(sorted, x, from)).toBe(firstAbove(sorted, x, from));
       }),
     );
   });
