@@ -69,16 +69,18 @@ export function computeMetrics(request: ComputeMetricsRequest, calculator = new 
   for (const seriesId of calculator.seriesIds()) {
     for (const window of request.windows) {
       const stats = calculator.statistics({ seriesId, asOf: request.asOf, window, methodology });
-      for (const metric of metrics) rows.push(metricRow(seriesId, window, metric, figureOf(metric, stats, methodology)));
+      for (const metric of metrics) rows.push(metricRow(seriesId, window, metric, stats, methodology));
     }
   }
   return { as_of: formatIsoDate(request.asOf), methodology: describeMethodology(methodology), metrics: rows };
 }
 
-function metricRow(series_id: string, window: string, metric: MetricId, figure: MetricValue): MetricRow {
-  const { value, observations, reason } = figure;
-  const row = { series_id, window, metric, value, observations };
-  return reason === undefined ? row : { ...row, reason };
+/** A figure as a row of the answer, built in one object (the metrics stage makes one per figure). */
+function metricRow(series_id: string, window: string, metric: MetricId, stats: Outcome<WindowStatistics>, methodology: Methodology): MetricRow {
+  if (!stats.ok) return { series_id, window, metric, value: null, observations: 0, reason: stats.reason };
+  const observations = metric === 'max_drawdown' ? drawdownObservations(stats.value, methodology) : stats.value.n;
+  const outcome = metricFromStatistics(metric, stats.value, methodology);
+  return outcome.ok ? { series_id, window, metric, value: outcome.value, observations } : { series_id, window, metric, value: null, observations, reason: outcome.reason };
 }
 
 /** A metric from a window's statistics (or the window's own reason), as the answer reports it. */
@@ -111,6 +113,7 @@ export class MetricCalculator {
   /** The sampling key of the methodology asked for last (most requests share one methodology object). */
   private lastMethodology: Methodology | null = null;
   private lastSamplingKey = '';
+  private latestSeries: { readonly id: string; readonly statistics: Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>> } | null = null;
   private readonly parts = new LatestSeriesParts();
   private readonly sources = new SourceParts();
   private readonly spans = new Map<string, Map<number, Map<number, WindowMonths>>>();
@@ -140,7 +143,7 @@ export class MetricCalculator {
   /** The window's statistics (cached), or why the window cannot be computed at all. */
   statistics(request: Omit<MetricRequest, 'metric'>): Outcome<WindowStatistics> {
     const methodology = this.effectiveMethodology(request.methodology);
-    const bySampling = mapUnder(this.cache, request.seriesId);
+    const bySampling = this.statisticsOfSeries(request.seriesId);
     const byWindow = mapUnder(bySampling, this.samplingKey(methodology));
     const byAsOf = mapUnder(byWindow, request.window);
     let stats = byAsOf.get(request.asOf);
@@ -153,6 +156,12 @@ export class MetricCalculator {
       byAsOf.set(request.asOf, stats);
     }
     return stats;
+  }
+
+  /** The series' part of the cache; the latest one is at hand, since figures come series by series. */
+  private statisticsOfSeries(seriesId: string): Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>> {
+    if (seriesId !== this.latestSeries?.id) this.latestSeries = { id: seriesId, statistics: mapUnder(this.cache, seriesId) };
+    return this.latestSeries.statistics;
   }
 
   /** The window's returns as sampled under the methodology, or why they cannot be (nothing shared with the cache). */
