@@ -4,9 +4,9 @@ import { findSeries, type SeriesFrame } from '../series/frame.js';
 import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { failure, success, type Outcome } from '../outcome.js';
-import { sampleWindow, type BenchmarkSource, type RiskFreeSource, type SampleParts, type WindowSample } from './sampling.js';
+import { sampleWindow, type BenchmarkSource, type FundSample, type RiskFreeSource, type SampleParts, type WindowRequest, type WindowSample } from './sampling.js';
 import { log1pAll, windowStatistics, type WindowStatistics } from './statistics.js';
-import { parseWindow, windowMonths } from './windows.js';
+import { parseWindow, windowMonths, type WindowMonths } from './windows.js';
 
 /** The data metrics are computed from. */
 export interface MetricInputs {
@@ -69,16 +69,18 @@ export function computeMetrics(request: ComputeMetricsRequest, calculator = new 
   for (const seriesId of calculator.seriesIds()) {
     for (const window of request.windows) {
       const stats = calculator.statistics({ seriesId, asOf: request.asOf, window, methodology });
-      for (const metric of metrics) rows.push(metricRow(seriesId, window, metric, figureOf(metric, stats, methodology)));
+      for (const metric of metrics) rows.push(metricRow(seriesId, window, metric, stats, methodology));
     }
   }
   return { as_of: formatIsoDate(request.asOf), methodology: describeMethodology(methodology), metrics: rows };
 }
 
-function metricRow(series_id: string, window: string, metric: MetricId, figure: MetricValue): MetricRow {
-  const { value, observations, reason } = figure;
-  const row = { series_id, window, metric, value, observations };
-  return reason === undefined ? row : { ...row, reason };
+/** A figure as a row of the answer, built in one object (the metrics stage makes one per figure). */
+function metricRow(series_id: string, window: string, metric: MetricId, stats: Outcome<WindowStatistics>, methodology: Methodology): MetricRow {
+  if (!stats.ok) return { series_id, window, metric, value: null, observations: 0, reason: stats.reason };
+  const observations = metric === 'max_drawdown' ? drawdownObservations(stats.value, methodology) : stats.value.n;
+  const outcome = metricFromStatistics(metric, stats.value, methodology);
+  return outcome.ok ? { series_id, window, metric, value: outcome.value, observations } : { series_id, window, metric, value: null, observations, reason: outcome.reason };
 }
 
 /** A metric from a window's statistics (or the window's own reason), as the answer reports it. */
@@ -102,8 +104,19 @@ function drawdownObservations(stats: WindowStatistics, methodology: Methodology)
  */
 export class MetricCalculator {
   private readonly masterById = new Map<string, SeriesMasterRecord>();
-  private readonly cache = new Map<string, Outcome<WindowStatistics>>();
+  /**
+   * Statistics by series, sampling settings, window and as-of, one map per level: a look-up
+   * builds no key string (the reconcile stage looks up every figure again, and the search its
+   * variants; building and hashing a long key cost more than the rest of a look-up).
+   */
+  private readonly cache = new Map<string, Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>>>();
+  /** The sampling key of the methodology asked for last (most requests share one methodology object). */
+  private lastMethodology: Methodology | null = null;
+  private lastSamplingKey = '';
+  private latestSeries: { readonly id: string; readonly statistics: Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>> } | null = null;
   private readonly parts = new LatestSeriesParts();
+  private readonly sources = new SourceParts();
+  private readonly spans = new Map<string, Map<number, Map<number, WindowMonths>>>();
 
   constructor(private readonly inputs: MetricInputs) {
     for (const record of inputs.master) {
@@ -130,40 +143,77 @@ export class MetricCalculator {
   /** The window's statistics (cached), or why the window cannot be computed at all. */
   statistics(request: Omit<MetricRequest, 'metric'>): Outcome<WindowStatistics> {
     const methodology = this.effectiveMethodology(request.methodology);
-    const key = this.cacheKey(request, methodology);
-    let stats = this.cache.get(key);
+    const bySampling = this.statisticsOfSeries(request.seriesId);
+    const byWindow = mapUnder(bySampling, this.samplingKey(methodology));
+    const byAsOf = mapUnder(byWindow, request.window);
+    let stats = byAsOf.get(request.asOf);
     if (!stats) {
       const reuse = this.parts.reuseFor(request, methodology);
-      const sample = this.sampleWith({ ...request, methodology }, reuse?.parts);
-      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, reuse?.logOf) } : sample;
-      this.cache.set(key, stats);
+      const window = this.windowRequest({ ...request, methodology });
+      const sample = window.ok ? sampleWindow(window.value, this.partsFor(window.value, reuse)) : window;
+      const logOf = (returns: Float64Array) => this.sources.logOf(returns) ?? (reuse ? reuse.logOf(returns) : log1pAll(returns));
+      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, logOf) } : sample;
+      byAsOf.set(request.asOf, stats);
     }
     return stats;
   }
 
-  /** The window's returns as sampled under the methodology, or why they cannot be. */
-  sample(request: Omit<MetricRequest, 'metric'>): Outcome<WindowSample> {
-    return this.sampleWith(request);
+  /** The series' part of the cache; the latest one is at hand, since figures come series by series. */
+  private statisticsOfSeries(seriesId: string): Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>> {
+    if (seriesId !== this.latestSeries?.id) this.latestSeries = { id: seriesId, statistics: mapUnder(this.cache, seriesId) };
+    return this.latestSeries.statistics;
   }
 
-  private sampleWith(request: Omit<MetricRequest, 'metric'>, parts?: SampleParts): Outcome<WindowSample> {
+  /** The window's returns as sampled under the methodology, or why they cannot be (nothing shared with the cache). */
+  sample(request: Omit<MetricRequest, 'metric'>): Outcome<WindowSample> {
+    const window = this.windowRequest(request);
+    return window.ok ? sampleWindow(window.value) : window;
+  }
+
+  /** What sampling a window needs: the fund, its benchmark and rate sources, the span, the settings. */
+  private windowRequest(request: Omit<MetricRequest, 'metric'>): Outcome<SharedPartsRequest> {
     const methodology = this.effectiveMethodology(request.methodology);
-    const months = parseWindow(request.window);
-    if (months === null) throw new RangeError(unknownWindowMessage(request.window));
     const fund = findSeries(this.inputs.nav, request.seriesId);
+    const span = this.spanOf(request.asOf, request.window, methodology.window_end);
     if (!fund || fund.dates.length === 0) return { ok: false, reason: `series ${request.seriesId} has no NAV observations` };
-    return sampleWindow(
-      {
-      fund,
-      benchmark: this.benchmarkSource(request.seriesId, methodology),
-      riskFree: this.riskFreeSource(request.seriesId, methodology),
-      span: windowMonths(request.asOf, months, methodology.window_end),
-      asOf: request.asOf,
-      frequency: methodology.frequency,
-      ratePerPeriod: (annualRate) => perPeriodRate(annualRate, methodology),
+    return {
+      ok: true,
+      value: {
+        fund,
+        benchmark: this.benchmarkSource(request.seriesId, methodology),
+        riskFree: this.riskFreeSource(request.seriesId, methodology),
+        span,
+        asOf: request.asOf,
+        frequency: methodology.frequency,
+        ratePerPeriod: (annualRate) => perPeriodRate(annualRate, methodology),
+        ratePeriods: ratePeriodsOf(methodology),
+        rateConversion: methodology.rate_conversion,
       },
-      parts,
-    );
+    };
+  }
+
+  /** The window's months, made once per (as-of, window label, window end); an unknown label throws. */
+  private spanOf(asOf: number, window: string, windowEnd: number): WindowMonths {
+    const byWindowEnd = mapUnder(mapUnder(this.spans, window), asOf);
+    let span = byWindowEnd.get(windowEnd);
+    if (!span) {
+      const months = parseWindow(window);
+      if (months === null) throw new RangeError(unknownWindowMessage(window));
+      byWindowEnd.set(windowEnd, (span = windowMonths(asOf, months, windowEnd)));
+    }
+    return span;
+  }
+
+  /**
+   * Where this sampling keeps its parts: the fund's with the latest series' when the window was
+   * sampled before, the benchmark's and the rate's across series (SourceParts).
+   */
+  private partsFor(window: SharedPartsRequest, reuse: SeriesReuse | null): SampleParts {
+    return {
+      fund: reuse ? reuse.fund : (compute) => compute(),
+      benchmark: this.sources.benchmarkKeeper(window),
+      riskFree: this.sources.riskFreeKeeper(window),
+    };
   }
 
   /** The benchmark a series is measured against: the methodology's override, else the master's. */
@@ -201,27 +251,135 @@ export class MetricCalculator {
    * Everything that changes a window's sampling or its risk-free returns (the dimensions marked
    * `resamples` in METHODOLOGY_DIMENSIONS); the other dimensions are arithmetic on its statistics.
    */
-  private cacheKey(request: Omit<MetricRequest, 'metric'>, m: Methodology): string {
-    const sampling = [m.frequency, m.window_end, m.benchmark ?? '', riskFreeKey(m), ratePeriodsOf(m), m.rate_conversion];
-    return [request.seriesId, request.asOf, request.window, ...sampling].join('|');
+  private samplingKey(m: Methodology): string {
+    if (m !== this.lastMethodology) {
+      this.lastMethodology = m;
+      this.lastSamplingKey = `${m.frequency}|${m.window_end}|${m.benchmark ?? ''}|${riskFreeKey(m)}|${ratePeriodsOf(m)}|${m.rate_conversion}`;
+    }
+    return this.lastSamplingKey;
+  }
+
+}
+
+/** A window request with the two rate settings the risk-free part depends on, for its key. */
+interface SharedPartsRequest extends WindowRequest {
+  readonly ratePeriods: number;
+  readonly rateConversion: Methodology['rate_conversion'];
+}
+
+/** The map under `key` in `map`, made on first use. */
+function mapUnder<K, V extends Map<unknown, unknown>>(map: Map<K, V>, key: K): V {
+  let child = map.get(key);
+  if (child === undefined) map.set(key, (child = new Map() as V));
+  return child;
+}
+
+type PartKeeper = SampleParts['benchmark'];
+
+/**
+ * The benchmark's and the risk-free parts of window samples, kept across series: they depend on
+ * the fund only through its sample days (src/metrics/sampling.ts, SampleParts), and the funds of
+ * one calendar have the same days, so the next series' window usually reuses them. A few parts
+ * are kept per key (source, span, frequency, rate settings), each with the days it was computed
+ * on, so funds on a few calendars share them too; a part on other days replaces the one used
+ * least recently. The kept returns' ln(1 + r) are computed once. Memory stays small: a few
+ * hundred keys at most (benchmarks × frequencies × window ends × windows).
+ */
+class SourceParts {
+  /** Every kept returns array, with its logarithms once computed (null before). */
+  private readonly logs = new Map<Float64Array, Float64Array | null>();
+
+  /** By span (made once per as-of, window and window end), frequency and benchmark. */
+  private readonly benchmarkParts = new Map<WindowMonths, Map<string, Map<string, KeptPart[]>>>();
+  /** By span, frequency, rate id (or constant annual rate), periods a year and conversion. */
+  private readonly riskFreeParts = new Map<WindowMonths, Map<string, Map<string | number, Map<number, Map<string, KeptPart[]>>>>>();
+
+  /** Where the window's benchmark returns are kept; a missing benchmark's reason names the series, so it is never kept. */
+  benchmarkKeeper(window: SharedPartsRequest): PartKeeper {
+    if (!window.benchmark.ok) return (_days, compute) => compute();
+    const kept = keptUnder(mapUnder(mapUnder(this.benchmarkParts, window.span), window.frequency), window.benchmark.value.id);
+    return (days, compute) => this.part(kept, days, compute);
+  }
+
+  /** Where the window's risk-free returns are kept; a missing rate's reason may name the series, so it is never kept. */
+  riskFreeKeeper(window: SharedPartsRequest): PartKeeper {
+    if (!window.riskFree.ok) return (_days, compute) => compute();
+    const source = window.riskFree.value;
+    const byPeriods = mapUnder(mapUnder(mapUnder(this.riskFreeParts, window.span), window.frequency), 'annualRate' in source ? source.annualRate : source.id);
+    const kept = keptUnder(mapUnder(byPeriods, window.ratePeriods), window.rateConversion);
+    return (days, compute) => this.part(kept, days, compute);
+  }
+
+  private part(kept: KeptPart[], days: Int32Array, compute: () => Outcome<Float64Array>): Outcome<Float64Array> {
+    const at = kept.findIndex((entry) => sameDays(entry.days, days));
+    if (at >= 0) {
+      const entry = kept[at];
+      if (at > 0) {
+        kept.splice(at, 1);
+        kept.unshift(entry);
+      }
+      return entry.part;
+    }
+    const part = compute();
+    kept.unshift({ days, part });
+    if (part.ok) this.logs.set(part.value, null);
+    const dropped = kept.length > PARTS_KEPT_PER_KEY ? kept.pop() : undefined;
+    if (dropped?.part.ok) this.logs.delete(dropped.part.value);
+    return part;
+  }
+
+  /** ln(1 + r) of a kept returns array, or undefined for an array not kept here. */
+  logOf(returns: Float64Array): Float64Array | undefined {
+    const logs = this.logs.get(returns);
+    if (logs !== null) return logs;
+    const computed = log1pAll(returns);
+    this.logs.set(returns, computed);
+    return computed;
   }
 }
 
+function keptUnder<K>(map: Map<K, KeptPart[]>, key: K): KeptPart[] {
+  let kept = map.get(key);
+  if (kept === undefined) map.set(key, (kept = []));
+  return kept;
+}
+
+interface KeptPart {
+  readonly days: Int32Array;
+  readonly part: Outcome<Float64Array>;
+}
+
+/** Parts kept per key: room for a few calendars (the standard universe has two). */
+const PARTS_KEPT_PER_KEY = 4;
+
+function sameDays(a: Int32Array, b: Int32Array): boolean {
+  if (a === b) return true;
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+/** What a window sampled again for the latest series reuses: its fund part, and logarithms once computed. */
+interface SeriesReuse {
+  readonly fund: SampleParts['fund'];
+  readonly logOf: (returns: Float64Array) => Float64Array;
+}
+
 /**
- * The parts of the latest series' window samples (src/metrics/sampling.ts, SampleParts), each
- * under the settings it depends on, and ln(1 + r) of their returns. Only one series' parts are
- * kept: the convention search asks for one figure's variants together, and figures come series
- * by series, so memory stays that of one series however large the universe. A window sampled
- * once (every window of the metrics stage) keeps nothing: keeping costs more than it saves there.
+ * The fund parts of the latest series' window samples (src/metrics/sampling.ts, SampleParts),
+ * each under the settings it depends on, and ln(1 + r) of their returns. Only one series' parts
+ * are kept: the convention search asks for one figure's variants together, and figures come
+ * series by series, so memory stays that of one series however large the universe. A window
+ * sampled once (every window of the metrics stage) keeps nothing: keeping costs more than it saves there.
  */
 class LatestSeriesParts {
   private seriesId: string | null = null;
   private readonly sampled = new Set<string>();
-  private readonly kept = new Map<string, Outcome<unknown>>();
+  private readonly kept = new Map<string, Outcome<FundSample>>();
   private readonly logs = new Map<Float64Array, Float64Array>();
 
   /** What to reuse for this sampling of a window, or null the first time the series' window is sampled. */
-  reuseFor(request: Omit<MetricRequest, 'metric'>, m: Methodology): { parts: SampleParts; logOf: (returns: Float64Array) => Float64Array } | null {
+  reuseFor(request: Omit<MetricRequest, 'metric'>, m: Methodology): SeriesReuse | null {
     if (request.seriesId !== this.seriesId) {
       this.sampled.clear();
       this.kept.clear();
@@ -233,19 +391,15 @@ class LatestSeriesParts {
       this.sampled.add(label);
       return null;
     }
-    const window = `${label}|${m.frequency}|${m.window_end}`;
+    const key = `${label}|${m.frequency}|${m.window_end}`;
     return {
-      parts: {
-        fund: (compute) => this.keep(`fund|${window}`, compute),
-        benchmark: (compute) => this.keep(`benchmark|${window}|${m.benchmark ?? ''}`, compute),
-        riskFree: (compute) => this.keep(`risk-free|${window}|${riskFreeKey(m)}|${ratePeriodsOf(m)}|${m.rate_conversion}`, compute),
-      },
+      fund: (compute) => this.keep(key, compute),
       logOf: (returns) => this.logOf(returns),
     };
   }
 
-  private keep<T>(key: string, compute: () => Outcome<T>): Outcome<T> {
-    let part = this.kept.get(key) as Outcome<T> | undefined;
+  private keep(key: string, compute: () => Outcome<FundSample>): Outcome<FundSample> {
+    let part = this.kept.get(key);
     if (!part) this.kept.set(key, (part = compute()));
     return part;
   }

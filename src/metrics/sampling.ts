@@ -1,5 +1,5 @@
 import type { Outcome } from '../outcome.js';
-import { firstAbove, firstAtOrAbove } from '../numeric/search.js';
+import { firstAbove } from '../numeric/search.js';
 import { formatIsoDate, isoWeekStart, monthEndDay, monthIndex } from '../calendar/days.js';
 import type { Frequency } from './methodology.js';
 import { formatMonth, monthStartDay, type WindowMonths } from './windows.js';
@@ -63,21 +63,27 @@ export type FundSample = Pick<WindowSample, 'fund' | 'navPath' | 'pointDays'>;
  * search asks for the same window under many methodologies: another benchmark leaves the fund's
  * returns and the risk-free returns as they were, another rate conversion the fund's and the
  * benchmark's. Each function gets the part's computation and returns its result, computed or kept.
+ * The benchmark's and the rate's parts depend on the fund only through its sample days, which
+ * they are given: funds on one calendar have the same days, so those parts can be kept across series.
  */
 export interface SampleParts {
   readonly fund: (compute: () => Outcome<FundSample>) => Outcome<FundSample>;
-  readonly benchmark: (compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
-  readonly riskFree: (compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
+  readonly benchmark: (pointDays: Int32Array, compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
+  readonly riskFree: (pointDays: Int32Array, compute: () => Outcome<Float64Array>) => Outcome<Float64Array>;
 }
 
-const COMPUTED_EACH_TIME: SampleParts = { fund: (compute) => compute(), benchmark: (compute) => compute(), riskFree: (compute) => compute() };
+const COMPUTED_EACH_TIME: SampleParts = {
+  fund: (compute) => compute(),
+  benchmark: (_pointDays, compute) => compute(),
+  riskFree: (_pointDays, compute) => compute(),
+};
 
 export function sampleWindow(request: WindowRequest, parts: SampleParts = COMPUTED_EACH_TIME): Outcome<WindowSample> {
   const sampled = parts.fund(() => sampleFund(request));
   if (!sampled.ok) return sampled;
   const { pointDays } = sampled.value;
-  const benchmark = parts.benchmark(() => benchmarkReturns(request, pointDays));
-  const riskFree = parts.riskFree(() => riskFreeReturns(request, pointDays));
+  const benchmark = parts.benchmark(pointDays, () => benchmarkReturns(request, pointDays));
+  const riskFree = parts.riskFree(pointDays, () => riskFreeReturns(request, pointDays));
   return {
     ok: true,
     value: {
@@ -96,7 +102,9 @@ function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'fre
   const { fund, span, asOf, frequency } = request;
   const fundMonthEnds = coverWindow(fund, span, asOf, 'NAV');
   if (!fundMonthEnds.ok) return fundMonthEnds;
-  const sampled = positiveAt(fund, samplePoints(fund.dates, fundMonthEnds.value, frequency), 'NAV');
+  const candidates = samplePoints(fund.dates, fundMonthEnds.value, frequency);
+  // Monthly, the points are the month-end values coverWindow has already found positive.
+  const sampled = candidates === fundMonthEnds.value ? fundMonthEnds : positiveAt(fund, candidates, 'NAV');
   if (!sampled.ok) return sampled;
   const points = sampled.value;
   return {
@@ -111,6 +119,23 @@ function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'fre
 
 // ---------------------------------------------------------------------------------------------
 // Month-end values
+
+/**
+ * firstAbove(sorted, x, start) found by steps doubling from `start` (1, 2, 4 …), then a binary
+ * search between the last two: a few comparisons when the answer lies near `start`, as it does
+ * for the next month's or the next day's point.
+ */
+export function firstAboveNear(sorted: Int32Array, x: number, start: number): number {
+  let low = start;
+  let high = start;
+  let step = 1;
+  while (high < sorted.length && sorted[high] <= x) {
+    low = high + 1;
+    high = low + step;
+    step *= 2;
+  }
+  return firstAbove(sorted, x, low, Math.min(high, sorted.length));
+}
 
 /** Index of the first date above `day` (binary search). */
 export function upperBound(dates: Int32Array, day: number): number {
@@ -131,8 +156,11 @@ export function monthEndIndex(dates: Int32Array, month: number, cutoff: number):
 /** Month-end indices for every month of the span (start month included), −1 where missing. */
 export function monthEndIndices(dates: Int32Array, span: WindowMonths, cutoff: number): Int32Array {
   const indices = new Int32Array(span.months + 1);
+  // The months ascend, so each month's search starts where the previous one ended.
+  let above = 0;
   for (let k = 0; k <= span.months; k++) {
-    const last = upperBound(dates, Math.min(span.lastDays[k + 1], cutoff)) - 1;
+    above = firstAboveNear(dates, Math.min(span.lastDays[k + 1], cutoff), above);
+    const last = above - 1;
     indices[k] = last >= 0 && dates[last] > span.lastDays[k] ? last : -1;
   }
   return indices;
@@ -248,7 +276,7 @@ export function benchmarkPointsOnFundDates(
   // walk for daily points, a narrowed binary search for monthly ones. `above` is upperBound(dates, fundDays[k]).
   let above = 0;
   for (let k = 0; k <= last; k++) {
-    above = firstAbove(dates, fundDays[k], above);
+    above = firstAboveNear(dates, fundDays[k], above);
     const latest = above - 1;
     const month = monthOfPoint(k, last, request);
     if (month === null) {
@@ -298,8 +326,9 @@ function riskFreeReturns(request: WindowRequest, pointDays: Int32Array): Outcome
   let end = 0;
   for (let k = 0; k < periods; k++) {
     const [from, to] = periodDays(request, pointDays, k);
-    begin = firstAtOrAbove(dates, from, begin);
-    end = firstAbove(dates, to, Math.max(end, begin));
+    // Epoch days are whole numbers: the first rate on or after `from` is the first above from − 1.
+    begin = firstAboveNear(dates, from - 1, begin);
+    end = firstAboveNear(dates, to, Math.max(end, begin));
     const rate = meanRate(source.rates, begin, end) ?? lookBackRate(source.rates, begin, to, request.frequency);
     if (rate === null) missing.push(describePeriod(pointDays[k + 1], request.frequency));
     else perPeriod[k] = request.ratePerPeriod(rate);

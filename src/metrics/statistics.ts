@@ -54,62 +54,168 @@ export interface WindowStatistics {
  * same arrays to many windows (src/metrics/compute.ts, for the convention search's variants).
  */
 export function windowStatistics(sample: WindowSample, logOf: (returns: Float64Array) => Float64Array = log1pAll): WindowStatistics {
-  const n = sample.fund.length;
-  const zeros = new Float64Array(n);
-  const fund = sample.fund;
-  const benchmark = sample.benchmark ?? zeros;
-  const riskFree = sample.riskFree ?? zeros;
-  const logFund = logOf(fund);
-  const logBenchmark = logOf(benchmark);
-  return {
-    n,
-    simple: basisStatistics(fund, benchmark, riskFree),
-    log: basisStatistics(logFund, logBenchmark, riskFree),
-    growth: { fund: sum(logFund), benchmark: sum(logBenchmark), riskFree: sum(logOf(riskFree)) },
-    maxDrawdown: maxDrawdown(sample.navPath),
-    navObservations: sample.navPath.length,
-    sampledMaxDrawdown: maxDrawdownOfReturns(fund),
-    days: sample.pointDays.length > 0 ? sample.pointDays[sample.pointDays.length - 1] - sample.pointDays[0] : 0,
-    fundReturns: { simple: fund, log: logFund },
-    fixedTargets: new Map(),
-    benchmarkReason: sample.benchmarkReason,
-    riskFreeReason: sample.riskFreeReason,
-  };
+  return new LazyWindowStatistics(sample, logOf);
 }
 
-/** All of one basis' moments in a single pass over fund, benchmark and risk-free returns. */
-export function basisStatistics(fund: Float64Array, benchmark: Float64Array, riskFree: Float64Array): BasisStatistics {
-  const stats = {
-    raw: new PairMoments(),
-    excess: new PairMoments(),
-    active: new SeriesMoments(),
-    belowRiskFree: new TargetSums(),
-    belowZero: new TargetSums(),
-  };
-  for (let i = 0; i < fund.length; i++) {
-    const p = fund[i];
-    const b = benchmark[i];
-    const f = riskFree[i];
-    stats.raw.add(b, p);
-    stats.excess.add(b - f, p - f);
-    stats.active.add(p - b);
-    stats.belowRiskFree.add(p, f);
-    stats.belowZero.add(p, 0);
+/**
+ * A window's statistics, each part built on first use from the sample it keeps: a figure reads
+ * only some of them (a beta never reads the drawdown, a figure on simple returns never the log
+ * moments), and the convention search builds many windows to read one figure from each. A part
+ * is the same function of the same returns whenever it is built, so the figures are those of
+ * building every part at once.
+ */
+class LazyWindowStatistics implements WindowStatistics {
+  readonly n: number;
+  readonly navObservations: number;
+  readonly days: number;
+  readonly fixedTargets = new Map<string, TargetSums>();
+  readonly benchmarkReason: string | null;
+  readonly riskFreeReason: string | null;
+  private readonly fund: Float64Array;
+  /** The benchmark's and the rate's returns, zeros where the sample has none. */
+  private readonly benchmark: Float64Array;
+  private readonly riskFree: Float64Array;
+  private builtSimple: BasisStatistics | undefined;
+  private builtLog: BasisStatistics | undefined;
+  private builtGrowth: WindowStatistics['growth'] | undefined;
+  private builtMaxDrawdown: number | undefined;
+  private builtSampledMaxDrawdown: number | undefined;
+  private builtFundReturns: WindowStatistics['fundReturns'] | undefined;
+
+  constructor(
+    private readonly sample: WindowSample,
+    private readonly logOf: (returns: Float64Array) => Float64Array,
+  ) {
+    this.n = sample.fund.length;
+    this.fund = sample.fund;
+    const zeros = sample.benchmark && sample.riskFree ? null : new Float64Array(this.n);
+    this.benchmark = sample.benchmark ?? zeros!;
+    this.riskFree = sample.riskFree ?? zeros!;
+    this.navObservations = sample.navPath.length;
+    const days = sample.pointDays;
+    this.days = days.length > 0 ? days[days.length - 1] - days[0] : 0;
+    this.benchmarkReason = sample.benchmarkReason;
+    this.riskFreeReason = sample.riskFreeReason;
   }
-  return stats;
+
+  get simple(): BasisStatistics {
+    return (this.builtSimple ??= basisStatistics(this.fund, this.benchmark, this.riskFree));
+  }
+
+  get log(): BasisStatistics {
+    return (this.builtLog ??= basisStatistics(this.logOf(this.fund), this.logOf(this.benchmark), this.riskFree));
+  }
+
+  get growth(): WindowStatistics['growth'] {
+    return (this.builtGrowth ??= {
+      fund: sum(this.logOf(this.fund)),
+      benchmark: sum(this.logOf(this.benchmark)),
+      riskFree: sum(this.logOf(this.riskFree)),
+    });
+  }
+
+  get maxDrawdown(): number {
+    return (this.builtMaxDrawdown ??= maxDrawdown(this.sample.navPath));
+  }
+
+  get sampledMaxDrawdown(): number {
+    return (this.builtSampledMaxDrawdown ??= maxDrawdownOfReturns(this.fund));
+  }
+
+  get fundReturns(): WindowStatistics['fundReturns'] {
+    return (this.builtFundReturns ??= { simple: this.fund, log: this.logOf(this.fund) });
+  }
 }
 
-/** The largest fall from a running peak, as a positive fraction of the peak; NaN if a value is not positive. */
+/**
+ * One basis' moments, each built on first use by its own pass over the returns (a beta reads only
+ * the excess pair, a standard deviation only the raw one). Each accumulator sees the same values
+ * in the same order as in one pass over all of them, so its sums are the same to the last bit.
+ */
+export function basisStatistics(fund: Float64Array, benchmark: Float64Array, riskFree: Float64Array): BasisStatistics {
+  return new LazyBasisStatistics(fund, benchmark, riskFree);
+}
+
+class LazyBasisStatistics implements BasisStatistics {
+  private builtRaw: PairMoments | undefined;
+  private builtExcess: PairMoments | undefined;
+  private builtActive: SeriesMoments | undefined;
+  private builtBelowRiskFree: TargetSums | undefined;
+  private builtBelowZero: TargetSums | undefined;
+
+  constructor(
+    private readonly fund: Float64Array,
+    private readonly benchmark: Float64Array,
+    private readonly riskFree: Float64Array,
+  ) {}
+
+  get raw(): PairMoments {
+    if (this.builtRaw) return this.builtRaw;
+    const { fund, benchmark } = this;
+    const raw = new PairMoments();
+    for (let i = 0; i < fund.length; i++) raw.add(benchmark[i], fund[i]);
+    return (this.builtRaw = raw);
+  }
+
+  get excess(): PairMoments {
+    if (this.builtExcess) return this.builtExcess;
+    const { fund, benchmark, riskFree } = this;
+    const excess = new PairMoments();
+    for (let i = 0; i < fund.length; i++) {
+      const f = riskFree[i];
+      excess.add(benchmark[i] - f, fund[i] - f);
+    }
+    return (this.builtExcess = excess);
+  }
+
+  get active(): SeriesMoments {
+    if (this.builtActive) return this.builtActive;
+    const { fund, benchmark } = this;
+    const active = new SeriesMoments();
+    for (let i = 0; i < fund.length; i++) active.add(fund[i] - benchmark[i]);
+    return (this.builtActive = active);
+  }
+
+  get belowRiskFree(): TargetSums {
+    if (this.builtBelowRiskFree) return this.builtBelowRiskFree;
+    const { fund, riskFree } = this;
+    const sums = new TargetSums();
+    for (let i = 0; i < fund.length; i++) sums.add(fund[i], riskFree[i]);
+    return (this.builtBelowRiskFree = sums);
+  }
+
+  get belowZero(): TargetSums {
+    if (this.builtBelowZero) return this.builtBelowZero;
+    const { fund } = this;
+    const sums = new TargetSums();
+    for (let i = 0; i < fund.length; i++) sums.add(fund[i], 0);
+    return (this.builtBelowZero = sums);
+  }
+}
+
+/**
+ * The largest fall from a running peak, as a positive fraction of the peak; NaN if a value is not
+ * positive. Under one peak, 1 − value / peak is largest at the lowest value (a division by a
+ * positive number and a subtraction from 1 never reverse an order, even rounded), so each peak's
+ * fall is computed once from its trough instead of at every value: the same number, one division
+ * per peak instead of one per value.
+ */
 export function maxDrawdown(values: ArrayLike<number>): number {
   let peak = -Infinity;
+  let trough = Infinity;
   let deepest = 0;
   for (let i = 0; i < values.length; i++) {
     const value = values[i];
     if (!(value > 0 && value < Infinity)) return NaN;
-    if (value > peak) peak = value;
-    else deepest = Math.max(deepest, 1 - value / peak);
+    if (value > peak) {
+      if (trough !== Infinity) deepest = Math.max(deepest, 1 - trough / peak);
+      peak = value;
+      trough = Infinity;
+    } else if (value < trough) {
+      trough = value;
+    }
   }
-  return deepest;
+  return trough === Infinity ? deepest : Math.max(deepest, 1 - trough / peak);
 }
 
 /** The largest fall of the value path 1, (1 + r_1), (1 + r_1)(1 + r_2), …: the drawdown at the sample points. */

@@ -100,6 +100,7 @@ export function reconcile(inputs: ReconcileInputs, settings: ReconcileSettings):
     master: new Map(inputs.data.master.map((record) => [record.series_id, record])),
     benchmarks: benchmarkIds(inputs.data),
     spanOf: memoized((asOf: number, window: string) => windowDaySpan(asOf, window, methodology.window_end)),
+    isoDateOf: latestOf(formatIsoDate),
   };
   const figures = inputs.vendor.filter(
     (figure) => (settings.asOf === undefined || figure.as_of === settings.asOf) && (settings.through === undefined || figure.as_of <= settings.through),
@@ -132,14 +133,27 @@ interface FigureContext {
   readonly benchmarks: readonly string[];
   /** The days a window's data comes from, for the suspect-data look-up (few distinct as-ofs and windows). */
   readonly spanOf: (asOf: number, window: string) => DaySpan | null;
+  /** The as-of day written out (a day's vendor figures share one as-of). */
+  readonly isoDateOf: (day: number) => string;
 }
 
+/** A function of one number that remembers its latest answer. */
+function latestOf<T>(compute: (value: number) => T): (value: number) => T {
+  let last: { value: number; answer: T } | null = null;
+  return (value) => {
+    if (last === null || last.value !== value) last = { value, answer: compute(value) };
+    return last.answer;
+  };
+}
+
+/** Keyed by window, then as-of: a look-up per figure builds no key string. */
 function memoized<T>(compute: (asOf: number, window: string) => T): (asOf: number, window: string) => T {
-  const memo = new Map<string, T>();
+  const memo = new Map<string, Map<number, T>>();
   return (asOf, window) => {
-    const key = `${asOf}|${window}`;
-    if (!memo.has(key)) memo.set(key, compute(asOf, window));
-    return memo.get(key)!;
+    let byAsOf = memo.get(window);
+    if (!byAsOf) memo.set(window, (byAsOf = new Map()));
+    if (!byAsOf.has(asOf)) byAsOf.set(asOf, compute(asOf, window));
+    return byAsOf.get(asOf)!;
   };
 }
 
@@ -147,7 +161,7 @@ function reconcileFigure(figure: VendorFigureRecord, context: FigureContext): Re
   const printed_half_unit = halfUnitOfPrinted(figure);
   const base = {
     series_id: figure.series_id,
-    as_of: formatIsoDate(figure.as_of),
+    as_of: context.isoDateOf(figure.as_of),
     window: figure.window,
     metric: figure.metric,
     vendor: figure.value,

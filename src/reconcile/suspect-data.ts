@@ -14,6 +14,9 @@ import { monthStartDay, parseWindow, windowMonths } from '../metrics/windows.js'
 /** Findings about the vendor's own file say nothing about the data a figure is computed from. */
 const NOT_ABOUT_DATA = new Set(['vendor_inconsistent']);
 
+/** No finding: one shared empty list, never written. */
+const NONE: readonly Finding[] = [];
+
 /** The error-level findings of each series (or benchmark), for window look-ups. */
 export class SuspectData {
   private readonly bySeries = new Map<string, Array<{ finding: Finding; first: number; last: number }>>();
@@ -42,9 +45,12 @@ export class SuspectData {
   }
 
   /** The findings a figure's window holds: the series', and its benchmark's for a benchmark figure. */
-  forFigure(seriesId: string, benchmarkId: string | null, metric: MetricId, span: DaySpan | null): Finding[] {
-    if (span === null) return [];
-    return this.within(needsBenchmark(metric) ? [seriesId, benchmarkId] : [seriesId], span);
+  forFigure(seriesId: string, benchmarkId: string | null, metric: MetricId, span: DaySpan | null): readonly Finding[] {
+    if (span === null) return NONE;
+    const withBenchmark = needsBenchmark(metric);
+    // Most figures' series and benchmark have no error-level finding: answer those without building lists.
+    if (!this.bySeries.has(seriesId) && !(withBenchmark && benchmarkId !== null && this.bySeries.has(benchmarkId))) return NONE;
+    return this.within(withBenchmark ? [seriesId, benchmarkId] : [seriesId], span);
   }
 }
 
@@ -76,8 +82,8 @@ export function markSuspectFigures(answer: MetricsAnswer, findings: readonly Fin
   const metrics = answer.metrics.map((row): MetricRow => {
     if (!spans.has(row.window)) spans.set(row.window, windowDaySpan(asOf, row.window, answer.methodology.window_end));
     const benchmark = answer.methodology.benchmark ?? benchmarkOf.get(row.series_id) ?? null;
-    const keys = suspects.forFigure(row.series_id, benchmark, row.metric, spans.get(row.window)!).map((finding) => finding.key);
-    return keys.length === 0 ? row : { ...row, suspect_data: keys };
+    const found = suspects.forFigure(row.series_id, benchmark, row.metric, spans.get(row.window)!);
+    return found.length === 0 ? row : { ...row, suspect_data: found.map((finding) => finding.key) };
   });
   return { ...answer, metrics };
 }

@@ -65,6 +65,8 @@ export interface ToleranceSettings {
 /** The tolerance of one metric for one series: defaults, then run, category and series overrides. */
 export class ToleranceResolver {
   private readonly categories: Map<string, MetricOverrides>;
+  /** Each category as the master writes it, with its overrides (normalising the name per figure cost more than the rest). */
+  private readonly byWrittenCategory = new Map<string, MetricOverrides | undefined>();
 
   constructor(private readonly settings: ToleranceSettings = {}) {
     this.categories = new Map(Object.entries(settings.categories ?? {}).map(([name, overrides]) => [normalise(name), overrides]));
@@ -73,8 +75,13 @@ export class ToleranceResolver {
   resolve(metric: MetricId, category: string | null | undefined, seriesId: string): Tolerance {
     let tolerance = DEFAULT_TOLERANCES[metric];
     tolerance = merge(tolerance, this.settings.run?.[metric]);
-    if (category) tolerance = merge(tolerance, this.categories.get(normalise(category))?.[metric]);
+    if (category && this.categories.size > 0) tolerance = merge(tolerance, this.overridesOf(category)?.[metric]);
     return merge(tolerance, this.settings.series?.[seriesId]?.[metric]);
+  }
+
+  private overridesOf(category: string): MetricOverrides | undefined {
+    if (!this.byWrittenCategory.has(category)) this.byWrittenCategory.set(category, this.categories.get(normalise(category)));
+    return this.byWrittenCategory.get(category);
   }
 }
 

@@ -5,8 +5,9 @@ import { SeededRandom } from '../../src/random.js';
 import { AS_OF, universe } from '../reconcile/universe.js';
 
 /**
- * The calculator keeps the latest series' sample parts (fund, benchmark and risk-free returns)
- * and reuses them across methodology variants, the way the convention search asks for them.
+ * The calculator keeps the latest series' fund parts, and the benchmark and risk-free returns of
+ * each window across series, and reuses them across methodology variants, the way the convention
+ * search asks for them (test/metrics/shared-parts.test.ts puts funds on several calendars).
  * Reuse is only a speed-up: every figure must be exactly (bit for bit) what a fresh calculator
  * computes for that one figure alone, whatever order the requests come in.
  */
