@@ -178,13 +178,19 @@ export interface Fit {
  * finds (a split of ln 2 among daily moves of 0.01 would otherwise bend the line).
  */
 export function fitAgainstBenchmark(fund: Float64Array, bench: Float64Array, span: Float64Array): Fit {
-  let fit: Fit = { intercept: 0, beta: 1, scale: Infinity };
-  for (let pass = 0; pass < 2; pass++) fit = leastSquares(fund, bench, span, fit);
-  return fit;
+  // No step is gross against an infinite scale: the first fit is over every step with a benchmark move.
+  const first = leastSquares(fund, bench, span, { intercept: 0, beta: 1, scale: Infinity });
+  return leastSquares(fund, bench, span, first.fit, first.used).fit;
 }
 
-/** Least squares over the steps the previous fit does not call gross, with the robust scale of the result. */
-function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Array, previous: Fit): Fit {
+/**
+ * Least squares over the steps the previous fit does not call gross, with the robust scale of
+ * the result, and the number of steps used. When `previous` was fitted over `previousUsed`
+ * steps, all of which this pass keeps too (it calls none gross, as for nearly every series),
+ * this fit's sums, line and scale are the previous one's very numbers, computed in the same
+ * order: it is returned as it is instead of selecting the scale's two medians again.
+ */
+function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Array, previous: Fit, previousUsed = -1): { fit: Fit; used: number } {
   let n = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
   for (let k = 0; k < fund.length; k++) {
     const x = bench[k];
@@ -197,10 +203,12 @@ function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Arra
     sxx += x * x;
     sxy += x * y;
   }
+  // This pass keeps a subset of the previous one's steps (every step with a benchmark move): the same count is the same set.
+  if (n === previousUsed) return { fit: previous, used: n };
   const varX = sxx - (sx * sx) / n;
   const beta = n >= 3 && varX > 0 ? (sxy - (sx * sy) / n) / varX : previous.beta;
   const intercept = n >= 3 ? (sy - beta * sx) / n : 0;
-  return { intercept, beta, scale: residualScale(fund, bench, span, intercept, beta) };
+  return { fit: { intercept, beta, scale: residualScale(fund, bench, span, intercept, beta) }, used: n };
 }
 
 function residualScale(fund: Float64Array, bench: Float64Array, span: Float64Array, intercept: number, beta: number): number {
