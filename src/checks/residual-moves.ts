@@ -212,7 +212,7 @@ function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Arra
 }
 
 function residualScale(fund: Float64Array, bench: Float64Array, span: Float64Array, intercept: number, beta: number): number {
-  const perDay = new Float64Array(fund.length);
+  const perDay = workArray(fund.length);
   let n = 0;
   for (let k = 0; k < fund.length; k++) {
     if (Number.isFinite(bench[k])) perDay[n++] = (fund[k] - intercept * span[k] - beta * bench[k]) / Math.sqrt(span[k]);
@@ -221,11 +221,22 @@ function residualScale(fund: Float64Array, bench: Float64Array, span: Float64Arr
 }
 
 function fitAlone(fund: Float64Array, span: Float64Array): Fit {
-  const perDay = new Float64Array(fund.length);
+  const perDay = workArray(fund.length);
   for (let k = 0; k < fund.length; k++) perDay[k] = fund[k] / span[k];
   const drift = fund.length > 0 ? median(perDay) : 0;
   for (let k = 0; k < fund.length; k++) perDay[k] = (fund[k] - drift * span[k]) / Math.sqrt(span[k]);
   return { intercept: drift, beta: 0, scale: floorScale(robustScale(perDay, 0)) };
+}
+
+/**
+ * One working array for the fits' per-day moves and the top |z| selection, reused from series
+ * to series instead of three fresh ones per series: a view of `n` values, valid until the next call.
+ */
+let work = new Float64Array(0);
+
+function workArray(n: number): Float64Array {
+  if (work.length < n) work = new Float64Array(Math.max(n, 2 * work.length));
+  return work.subarray(0, n);
 }
 
 /** A flat or perfectly smooth series has zero spread; a tiny floor keeps z finite. */
@@ -238,16 +249,17 @@ function floorScale(scale: number): number {
  * estimate's largest 5 %, with or without one step left out (ranks from n − ⌊0.05 n⌋ − 3).
  */
 function topMagnitudes(z: Float64Array): TopMagnitudes {
-  const work = new Float64Array(z.length);
+  const magnitudes = workArray(z.length);
   let count = 0;
   for (let k = 0; k < z.length; k++) {
     const magnitude = Math.abs(z[k]);
-    if (Number.isFinite(magnitude)) work[count++] = magnitude;
+    if (Number.isFinite(magnitude)) magnitudes[count++] = magnitude;
   }
   const from = Math.max(0, count - Math.floor(0.05 * count) - 3);
-  const all = work.subarray(0, count);
+  const all = magnitudes.subarray(0, count);
   if (count > 0) kthSmallest(all, from);
-  return { count, from, values: all.subarray(from).sort() };
+  // The top ranks are kept with the model: copied out of the working array.
+  return { count, from, values: all.slice(from).sort() };
 }
 
 function rankOf(top: TopMagnitudes, rank: number): number {
