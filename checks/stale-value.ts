@@ -33,8 +33,11 @@ export const staleValue: SeriesCheck<StaleParams> = {
   run(series, context, params) {
     if (context.master?.stable_value) return [];
     const rows = positiveFirstRows(series, context.asOf);
-    if (rows.length < 2 || accruesSmoothly(series, rows, params.accrual_max_daily)) return [];
+    if (rows.length < 2) return [];
     const runStarts = equalValueRuns(series, rows);
+    // Only runs of two or more equal values are judged, and most series have none (a run per
+    // observation): those need no accrual test and no chance model, the largest cost of the check.
+    if (runStarts.length - 1 === rows.length || accruesSmoothly(series, rows, params.accrual_max_daily)) return [];
     const model = chanceModel(series, rows, runStarts, context, params);
     const calendar = calendarOf(context);
     const judged: Array<{ first: number; last: number; length: number; days: number; chance: number; required: number }> = [];
