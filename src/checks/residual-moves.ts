@@ -128,19 +128,32 @@ function computeMoves(series: SeriesSlice, context: SeriesContext): ResidualMove
     }
   }
   const hasBenchmark = benchmark !== undefined;
-  const alone = fitAlone(fund, span);
-  const fit = hasBenchmark ? fitAgainstBenchmark(fund, bench, span) : alone;
+  // The series' fit alone judges only the steps the benchmark cannot price: a benchmark that
+  // prices every step (as for most funds) leaves it unread, so it is not made.
+  const alone = hasBenchmark && pricesEveryStep(bench) ? undefined : fitAlone(fund, span);
+  const fit = hasBenchmark || alone === undefined ? fitAgainstBenchmark(fund, bench, span) : alone;
   const residual = new Float64Array(count);
   const z = new Float64Array(count);
   for (let k = 0; k < count; k++) {
     // A step the benchmark cannot price is judged against the series' own typical move.
     const own = !hasBenchmark || !Number.isFinite(bench[k]);
-    residual[k] = own ? fund[k] - alone.intercept * span[k] : fund[k] - fit.intercept * span[k] - fit.beta * bench[k];
-    z[k] = residual[k] / ((own ? alone.scale : fit.scale) * Math.sqrt(span[k]));
+    if (own && alone) {
+      residual[k] = fund[k] - alone.intercept * span[k];
+      z[k] = residual[k] / (alone.scale * Math.sqrt(span[k]));
+    } else {
+      residual[k] = fund[k] - fit.intercept * span[k] - fit.beta * bench[k];
+      z[k] = residual[k] / (fit.scale * Math.sqrt(span[k]));
+    }
   }
   const tail = topMagnitudes(z);
   const extreme = tail.count >= 50 ? rankOf(tail, Math.floor(0.99 * (tail.count - 1))) : 2.576;
   return { count, from, to, raw, fund, bench, benchFrom, benchTo, span, residual, z, hasBenchmark, ...fit, extreme, tail };
+}
+
+/** True when every step has the benchmark's move (none is NaN or infinite). */
+function pricesEveryStep(bench: Float64Array): boolean {
+  for (let k = 0; k < bench.length; k++) if (!Number.isFinite(bench[k])) return false;
+  return true;
 }
 
 /**
