@@ -205,11 +205,15 @@ export function fitAgainstBenchmark(fund: Float64Array, bench: Float64Array, spa
  */
 function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Array, previous: Fit, previousUsed = -1): { fit: Fit; used: number } {
   let n = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+  // Against an infinite scale no step is gross (the bar is infinite): the test is left out.
+  const testsGross = previous.scale !== Infinity;
+  const { intercept: previousIntercept, beta: previousBeta } = previous;
+  const bar = GROSS_Z * previous.scale;
   for (let k = 0; k < fund.length; k++) {
     const x = bench[k];
     const y = fund[k];
     if (!Number.isFinite(x)) continue;
-    if (Math.abs(y - previous.intercept * span[k] - previous.beta * x) > GROSS_Z * previous.scale * Math.sqrt(span[k])) continue;
+    if (testsGross && Math.abs(y - previousIntercept * span[k] - previousBeta * x) > bar * Math.sqrt(span[k])) continue;
     n++;
     sx += x;
     sy += y;

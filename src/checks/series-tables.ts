@@ -21,6 +21,13 @@ const MAX_DAYS_PER_ROW = 16;
 interface Tables {
   days?: DayTable;
   moves?: Float64Array;
+  spans?: SpanMoves;
+}
+
+/** `move[p]` = ln(values[to[p]] / values[p]) for the last `to[p]` asked (−1: none yet). */
+interface SpanMoves {
+  readonly to: Int32Array;
+  readonly move: Float64Array;
 }
 
 /** The tables of one frame's series, built on first use (frames never change once built). */
@@ -51,6 +58,32 @@ export class FrameTables {
     }
     return tables.moves;
   }
+
+  /** The remembered span moves of series `index` (see `spanLogMove`). */
+  spanMoves(index: number): SpanMoves {
+    const tables = (this.bySeries[index] ??= {});
+    if (!tables.spans) {
+      const n = this.frame.offsets[index + 1] - this.frame.offsets[index];
+      tables.spans = { to: new Int32Array(n).fill(-1), move: new Float64Array(n) };
+    }
+    return tables.spans;
+  }
+}
+
+/**
+ * ln(values[q] / values[p]) of series `index` of `tables`' frame, computed as that very expression and
+ * remembered with `p` for the last `q` asked: every fund of a calendar asks for the same weeks
+ * of every benchmark, and most funds share their calendar.
+ */
+export function spanLogMove(tables: FrameTables, index: number, p: number, q: number): number {
+  const spans = tables.spanMoves(index);
+  if (spans.to[p] !== q) {
+    const values = tables.frame.values;
+    const start = tables.frame.offsets[index];
+    spans.move[p] = Math.log(values[start + q] / values[start + p]);
+    spans.to[p] = q;
+  }
+  return spans.move[p];
 }
 
 /**
