@@ -118,10 +118,14 @@ function buildDayTable(dates: Int32Array): DayTable {
 export function indexInFrame(frame: SeriesFrame | undefined, slice: SeriesSlice): number {
   const index = frame?.indexById.get(slice.id);
   if (frame === undefined || index === undefined) return -1;
-  const own = seriesAt(frame, index);
-  return sameView(own.dates, slice.dates) && sameView(own.values, slice.values) ? index : -1;
+  // The views `seriesAt(frame, index)` would make, compared without making them (three per call).
+  const start = frame.offsets[index];
+  const end = frame.offsets[index + 1];
+  return viewsRows(frame.dates, slice.dates, start, end) && viewsRows(frame.values, slice.values, start, end) ? index : -1;
 }
 
-function sameView(x: ArrayBufferView, y: ArrayBufferView): boolean {
-  return x.buffer === y.buffer && x.byteOffset === y.byteOffset && x.byteLength === y.byteLength;
+/** True when `part` views rows `start` to `end − 1` of `whole`, as `whole.subarray(start, end)` does. */
+function viewsRows(whole: Int32Array | Float64Array, part: ArrayBufferView, start: number, end: number): boolean {
+  const size = whole.BYTES_PER_ELEMENT;
+  return part.buffer === whole.buffer && part.byteOffset === whole.byteOffset + start * size && part.byteLength === (end - start) * size;
 }

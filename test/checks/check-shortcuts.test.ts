@@ -7,9 +7,9 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { fitAgainstBenchmark, GROSS_Z, type Fit } from '../../src/checks/residual-moves.js';
-import { FrameTables, spanLogMove } from '../../src/checks/series-tables.js';
+import { FrameTables, indexInFrame, spanLogMove } from '../../src/checks/series-tables.js';
 import { median, robustScale } from '../../src/checks/support.js';
-import { frameFromSeries } from '../../src/series/frame.js';
+import { frameFromSeries, seriesAt } from '../../src/series/frame.js';
 
 /** The median by sorting a copy: the textbook definition. */
 function sortedMedian(values: ArrayLike<number>): number {
@@ -99,6 +99,22 @@ describe('check shortcuts', () => {
       }),
       { numRuns: 300 },
     );
+  });
+
+  it('indexInFrame finds a series of the frame by its views, and no copy or other stretch of rows', () => {
+    const frame = frameFromSeries([
+      { id: 'A', dates: [20000, 20001, 20002], values: [1, 2, 3] },
+      { id: 'B', dates: [20000, 20001], values: [4, 5] },
+      { id: 'C', dates: [20005], values: [6] },
+    ]);
+    for (let i = 0; i < 3; i++) expect(indexInFrame(frame, seriesAt(frame, i))).toBe(i);
+    const b = seriesAt(frame, 1);
+    expect(indexInFrame(frame, { ...b, dates: b.dates.slice(), values: b.values })).toBe(-1);
+    expect(indexInFrame(frame, { ...b, values: b.values.slice() })).toBe(-1);
+    // The right id over another series' rows, or over fewer rows, is not that series.
+    expect(indexInFrame(frame, { ...seriesAt(frame, 0), id: 'B' })).toBe(-1);
+    expect(indexInFrame(frame, { ...b, dates: frame.dates.subarray(3, 4), values: frame.values.subarray(3, 4) })).toBe(-1);
+    expect(indexInFrame(undefined, b)).toBe(-1);
   });
 
   it('median and robustScale in reused arrays give the plain numbers, call after call, short and long', () => {
