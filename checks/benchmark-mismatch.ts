@@ -4,7 +4,7 @@ import { isoWeekStart } from '../src/calendar/days.js';
 import { seriesAt } from '../src/series/frame.js';
 import { movesOf } from '../src/checks/move-analysis.js';
 import { GROSS_Z, type ResidualMoves } from '../src/checks/residual-moves.js';
-import { FrameTables, indexInFrame, searchTable, type DayTable } from '../src/checks/series-tables.js';
+import { FrameTables, indexInFrame, searchTable, spanLogMove, type DayTable } from '../src/checks/series-tables.js';
 import { isoDate, makeFinding, round } from '../src/checks/support.js';
 
 interface MismatchParams {
@@ -104,20 +104,22 @@ interface Verdict {
   from: number;
 }
 
-/** A benchmark of the feed with its day table (see `weekMove`). */
+/** A benchmark of the feed with its day table, and its place in the tables when it has one (see `weekMove`). */
 interface Priced {
   readonly series: SeriesSlice;
   readonly days: DayTable;
+  readonly tables?: FrameTables;
+  readonly index: number;
 }
 
 function pricedAt(tables: FrameTables, index: number): Priced {
-  return { series: seriesAt(tables.frame, index), days: tables.dayTable(index) };
+  return { series: seriesAt(tables.frame, index), days: tables.dayTable(index), tables, index };
 }
 
 /** The assigned benchmark, a series of the feed's benchmark frame (the runner looked it up there). */
 function assignedOf(benchmark: SeriesSlice, tables: FrameTables): Priced {
   const index = indexInFrame(tables.frame, benchmark);
-  return index >= 0 ? pricedAt(tables, index) : { series: benchmark, days: searchTable(benchmark) };
+  return index >= 0 ? pricedAt(tables, index) : { series: benchmark, days: searchTable(benchmark), index: -1 };
 }
 
 function judgeIndexFund(weeks: Week[], benchmark: SeriesSlice, tables: FrameTables, params: MismatchParams): Verdict | null {
@@ -193,7 +195,9 @@ function weekMove(week: Week, benchmark: Priced): number {
   const p = benchmark.days.at(week.start);
   const q = benchmark.days.at(week.end);
   const values = benchmark.series.values;
-  return p >= 0 && q > p && values[p] > 0 && values[q] > 0 ? Math.log(values[q] / values[p]) : NaN;
+  if (!(p >= 0 && q > p && values[p] > 0 && values[q] > 0)) return NaN;
+  // Funds of one calendar share their weeks: the tables remember each benchmark's move over them.
+  return benchmark.tables ? spanLogMove(benchmark.tables, benchmark.index, p, q) : Math.log(values[q] / values[p]);
 }
 
 /** Sums of the steps ending in each ISO week; weeks holding a gross error are left out. */

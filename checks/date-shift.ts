@@ -202,8 +202,9 @@ function judgeWindow(returns: ResidualMoves, benchmark: SeriesSlice, usable: Int
  */
 function lagCorrelations(returns: ResidualMoves, benchmark: SeriesSlice, usable: Int32Array, first: number, last: number, params: ShiftParams, work: Work): Float64Array {
   const n = last - first + 1;
-  const fund = work.fund.length >= n ? work.fund.subarray(0, n) : new Float64Array(n);
-  const bench = work.bench.length >= n ? work.bench.subarray(0, n) : new Float64Array(n);
+  // A window fills the buffers exactly (no view to make); a span placed later may be longer or shorter.
+  const fund = work.fund.length === n ? work.fund : work.fund.length > n ? work.fund.subarray(0, n) : new Float64Array(n);
+  const bench = work.bench.length === n ? work.bench : work.bench.length > n ? work.bench.subarray(0, n) : new Float64Array(n);
   const correlations = work.correlations.length === 2 * params.max_lag + 1 ? work.correlations.fill(NaN) : new Float64Array(2 * params.max_lag + 1).fill(NaN);
   for (let i = 0; i < n; i++) {
     fund[i] = returns.fund[usable[first + i]];

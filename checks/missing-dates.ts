@@ -1,5 +1,6 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import type { SeriesSlice } from '../src/series/frame.js';
+import type { BusinessCalendars } from '../src/calendar/business-calendar.js';
 import { calendarOf, capped, isoDate, makeFinding } from '../src/checks/support.js';
 
 /**
@@ -34,7 +35,8 @@ export const missingDates: SeriesCheck<{ min_days: number }> = {
     for (let i = 0; i < series.dates.length; i++) {
       const day = series.dates[i];
       if (day > context.asOf) break;
-      if (previous >= 0 && day > previous + 1) {
+      // Most gaps are weekends: the list of missing days is built only when there is one.
+      if (previous >= 0 && day > previous + 1 && someBusinessDayBetween(context.calendars, calendar, series.dates[previous], day)) {
         const missing = context.calendars.businessDaysBetween(calendar, series.dates[previous], day);
         if (missing.length >= params.min_days && missing.length > 0) findings.push(describe(series, missing, calendar, previous, i, null));
       }
@@ -69,4 +71,10 @@ function describe(series: SeriesSlice, missing: number[], calendar: string | und
     },
     identity: [isoDate(first)],
   });
+}
+
+/** True when `businessDaysBetween(calendar, from, to)` would list any day. */
+function someBusinessDayBetween(calendars: BusinessCalendars, calendar: string | undefined, from: number, to: number): boolean {
+  for (let day = from + 1; day < to; day++) if (calendars.isBusinessDay(calendar, day)) return true;
+  return false;
 }

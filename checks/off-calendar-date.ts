@@ -1,6 +1,8 @@
 import type { SeriesCheck } from '../src/checks/check.js';
 import { isoWeekday } from '../src/calendar/days.js';
-import { calendarOf, firstRowOfEachDate, isoDate, makeFinding } from '../src/checks/support.js';
+import type { SeriesSlice } from '../src/series/frame.js';
+import type { BusinessCalendars } from '../src/calendar/business-calendar.js';
+import { calendarOf, isoDate, makeFinding } from '../src/checks/support.js';
 
 const WEEKDAY_NAMES = ['', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday', 'Sunday'];
 
@@ -12,8 +14,7 @@ export const offCalendarDate: SeriesCheck<Record<string, never>> = {
   defaults: {},
   run(series, context) {
     const calendar = calendarOf(context);
-    return firstRowOfEachDate(series)
-      .filter((row) => !context.calendars.isBusinessDay(calendar, series.dates[row]))
+    return offCalendarRows(series, context.calendars, calendar)
       .map((row) => {
         const day = series.dates[row];
         const weekend = context.calendars.isWeekend(day);
@@ -31,3 +32,13 @@ export const offCalendarDate: SeriesCheck<Record<string, never>> = {
       });
   },
 };
+
+/** The first row of each date that is not a business day of `calendar`, in one pass (no list of every date first). */
+function offCalendarRows(series: SeriesSlice, calendars: BusinessCalendars, calendar: string | undefined): number[] {
+  const rows: number[] = [];
+  const dates = series.dates;
+  for (let i = 0; i < dates.length; i++) {
+    if ((i === 0 || dates[i] !== dates[i - 1]) && !calendars.isBusinessDay(calendar, dates[i])) rows.push(i);
+  }
+  return rows;
+}

@@ -39,7 +39,11 @@ export const spikeReversal: SeriesCheck<SpikeParams> = {
     const returns = analysis.model;
     const findings = [];
     let atLag: LaggedFit | undefined;
+    // Every test below asks the way out for at least the spike bar or TIGHT_MIN_Z: smaller steps,
+    // nearly all of them, are passed over at once.
+    const quiet = Math.min(spikeBar(returns, params), TIGHT_MIN_Z);
     for (let k = 0; k + 1 < returns.count; k++) {
+      if (Math.abs(returns.z[k]) < quiet) continue;
       const swap = swappedDigitsSpike(series, returns, k, params);
       if (!(swap || isSpikeReversal(returns, k, params) || isTightReversal(returns, k, params)) || inShiftedSpan(analysis, k)) continue;
       // Two rows disagree on the spike's date: one finding (duplicate_conflict) for one cause.

@@ -100,8 +100,23 @@ function undoesPrevious(returns: ResidualMoves, k: number): boolean {
 
 const LOG_RATIOS = SIMPLE_RATIOS.map(Math.log);
 
+/**
+ * ln(1 + tolerance), kept for the last tolerance asked: `nearestSimpleRatio` runs on every
+ * step of every series with the same tolerance, and the logarithm was most of its cost.
+ */
+let lastTolerance = NaN;
+let lastBand = NaN;
+
+function logBand(tolerance: number): number {
+  if (tolerance !== lastTolerance) {
+    lastBand = Math.log(1 + tolerance);
+    lastTolerance = tolerance;
+  }
+  return lastBand;
+}
+
 function nearestSimpleRatio(logMove: number, tolerance: number): number | null {
-  const band = Math.log(1 + tolerance);
+  const band = logBand(tolerance);
   if (Math.abs(logMove) < Math.LN2 - band) return null;
   for (let i = 0; i < LOG_RATIOS.length; i++) if (Math.abs(logMove - LOG_RATIOS[i]) < band) return SIMPLE_RATIOS[i];
   return null;

@@ -33,8 +33,11 @@ export const staleValue: SeriesCheck<StaleParams> = {
   run(series, context, params) {
     if (context.master?.stable_value) return [];
     const rows = positiveFirstRows(series, context.asOf);
-    if (rows.length < 2 || accruesSmoothly(series, rows, params.accrual_max_daily)) return [];
+    if (rows.length < 2) return [];
     const runStarts = equalValueRuns(series, rows);
+    // Only runs of two or more equal values are judged, and most series have none (a run per
+    // observation): those need no accrual test and no chance model, the largest cost of the check.
+    if (runStarts.length - 1 === rows.length || accruesSmoothly(series, rows, params.accrual_max_daily)) return [];
     const model = chanceModel(series, rows, runStarts, context, params);
     const calendar = calendarOf(context);
     const judged: Array<{ first: number; last: number; length: number; days: number; chance: number; required: number }> = [];
@@ -284,7 +287,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runStarts: Int32Array,
   const benchMoves = benchmark ? benchmarkStepMoves(context, benchmark) : undefined;
   const calendar = calendarOf(context);
   const shown = decimalsShown(series, rows);
-  const tickOf = blockTicks(series, rows, shown);
+  const blockTick = blockTicks(series, rows, shown);
   // The grid right around a step: a 2-decimal stretch next to values re-rounded to 4 decimals
   // (after a mispricing or a rescaling) keeps its own coarser tick.
   const nearTick = nearTicks(series, rows, shown);
@@ -314,7 +317,7 @@ function chanceModel(series: SeriesSlice, rows: number[], runStarts: Int32Array,
       }
     }
     const level = series.values[a];
-    const tick = Math.max(tickOf(k), nearTick[k]);
+    const tick = Math.max(blockTick[Math.floor(k / BLOCK_SIZE)], nearTick[k]);
     chance[k] = sameBinChance(level * mean, level * sd, tick);
     implied[k] = Math.abs(level * mean) / tick;
     spread[k] = (level * sd) / tick;
@@ -397,22 +400,25 @@ function normalCdf(x: number): number {
 }
 
 /**
- * The printed tick near each step: the finest grid the values of its block of 2·TICK_WINDOW
- * observations sit on (decimals shown, then the greatest common divisor of the values in
+ * The printed tick of each block of 2·TICK_WINDOW observations (step k reads block
+ * ⌊k / BLOCK_SIZE⌋): the finest grid the block's values sit on (decimals shown, then the greatest common divisor of the values in
  * units of the last decimal, so prices quoted in half-cents, or a 2-decimal NAV halved by a
  * split, have a tick of 0.005). Blocks, not the whole series, because the printed precision
  * can change within a history (a new administrator, a split printed to more decimals).
  */
-function blockTicks(series: SeriesSlice, rows: number[], shown: Uint8Array): (k: number) => number {
-  const size = 2 * TICK_WINDOW;
-  const ticks: number[] = [];
-  for (let start = 0; start < rows.length; start += size) {
-    const end = Math.min(rows.length, start + size);
+function blockTicks(series: SeriesSlice, rows: number[], shown: Uint8Array): Float64Array {
+  const ticks = new Float64Array(Math.ceil(rows.length / BLOCK_SIZE));
+  for (let block = 0; block < ticks.length; block++) {
+    const start = block * BLOCK_SIZE;
+    const end = Math.min(rows.length, start + BLOCK_SIZE);
     // A short last block borrows the values before it.
-    ticks.push(printedTick(series, rows, Math.max(0, Math.min(start, end - size)), end, shown));
+    ticks[block] = printedTick(series, rows, Math.max(0, Math.min(start, end - BLOCK_SIZE)), end, shown);
   }
-  return (k: number) => ticks[Math.floor(k / size)];
+  return ticks;
 }
+
+/** Observations in a block of `blockTicks`. */
+const BLOCK_SIZE = 2 * TICK_WINDOW;
 
 /** 10^k and 10^−k for the decimals a printed value can show, computed once (a power per value was a hot spot). */
 const POWERS_OF_TEN = Array.from({ length: 9 }, (_, k) => 10 ** k);

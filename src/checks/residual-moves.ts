@@ -128,19 +128,32 @@ function computeMoves(series: SeriesSlice, context: SeriesContext): ResidualMove
     }
   }
   const hasBenchmark = benchmark !== undefined;
-  const alone = fitAlone(fund, span);
-  const fit = hasBenchmark ? fitAgainstBenchmark(fund, bench, span) : alone;
+  // The series' fit alone judges only the steps the benchmark cannot price: a benchmark that
+  // prices every step (as for most funds) leaves it unread, so it is not made.
+  const alone = hasBenchmark && pricesEveryStep(bench) ? undefined : fitAlone(fund, span);
+  const fit = hasBenchmark || alone === undefined ? fitAgainstBenchmark(fund, bench, span) : alone;
   const residual = new Float64Array(count);
   const z = new Float64Array(count);
   for (let k = 0; k < count; k++) {
     // A step the benchmark cannot price is judged against the series' own typical move.
     const own = !hasBenchmark || !Number.isFinite(bench[k]);
-    residual[k] = own ? fund[k] - alone.intercept * span[k] : fund[k] - fit.intercept * span[k] - fit.beta * bench[k];
-    z[k] = residual[k] / ((own ? alone.scale : fit.scale) * Math.sqrt(span[k]));
+    if (own && alone) {
+      residual[k] = fund[k] - alone.intercept * span[k];
+      z[k] = residual[k] / (alone.scale * Math.sqrt(span[k]));
+    } else {
+      residual[k] = fund[k] - fit.intercept * span[k] - fit.beta * bench[k];
+      z[k] = residual[k] / (fit.scale * Math.sqrt(span[k]));
+    }
   }
   const tail = topMagnitudes(z);
   const extreme = tail.count >= 50 ? rankOf(tail, Math.floor(0.99 * (tail.count - 1))) : 2.576;
   return { count, from, to, raw, fund, bench, benchFrom, benchTo, span, residual, z, hasBenchmark, ...fit, extreme, tail };
+}
+
+/** True when every step has the benchmark's move (none is NaN or infinite). */
+function pricesEveryStep(bench: Float64Array): boolean {
+  for (let k = 0; k < bench.length; k++) if (!Number.isFinite(bench[k])) return false;
+  return true;
 }
 
 /**
@@ -178,33 +191,45 @@ export interface Fit {
  * finds (a split of ln 2 among daily moves of 0.01 would otherwise bend the line).
  */
 export function fitAgainstBenchmark(fund: Float64Array, bench: Float64Array, span: Float64Array): Fit {
-  let fit: Fit = { intercept: 0, beta: 1, scale: Infinity };
-  for (let pass = 0; pass < 2; pass++) fit = leastSquares(fund, bench, span, fit);
-  return fit;
+  // No step is gross against an infinite scale: the first fit is over every step with a benchmark move.
+  const first = leastSquares(fund, bench, span, { intercept: 0, beta: 1, scale: Infinity });
+  return leastSquares(fund, bench, span, first.fit, first.used).fit;
 }
 
-/** Least squares over the steps the previous fit does not call gross, with the robust scale of the result. */
-function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Array, previous: Fit): Fit {
+/**
+ * Least squares over the steps the previous fit does not call gross, with the robust scale of
+ * the result, and the number of steps used. When `previous` was fitted over `previousUsed`
+ * steps, all of which this pass keeps too (it calls none gross, as for nearly every series),
+ * this fit's sums, line and scale are the previous one's very numbers, computed in the same
+ * order: it is returned as it is instead of selecting the scale's two medians again.
+ */
+function leastSquares(fund: Float64Array, bench: Float64Array, span: Float64Array, previous: Fit, previousUsed = -1): { fit: Fit; used: number } {
   let n = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+  // Against an infinite scale no step is gross (the bar is infinite): the test is left out.
+  const testsGross = previous.scale !== Infinity;
+  const { intercept: previousIntercept, beta: previousBeta } = previous;
+  const bar = GROSS_Z * previous.scale;
   for (let k = 0; k < fund.length; k++) {
     const x = bench[k];
     const y = fund[k];
     if (!Number.isFinite(x)) continue;
-    if (Math.abs(y - previous.intercept * span[k] - previous.beta * x) > GROSS_Z * previous.scale * Math.sqrt(span[k])) continue;
+    if (testsGross && Math.abs(y - previousIntercept * span[k] - previousBeta * x) > bar * Math.sqrt(span[k])) continue;
     n++;
     sx += x;
     sy += y;
     sxx += x * x;
     sxy += x * y;
   }
+  // This pass keeps a subset of the previous one's steps (every step with a benchmark move): the same count is the same set.
+  if (n === previousUsed) return { fit: previous, used: n };
   const varX = sxx - (sx * sx) / n;
   const beta = n >= 3 && varX > 0 ? (sxy - (sx * sy) / n) / varX : previous.beta;
   const intercept = n >= 3 ? (sy - beta * sx) / n : 0;
-  return { intercept, beta, scale: residualScale(fund, bench, span, intercept, beta) };
+  return { fit: { intercept, beta, scale: residualScale(fund, bench, span, intercept, beta) }, used: n };
 }
 
 function residualScale(fund: Float64Array, bench: Float64Array, span: Float64Array, intercept: number, beta: number): number {
-  const perDay = new Float64Array(fund.length);
+  const perDay = workArray(fund.length);
   let n = 0;
   for (let k = 0; k < fund.length; k++) {
     if (Number.isFinite(bench[k])) perDay[n++] = (fund[k] - intercept * span[k] - beta * bench[k]) / Math.sqrt(span[k]);
@@ -213,11 +238,22 @@ function residualScale(fund: Float64Array, bench: Float64Array, span: Float64Arr
 }
 
 function fitAlone(fund: Float64Array, span: Float64Array): Fit {
-  const perDay = new Float64Array(fund.length);
+  const perDay = workArray(fund.length);
   for (let k = 0; k < fund.length; k++) perDay[k] = fund[k] / span[k];
   const drift = fund.length > 0 ? median(perDay) : 0;
   for (let k = 0; k < fund.length; k++) perDay[k] = (fund[k] - drift * span[k]) / Math.sqrt(span[k]);
   return { intercept: drift, beta: 0, scale: floorScale(robustScale(perDay, 0)) };
+}
+
+/**
+ * One working array for the fits' per-day moves and the top |z| selection, reused from series
+ * to series instead of three fresh ones per series: a view of `n` values, valid until the next call.
+ */
+let work = new Float64Array(0);
+
+function workArray(n: number): Float64Array {
+  if (work.length < n) work = new Float64Array(Math.max(n, 2 * work.length));
+  return work.subarray(0, n);
 }
 
 /** A flat or perfectly smooth series has zero spread; a tiny floor keeps z finite. */
@@ -230,16 +266,17 @@ function floorScale(scale: number): number {
  * estimate's largest 5 %, with or without one step left out (ranks from n − ⌊0.05 n⌋ − 3).
  */
 function topMagnitudes(z: Float64Array): TopMagnitudes {
-  const work = new Float64Array(z.length);
+  const magnitudes = workArray(z.length);
   let count = 0;
   for (let k = 0; k < z.length; k++) {
     const magnitude = Math.abs(z[k]);
-    if (Number.isFinite(magnitude)) work[count++] = magnitude;
+    if (Number.isFinite(magnitude)) magnitudes[count++] = magnitude;
   }
   const from = Math.max(0, count - Math.floor(0.05 * count) - 3);
-  const all = work.subarray(0, count);
+  const all = magnitudes.subarray(0, count);
   if (count > 0) kthSmallest(all, from);
-  return { count, from, values: all.subarray(from).sort() };
+  // The top ranks are kept with the model: copied out of the working array.
+  return { count, from, values: all.slice(from).sort() };
 }
 
 function rankOf(top: TopMagnitudes, rank: number): number {

@@ -21,6 +21,13 @@ const MAX_DAYS_PER_ROW = 16;
 interface Tables {
   days?: DayTable;
   moves?: Float64Array;
+  spans?: SpanMoves;
+}
+
+/** `move[p]` = ln(values[to[p]] / values[p]) for the last `to[p]` asked (−1: none yet). */
+interface SpanMoves {
+  readonly to: Int32Array;
+  readonly move: Float64Array;
 }
 
 /** The tables of one frame's series, built on first use (frames never change once built). */
@@ -51,6 +58,32 @@ export class FrameTables {
     }
     return tables.moves;
   }
+
+  /** The remembered span moves of series `index` (see `spanLogMove`). */
+  spanMoves(index: number): SpanMoves {
+    const tables = (this.bySeries[index] ??= {});
+    if (!tables.spans) {
+      const n = this.frame.offsets[index + 1] - this.frame.offsets[index];
+      tables.spans = { to: new Int32Array(n).fill(-1), move: new Float64Array(n) };
+    }
+    return tables.spans;
+  }
+}
+
+/**
+ * ln(values[q] / values[p]) of series `index` of `tables`' frame, computed as that very expression and
+ * remembered with `p` for the last `q` asked: every fund of a calendar asks for the same weeks
+ * of every benchmark, and most funds share their calendar.
+ */
+export function spanLogMove(tables: FrameTables, index: number, p: number, q: number): number {
+  const spans = tables.spanMoves(index);
+  if (spans.to[p] !== q) {
+    const values = tables.frame.values;
+    const start = tables.frame.offsets[index];
+    spans.move[p] = Math.log(values[start + q] / values[start + p]);
+    spans.to[p] = q;
+  }
+  return spans.move[p];
 }
 
 /**
@@ -85,10 +118,14 @@ function buildDayTable(dates: Int32Array): DayTable {
 export function indexInFrame(frame: SeriesFrame | undefined, slice: SeriesSlice): number {
   const index = frame?.indexById.get(slice.id);
   if (frame === undefined || index === undefined) return -1;
-  const own = seriesAt(frame, index);
-  return sameView(own.dates, slice.dates) && sameView(own.values, slice.values) ? index : -1;
+  // The views `seriesAt(frame, index)` would make, compared without making them (three per call).
+  const start = frame.offsets[index];
+  const end = frame.offsets[index + 1];
+  return viewsRows(frame.dates, slice.dates, start, end) && viewsRows(frame.values, slice.values, start, end) ? index : -1;
 }
 
-function sameView(x: ArrayBufferView, y: ArrayBufferView): boolean {
-  return x.buffer === y.buffer && x.byteOffset === y.byteOffset && x.byteLength === y.byteLength;
+/** True when `part` views rows `start` to `end − 1` of `whole`, as `whole.subarray(start, end)` does. */
+function viewsRows(whole: Int32Array | Float64Array, part: ArrayBufferView, start: number, end: number): boolean {
+  const size = whole.BYTES_PER_ELEMENT;
+  return part.buffer === whole.buffer && part.byteOffset === whole.byteOffset + start * size && part.byteLength === (end - start) * size;
 }

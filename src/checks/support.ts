@@ -75,9 +75,21 @@ export function median(values: ArrayLike<number>): number {
   if (n === 0) return NaN;
   const bracketed = bracketedMedian(values);
   if (bracketed !== undefined) return bracketed;
-  const work = new Float64Array(n); // a plain copy loop: Float64Array.from walks an iterator
+  const work = scratch(n, 0); // a plain copy loop: Float64Array.from walks an iterator
   for (let i = 0; i < n; i++) work[i] = values[i];
   return medianInPlace(work);
+}
+
+/**
+ * Working arrays reused from call to call (a fresh array per median and robust scale was a
+ * steady share of the checks' garbage collection): `scratch(n, slot)` is a view of `n` values,
+ * valid until the next call for the same slot. Slot 0 serves `median`, slot 1 `robustScale`.
+ */
+const scratchArrays = [new Float64Array(0), new Float64Array(0)];
+
+function scratch(n: number, slot: 0 | 1): Float64Array {
+  if (scratchArrays[slot].length < n) scratchArrays[slot] = new Float64Array(Math.max(n, 2 * scratchArrays[slot].length));
+  return scratchArrays[slot].subarray(0, n);
 }
 
 export { kthSmallest };
@@ -151,7 +163,7 @@ function mergeRuns(order: Int32Array, sorted: Float64Array, toOrder: Int32Array,
 
 /** Median absolute deviation scaled by 1.4826, so it estimates the standard deviation of normal data. */
 export function robustScale(values: ArrayLike<number>, centre = median(values)): number {
-  const deviations = new Float64Array(values.length);
+  const deviations = scratch(values.length, 1);
   for (let i = 0; i < values.length; i++) deviations[i] = Math.abs(values[i] - centre);
   return 1.4826 * (bracketedMedian(deviations) ?? medianInPlace(deviations));
 }
