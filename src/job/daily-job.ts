@@ -68,7 +68,7 @@ export async function runDailyJob(config: RunConfig, asOf: number, onStage: Stag
   });
   const snapshot = await storing;
   onStage('writing the reports …');
-  const answers = await answersStage(day, { feed: config.feed, check, metrics, reconciliation, tickets, notices: snapshot.notices }, config.output);
+  const answers = answersStage(day, { feed: config.feed, check, metrics, reconciliation, tickets, notices: snapshot.notices }, config.output);
   return {
     config,
     day,

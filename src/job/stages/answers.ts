@@ -5,8 +5,7 @@ import type { MetricsAnswer } from '../../metrics/compute.js';
 import type { ReconcileAnswer } from '../../reconcile/reconcile.js';
 import { checkView, type CheckAnswer } from '../../report/check-answer.js';
 import { buildDailyReport, dailyFiles, flagFigures, navChart, type DailyReport, type NavChart } from '../../report/daily/index.js';
-import { OverlappedWriter } from '../../report/overlapped-writer.js';
-import { rejectedRowsToCsv } from '../../store/rejected-csv.js';
+import { writeFileAtomically, writeQuarantine } from '../../report/files.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { reconcileView } from '../../report/reconcile-answer.js';
 import { renderInPieces, type OutputFormat } from '../../report/render.js';
@@ -43,7 +42,7 @@ export interface WrittenAnswers {
  * tickets.jsonl and .csv, figures.csv), each command's answer in each configured format
  * (check.*, metrics.*, reconcile.*), and the quarantine.
  */
-export async function answersStage(day: Day, answers: StageAnswers, place: ReportPlace): Promise<WrittenAnswers> {
+export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace): WrittenAnswers {
   const { check, metrics, reconciliation, tickets } = answers;
   const tooLong = tablesTooLongToRead(place, check, metrics, reconciliation);
   const notices = tooLong.length
@@ -64,27 +63,26 @@ export async function answersStage(day: Day, answers: StageAnswers, place: Repor
     charts: chartsOf(day, tickets.records, check.findings),
     notices: [...answers.notices, ...tickets.notices, ...notices],
   });
-  // Each file goes to the disk while the next one is made; all are on the disk before the stage ends.
-  const writer = new OverlappedWriter();
   const written: string[] = [];
-  const write = async (name: string, text: string | Iterable<string>) => {
+  const write = (name: string, text: string | Iterable<string>) => {
     const path = join(place.dir, name);
-    await writer.write(path, text);
+    writeFileAtomically(path, text);
     written.push(path);
   };
-  for (const [name, make] of Object.entries(dailyFiles(report, flaggedFigures))) await write(name, make());
-  const writeTable = async (name: CommandAnswer, format: OutputFormat, text: () => string | Iterable<string>) => {
-    if (!(FOR_READING.has(format) && tooLong.includes(name))) await write(reportFileName(name, format), text());
+  for (const [name, make] of Object.entries(dailyFiles(report, flaggedFigures))) write(name, make());
+  const writeTable = (name: CommandAnswer, format: OutputFormat, text: () => string | Iterable<string>) => {
+    if (!(FOR_READING.has(format) && tooLong.includes(name))) write(reportFileName(name, format), text());
   };
   // Each view is built at most once, and only for a format that reads it (json does not).
   const views = { check: once(() => checkView(check)), metrics: metrics && once(() => metricsView(metrics)), reconcile: reconciliation && once(() => reconcileView(reconciliation)) };
   for (const format of place.formats) {
-    await writeTable('check', format, () => renderInPieces(format, check, views.check));
-    if (metrics && views.metrics) await writeTable('metrics', format, () => renderInPieces(format, metrics, views.metrics!));
-    if (reconciliation && views.reconcile) await writeTable('reconcile', format, () => renderInPieces(format, reconciliation, views.reconcile!));
+    writeTable('check', format, () => renderInPieces(format, check, views.check));
+    if (metrics && views.metrics) writeTable('metrics', format, () => renderInPieces(format, metrics, views.metrics!));
+    if (reconciliation && views.reconcile) writeTable('reconcile', format, () => renderInPieces(format, reconciliation, views.reconcile!));
   }
-  await write(QUARANTINE_FILE, rejectedRowsToCsv(day.feed.rejected));
-  await writer.finished();
+  const quarantine = join(place.dir, QUARANTINE_FILE);
+  writeQuarantine(quarantine, day.feed.rejected);
+  written.push(quarantine);
   return { report, files: written, notices };
 }
 
