@@ -2,8 +2,9 @@ import { PairMoments, SeriesMoments, TargetSums } from './moments.js';
 import type { WindowSample } from './sampling.js';
 
 /**
- * A window's sufficient statistics, built in one pass over its returns. Every metric, under every
- * methodology that shares the window's sampling, is then a few arithmetic operations on these.
+ * A window's sufficient statistics, each part built by its own pass over the returns when a
+ * figure first reads it. Every metric, under every methodology that shares the window's
+ * sampling, is then a few arithmetic operations on these.
  */
 
 /** Moments of the returns in one basis: simple returns r, or log returns ln(1 + r). */

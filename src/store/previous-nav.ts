@@ -1,15 +1,11 @@
-import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
-import { join } from 'node:path';
 import { DataType, DateUnit, tableFromIPC, type Data, type Table } from 'apache-arrow';
 import { arrowToCanonical } from '../ingest/arrow-table.js';
 import { toSeriesFrame } from '../ingest/convert.js';
-import { cutInput, InputError, NavassayError } from '../ingest/errors.js';
 import { buildSeriesFrame, type SeriesFrame } from '../series/frame.js';
 import { answerOfSiblingWorker } from '../threads/module-worker.js';
 import { rebuildThrown, type ThrownElsewhere } from '../threads/thrown.js';
-import { sha256Bytes } from './durable-files.js';
 import type { SnapshotFile } from './manifest.js';
-import { scanSnapshots, type UnreadableSnapshot } from './snapshot-store.js';
+import { latestEarlierThatLoads, readStoredArrow, scanSnapshots, type UnreadableSnapshot } from './snapshot-store.js';
 
 /**
  * The previous business day's NAVs, which today's feed is compared with (restated history):
@@ -28,36 +24,24 @@ export interface PreviousNav {
 }
 
 export function previousNav(storeDir: string, feed: string, asOfExclusive: string): PreviousNav {
-  const { snapshots, unreadable } = scanSnapshots(storeDir, feed);
-  const skipped = unreadable.filter((entry) => entry.asOf < asOfExclusive);
-  const earlier = snapshots.filter((snapshot) => snapshot.asOf < asOfExclusive);
-  for (let k = earlier.length - 1; k >= 0; k--) {
-    const { asOf, dir, manifest } = earlier[k];
+  const { snapshot, loaded, skipped } = latestEarlierThatLoads(storeDir, feed, asOfExclusive, ({ dir, manifest }) => {
     const file = manifest.files.find((entry) => entry.kind === 'nav');
-    try {
-      return { asOf, nav: file && readStoredNavFrame(dir, file), skipped: byDate(skipped) };
-    } catch (error) {
-      if (!(error instanceof NavassayError)) throw error;
-      skipped.push({ feed, asOf, dir, reason: error.message });
-    }
-  }
-  return { skipped: byDate(skipped) };
+    return file && readStoredNavFrame(dir, file);
+  });
+  return snapshot ? { asOf: snapshot.asOf, nav: loaded, skipped } : { skipped };
 }
 
 /** A stored NAV table as a series frame, checked against the SHA-256 of its manifest. */
 export function readStoredNavFrame(dir: string, file: SnapshotFile): SeriesFrame {
-  const path = join(dir, file.stored_file);
-  const bytes = readShared(path);
-  if (sha256Bytes(bytes) !== file.stored_sha256) {
-    throw new InputError(`${path} does not match the SHA-256 in its manifest; the snapshot is damaged, so write that day again.`);
-  }
-  try {
-    const table = tableFromIPC(bytes);
-    return frameOfViews(table) ?? toSeriesFrame(arrowToCanonical('nav', table, path), 'nav');
-  } catch (error) {
-    if (error instanceof NavassayError) throw error;
-    throw new InputError(`${path} cannot be read as a stored table (${cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
-  }
+  return readStoredArrow(
+    dir,
+    file,
+    (bytes, path) => {
+      const table = tableFromIPC(bytes);
+      return frameOfViews(table) ?? toSeriesFrame(arrowToCanonical('nav', table, path), 'nav');
+    },
+    true,
+  );
 }
 
 /**
@@ -95,34 +79,6 @@ function onlyChunk(table: Table, name: string): Data | null {
   return data.nullCount === 0 && data.offset === 0 ? data : null;
 }
 
-/** A whole file in shared memory; a file that cannot be read makes the snapshot damaged. */
-function readShared(path: string): Buffer {
-  let fd: number;
-  try {
-    fd = openSync(path, 'r');
-  } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    throw new InputError(`${path} cannot be read (${code === 'ENOENT' ? 'it is missing' : cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
-  }
-  try {
-    const bytes = Buffer.from(new SharedArrayBuffer(fstatSync(fd).size));
-    let filled = 0;
-    while (filled < bytes.length) {
-      const read = readSync(fd, bytes, filled, bytes.length - filled, null);
-      if (read === 0) break;
-      filled += read;
-    }
-    return bytes.subarray(0, filled);
-  } catch (error) {
-    throw new InputError(`${path} cannot be read (${cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
-  } finally {
-    closeSync(fd);
-  }
-}
-
-function byDate(entries: UnreadableSnapshot[]): UnreadableSnapshot[] {
-  return entries.sort((a, b) => (a.asOf < b.asOf ? -1 : a.asOf > b.asOf ? 1 : 0));
-}
 
 /** Below this many stored NAV rows the previous NAVs are read on the calling thread. */
 const MIN_ROWS_FOR_BACKGROUND = 200_000;

@@ -1,5 +1,5 @@
 import { randomBytes } from 'node:crypto';
-import { existsSync, mkdirSync, readdirSync, readFileSync } from 'node:fs';
+import { closeSync, existsSync, fstatSync, mkdirSync, openSync, readdirSync, readFileSync, readSync } from 'node:fs';
 import { join } from 'node:path';
 import { parseIsoDate } from '../calendar/days.js';
 import { arrowIpcToCanonical, canonicalToArrowIpc, writeCanonicalArrowIpc } from '../ingest/arrow-table.js';
@@ -381,19 +381,34 @@ export function previousReadableSnapshot(
   feed: string,
   asOfExclusive: string,
 ): { snapshot: LoadedSnapshot | undefined; skipped: UnreadableSnapshot[] } {
+  const { loaded, skipped } = latestEarlierThatLoads(storeDir, feed, asOfExclusive, loadSnapshot);
+  return { snapshot: loaded, skipped };
+}
+
+/**
+ * The latest snapshot before a date for which `load` succeeds, with what it loaded. Snapshots
+ * whose manifest cannot be read, and later ones whose `load` throws a NavassayError (a missing
+ * or altered file), are passed over and returned with their reasons, oldest first.
+ */
+export function latestEarlierThatLoads<T>(
+  storeDir: string,
+  feed: string,
+  asOfExclusive: string,
+  load: (snapshot: SnapshotRef) => T,
+): { snapshot?: SnapshotRef; loaded?: T; skipped: UnreadableSnapshot[] } {
   checkAsOf(asOfExclusive);
   const { snapshots, unreadable } = scanSnapshots(storeDir, feed);
   const skipped = unreadable.filter((entry) => entry.asOf < asOfExclusive);
   const earlier = snapshots.filter((snapshot) => snapshot.asOf < asOfExclusive);
   for (let k = earlier.length - 1; k >= 0; k--) {
     try {
-      return { snapshot: loadSnapshot(earlier[k]), skipped: sortByDate(skipped) };
+      return { snapshot: earlier[k], loaded: load(earlier[k]), skipped: sortByDate(skipped) };
     } catch (error) {
       if (!(error instanceof NavassayError)) throw error;
       skipped.push({ feed, asOf: earlier[k].asOf, dir: earlier[k].dir, reason: error.message });
     }
   }
-  return { snapshot: undefined, skipped: sortByDate(skipped) };
+  return { skipped: sortByDate(skipped) };
 }
 
 function sortByDate(entries: UnreadableSnapshot[]): UnreadableSnapshot[] {
@@ -404,23 +419,48 @@ function readStoredText(path: string): string {
   return readStoredBytes(path).toString('utf8');
 }
 
-function readStoredBytes(path: string): Buffer {
+/**
+ * A stored file's bytes; `shared` reads them into shared memory, which worker threads see
+ * without a copy. A file that cannot be read makes its snapshot damaged.
+ */
+function readStoredBytes(path: string, shared = false): Buffer {
   try {
-    return readFileSync(path);
+    return shared ? readIntoSharedMemory(path) : readFileSync(path);
   } catch (error) {
     const code = (error as NodeJS.ErrnoException).code;
     throw new InputError(`${path} cannot be read (${code === 'ENOENT' ? 'it is missing' : cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
   }
 }
 
+function readIntoSharedMemory(path: string): Buffer {
+  const fd = openSync(path, 'r');
+  try {
+    const bytes = Buffer.from(new SharedArrayBuffer(fstatSync(fd).size));
+    let filled = 0;
+    for (let read = 1; read > 0 && filled < bytes.length; filled += read) read = readSync(fd, bytes, filled, bytes.length - filled, null);
+    return bytes.subarray(0, filled);
+  } finally {
+    closeSync(fd);
+  }
+}
+
 function readStoredTable(dir: string, file: SnapshotFile): CanonicalTable {
+  return readStoredArrow(dir, file, (bytes, path) => arrowIpcToCanonical(file.kind, bytes, path));
+}
+
+/**
+ * A stored Arrow file, checked against the SHA-256 of its manifest and decoded by `decode`; a
+ * missing, altered or undecodable file is an InputError that says the snapshot is damaged.
+ * `shared` reads the bytes into shared memory (see `readStoredBytes`).
+ */
+export function readStoredArrow<T>(dir: string, file: SnapshotFile, decode: (bytes: Uint8Array, path: string) => T, shared = false): T {
   const path = join(dir, file.stored_file);
-  const bytes = readStoredBytes(path);
+  const bytes = readStoredBytes(path, shared);
   if (sha256Bytes(bytes) !== file.stored_sha256) {
     throw new InputError(`${path} does not match the SHA-256 in its manifest; the snapshot is damaged, so write that day again.`);
   }
   try {
-    return arrowIpcToCanonical(file.kind, bytes, path);
+    return decode(bytes, path);
   } catch (error) {
     if (error instanceof NavassayError) throw error;
     throw new InputError(`${path} cannot be read as a stored table (${cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
