@@ -29,19 +29,10 @@ describe('sample parts reused across variants', () => {
     windows.flatMap((window) => variants.flatMap((changes) => METRIC_IDS.map((metric) => ({ seriesId, window, metric, changes })))),
   );
 
-  function shuffled<T>(items: readonly T[], seed: number): T[] {
-    const random = new SeededRandom(seed);
-    const copy = [...items];
-    for (let i = copy.length - 1; i > 0; i--) {
-      const j = Math.floor(random.next() * (i + 1));
-      [copy[i], copy[j]] = [copy[j], copy[i]];
-    }
-    return copy;
-  }
 
   it.each([
     ['series by series, as a reconciliation asks', (items: typeof requests) => items],
-    ['in a random order, series interleaved', (items: typeof requests) => shuffled(items, 7)],
+    ['in a random order, series interleaved', (items: typeof requests) => new SeededRandom(7).shuffle(items)],
   ])('gives every figure a fresh calculator gives, %s', (_, order) => {
     const shared = new MetricCalculator(data);
     const sampled = order(requests).filter((_, k) => k % 5 === 0);

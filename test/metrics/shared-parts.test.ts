@@ -22,15 +22,6 @@ import { AS_OF, universe } from '../reconcile/universe.js';
  * Each is compared with the plain computation, with Object.is (so −0 and NaN count too).
  */
 
-function shuffled<T>(items: readonly T[], seed: number): T[] {
-  const random = new SeededRandom(seed);
-  const copy = [...items];
-  for (let i = copy.length - 1; i > 0; i--) {
-    const j = Math.floor(random.next() * (i + 1));
-    [copy[i], copy[j]] = [copy[j], copy[i]];
-  }
-  return copy;
-}
 
 /**
  * Eight funds on six calendars (more than the four kept per key, so parts are dropped and made
@@ -68,7 +59,7 @@ describe('benchmark and risk-free parts kept across series', () => {
 
   it.each([
     ['series by series', (items: typeof requests) => items],
-    ['in a random order, series and calendars interleaved', (items: typeof requests) => shuffled(items, 11)],
+    ['in a random order, series and calendars interleaved', (items: typeof requests) => new SeededRandom(11).shuffle(items)],
   ])('gives every figure a fresh calculator gives, %s', (_, order) => {
     const shared = new MetricCalculator(data);
     const sampled = order(requests).filter((_, k) => k % 7 === 0);
