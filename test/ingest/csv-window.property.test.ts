@@ -42,6 +42,17 @@ function outcome(read: () => unknown): unknown {
 
 let fileNumber = 0;
 
+/** The windowed read gives the whole read's rows (or its error), with the standard SHA-256 of the bytes. */
+function expectSameAsWhole(windowed: unknown, whole: unknown, bytes: Buffer): void {
+  if ('value' in (windowed as object)) {
+    const { result, sha256 } = (windowed as { value: ReturnType<typeof readCsvSource> }).value;
+    expect(sha256).toBe(createHash('sha256').update(bytes).digest('hex'));
+    expect({ value: result }).toEqual(whole);
+  } else {
+    expect(windowed).toEqual(whole);
+  }
+}
+
 describe('reading a CSV file through a window gives what the whole file gives', () => {
   it('for any window size and any rows', () => {
     fc.assert(
@@ -52,13 +63,7 @@ describe('reading a CSV file through a window gives what the whole file gives', 
         const feedProfile = profile({ date_format: dateFormat });
         const whole = outcome(() => readCsvBuffer(bytes, path, kind, feedProfile, ANY_DATE_LIMITS));
         const windowed = outcome(() => readCsvSource(path, kind, feedProfile, ANY_DATE_LIMITS, windowBytes));
-        if ('value' in (windowed as object)) {
-          const { result, sha256 } = (windowed as { value: ReturnType<typeof readCsvSource> }).value;
-          expect(sha256).toBe(createHash('sha256').update(bytes).digest('hex'));
-          expect({ value: result }).toEqual(whole);
-        } else {
-          expect(windowed).toEqual(whole);
-        }
+        expectSameAsWhole(windowed, whole, bytes);
       }),
       { numRuns: 1500 },
     );
@@ -74,13 +79,7 @@ describe('reading a CSV file through a window gives what the whole file gives', 
         const whole = outcome(() => readCsvBuffer(bytes, path, 'nav', feedProfile, ANY_DATE_LIMITS));
         // Every file from 0 bytes on is hashed on the hashing thread here.
         const windowed = outcome(() => readCsvSource(path, 'nav', feedProfile, ANY_DATE_LIMITS, windowBytes, 0));
-        if ('value' in (windowed as object)) {
-          const { result, sha256 } = (windowed as { value: ReturnType<typeof readCsvSource> }).value;
-          expect(sha256).toBe(createHash('sha256').update(bytes).digest('hex'));
-          expect({ value: result }).toEqual(whole);
-        } else {
-          expect(windowed).toEqual(whole);
-        }
+        expectSameAsWhole(windowed, whole, bytes);
       }),
       { numRuns: 60 },
     );
