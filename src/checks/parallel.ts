@@ -12,7 +12,7 @@
  * (test/checks/parallel.test.ts).
  */
 import { availableParallelism } from 'node:os';
-import { answerOfSiblingWorker } from '../threads/module-worker.js';
+import { answerOfSiblingWorker, MIN_ROWS_FOR_A_WORKER } from '../threads/module-worker.js';
 import type { Finding } from '../findings.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
 import { sharedFrame, type SeriesFrame } from '../series/frame.js';
@@ -49,8 +49,6 @@ export interface WorkerInput {
 /** What a worker answers: the findings of each of its ranges, by range number. */
 export type WorkerAnswer = Array<[range: number, findings: Finding[]]>;
 
-/** Below this many NAV rows a worker's start-up costs more than it saves. */
-const MIN_ROWS_FOR_WORKERS = 200_000;
 /** More threads than this gain little: the feed-level checks and the final sort stay on one. */
 const MAX_DEFAULT_THREADS = 8;
 /** Ranges per thread: enough that costly stretches of series are shared out evenly. */
@@ -75,7 +73,7 @@ export function defaultThreads(): number {
 export async function runChecksInParallel(input: CheckInput, settings: CheckSettings = {}, options: ParallelOptions = {}): Promise<Finding[]> {
   const parsed = parseCheckSettings(settings);
   const threads = options.threads ?? defaultThreads();
-  const small = input.nav.dates.length < (options.minRows ?? MIN_ROWS_FOR_WORKERS) || input.nav.ids.length < threads;
+  const small = input.nav.dates.length < (options.minRows ?? MIN_ROWS_FOR_A_WORKER) || input.nav.ids.length < threads;
   if (threads <= 1 || small) return runChecks(input, parsed);
   const feedLatest = latestDateUpTo(input.nav, input.asOf);
   const calendars = input.calendars.describe();

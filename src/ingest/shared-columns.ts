@@ -1,7 +1,8 @@
 /**
- * Number columns on shared memory. The readers put the columns a series frame is made of
- * (dates, values, source lines) on SharedArrayBuffers, so the check workers
- * (src/checks/parallel.ts) see the very same rows through views instead of receiving copies.
+ * Columns on shared memory. The readers put the columns a series frame is made of (dates,
+ * values, source lines) and the text codes on SharedArrayBuffers, so the check workers
+ * (src/checks/parallel.ts) and the snapshot's writer (src/store/background-write.ts) see the
+ * very same rows through views instead of receiving copies.
  * A SharedArrayBuffer is zero-filled like an ArrayBuffer and read and written the same way.
  */
 

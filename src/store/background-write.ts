@@ -1,5 +1,4 @@
-import { answerOfSiblingWorker } from '../threads/module-worker.js';
-import { rebuildThrown, type ThrownElsewhere } from '../threads/thrown.js';
+import { MIN_ROWS_FOR_A_WORKER, onWorkerWhenLarge } from '../threads/module-worker.js';
 import { writeSnapshot, type SnapshotInput, type SnapshotRef } from './snapshot-store.js';
 
 /**
@@ -15,11 +14,6 @@ export interface SnapshotJob {
   readonly input: SnapshotInput;
 }
 
-export type SnapshotOutcome = { readonly ref: SnapshotRef } | { readonly thrown: ThrownElsewhere };
-
-/** Below this many rows in all tables the worker's start-up costs more than the write. */
-export const MIN_ROWS_FOR_BACKGROUND = 200_000;
-
 export interface BackgroundOptions {
   /** Fewer rows in all are written on this thread before the promise is returned (tests lower it). */
   readonly minRows?: number;
@@ -31,16 +25,7 @@ export interface BackgroundOptions {
  */
 export function writeSnapshotInBackground(storeDir: string, input: SnapshotInput, options: BackgroundOptions = {}): Promise<SnapshotRef> {
   const rows = input.results.reduce((sum, result) => sum + result.table.length, 0);
-  if (rows < (options.minRows ?? MIN_ROWS_FOR_BACKGROUND)) {
-    try {
-      return Promise.resolve(writeSnapshot(storeDir, input));
-    } catch (error) {
-      return Promise.reject(error);
-    }
-  }
   const job: SnapshotJob = { storeDir, input };
-  return answerOfSiblingWorker<SnapshotOutcome>(import.meta.url, 'snapshot-worker', job, 'the snapshot writer').then((outcome) => {
-    if ('ref' in outcome) return outcome.ref;
-    throw rebuildThrown(outcome.thrown);
-  });
+  const worker = { callerUrl: import.meta.url, name: 'snapshot-worker', workerData: job, what: 'the snapshot writer' };
+  return onWorkerWhenLarge(worker, rows, options.minRows ?? MIN_ROWS_FOR_A_WORKER, () => writeSnapshot(storeDir, input));
 }

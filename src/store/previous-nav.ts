@@ -2,8 +2,7 @@ import { DataType, DateUnit, tableFromIPC, type Data, type Table } from 'apache-
 import { arrowToCanonical } from '../ingest/arrow-table.js';
 import { toSeriesFrame } from '../ingest/convert.js';
 import { buildSeriesFrame, type SeriesFrame } from '../series/frame.js';
-import { answerOfSiblingWorker } from '../threads/module-worker.js';
-import { rebuildThrown, type ThrownElsewhere } from '../threads/thrown.js';
+import { MIN_ROWS_FOR_A_WORKER, onWorkerWhenLarge } from '../threads/module-worker.js';
 import type { SnapshotFile } from './manifest.js';
 import { latestEarlierThatLoads, readStoredArrow, scanSnapshots, type UnreadableSnapshot } from './snapshot-store.js';
 
@@ -79,26 +78,20 @@ function onlyChunk(table: Table, name: string): Data | null {
   return data.nullCount === 0 && data.offset === 0 ? data : null;
 }
 
-
-/** Below this many stored NAV rows the previous NAVs are read on the calling thread. */
-const MIN_ROWS_FOR_BACKGROUND = 200_000;
-
 /**
  * `previousNav` on a worker thread, so the previous day's table is read, checked and framed
  * while this thread parses today's files. The frame's columns come back as the same shared
  * memory; a small store is read here at once. It never throws: its errors reject the promise.
  */
-export function previousNavInBackground(storeDir: string, feed: string, asOfExclusive: string, minRows = MIN_ROWS_FOR_BACKGROUND): Promise<PreviousNav> {
+export function previousNavInBackground(storeDir: string, feed: string, asOfExclusive: string, minRows = MIN_ROWS_FOR_A_WORKER): Promise<PreviousNav> {
+  let rows: number;
   try {
-    if (latestNavRows(storeDir, feed, asOfExclusive) < minRows) return Promise.resolve(previousNav(storeDir, feed, asOfExclusive));
+    rows = latestNavRows(storeDir, feed, asOfExclusive);
   } catch (error) {
     return Promise.reject(error);
   }
-  const job = { storeDir, feed, asOfExclusive };
-  return answerOfSiblingWorker<PreviousNavOutcome>(import.meta.url, 'previous-nav-worker', job, 'the reader of the previous snapshot').then((outcome) => {
-    if ('previous' in outcome) return outcome.previous;
-    throw rebuildThrown(outcome.thrown);
-  });
+  const worker = { callerUrl: import.meta.url, name: 'previous-nav-worker', workerData: { storeDir, feed, asOfExclusive }, what: 'the reader of the previous snapshot' };
+  return onWorkerWhenLarge(worker, rows, minRows, () => previousNav(storeDir, feed, asOfExclusive));
 }
 
 /** The NAV rows of the latest earlier snapshot, as its manifest counts them. */
@@ -106,5 +99,3 @@ function latestNavRows(storeDir: string, feed: string, asOfExclusive: string): n
   const latest = scanSnapshots(storeDir, feed).snapshots.filter((snapshot) => snapshot.asOf < asOfExclusive).at(-1);
   return latest?.manifest.files.find((file) => file.kind === 'nav')?.rows.accepted ?? 0;
 }
-
-export type PreviousNavOutcome = { readonly previous: PreviousNav } | { readonly thrown: ThrownElsewhere };

@@ -1,4 +1,12 @@
-import { Worker, type WorkerOptions } from 'node:worker_threads';
+import { parentPort, Worker, type WorkerOptions } from 'node:worker_threads';
+import { describeThrown, rebuildThrown, type ThrownElsewhere } from './thrown.js';
+
+/**
+ * Below this many rows a worker thread's start-up (about a tenth of a second: a fresh isolate
+ * loading our modules) costs more than the work it would take off the main thread. One rule for
+ * the check workers, the snapshot's writer and the reader of the previous day.
+ */
+export const MIN_ROWS_FOR_A_WORKER = 200_000;
 
 /**
  * A worker thread running the module `name` that sits beside the caller's module: the compiled
@@ -30,5 +38,44 @@ export function answerOfSiblingWorker<T>(callerUrl: string, name: string, worker
     worker.once('exit', (code) => {
       if (!answered) reject(new Error(`${what} stopped (exit code ${code}) before answering`));
     });
+  });
+}
+
+/** What a one-job worker posts: its answer, or the error it threw, described to cross threads. */
+type Outcome<T> = { readonly answer: T } | { readonly thrown: ThrownElsewhere };
+
+/** In a one-job worker: posts what `work` answers, or what it throws. */
+export function postOutcomeOf<T>(work: () => T): void {
+  let outcome: Outcome<T>;
+  try {
+    outcome = { answer: work() };
+  } catch (error) {
+    outcome = { thrown: describeThrown(error) };
+  }
+  parentPort!.postMessage(outcome);
+}
+
+/**
+ * `work` of `rows` rows, on the sibling worker `name` (which calls `postOutcomeOf` with the same
+ * work) when there are enough rows, else on this thread at once. Either way a promise that
+ * settles with the answer, or rejects with the error of the same class the work threw; it never
+ * throws itself.
+ */
+export function onWorkerWhenLarge<T>(
+  job: { readonly callerUrl: string; readonly name: string; readonly workerData: unknown; readonly what: string },
+  rows: number,
+  minRows: number,
+  work: () => T,
+): Promise<T> {
+  if (rows < minRows) {
+    try {
+      return Promise.resolve(work());
+    } catch (error) {
+      return Promise.reject(error);
+    }
+  }
+  return answerOfSiblingWorker<Outcome<T>>(job.callerUrl, job.name, job.workerData, job.what).then((outcome) => {
+    if ('answer' in outcome) return outcome.answer;
+    throw rebuildThrown(outcome.thrown);
   });
 }
