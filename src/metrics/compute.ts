@@ -75,12 +75,10 @@ export function computeMetrics(request: ComputeMetricsRequest, calculator = new 
   return { as_of: formatIsoDate(request.asOf), methodology: describeMethodology(methodology), metrics: rows };
 }
 
-/** A figure as a row of the answer, built in one object (the metrics stage makes one per figure). */
+/** A figure as a row of the answer: the figure's fields after the row's, `reason` only when there is one. */
 function metricRow(series_id: string, window: string, metric: MetricId, stats: Outcome<WindowStatistics>, methodology: Methodology): MetricRow {
-  if (!stats.ok) return { series_id, window, metric, value: null, observations: 0, reason: stats.reason };
-  const observations = metric === 'max_drawdown' ? drawdownObservations(stats.value, methodology) : stats.value.n;
-  const outcome = metricFromStatistics(metric, stats.value, methodology);
-  return outcome.ok ? { series_id, window, metric, value: outcome.value, observations } : { series_id, window, metric, value: null, observations, reason: outcome.reason };
+  const { value, observations, reason } = figureOf(metric, stats, methodology);
+  return reason === undefined ? { series_id, window, metric, value, observations } : { series_id, window, metric, value, observations, reason };
 }
 
 /** A metric from a window's statistics (or the window's own reason), as the answer reports it. */
@@ -258,7 +256,6 @@ export class MetricCalculator {
     }
     return this.lastSamplingKey;
   }
-
 }
 
 /** A window request with the two rate settings the risk-free part depends on, for its key. */
