@@ -35,8 +35,9 @@ export const missingDates: SeriesCheck<{ min_days: number }> = {
     for (let i = 0; i < series.dates.length; i++) {
       const day = series.dates[i];
       if (day > context.asOf) break;
-      // Most gaps are weekends: the list of missing days is built only when there is one.
-      if (previous >= 0 && day > previous + 1 && someBusinessDayBetween(context.calendars, calendar, series.dates[previous], day)) {
+      // Consecutive days leave no day between them; most other gaps are weekends: the list of
+      // missing days is built only when a gap holds a business day.
+      if (previous >= 0 && day > series.dates[previous] + 1 && someBusinessDayBetween(context.calendars, calendar, series.dates[previous], day)) {
         const missing = context.calendars.businessDaysBetween(calendar, series.dates[previous], day);
         if (missing.length >= params.min_days && missing.length > 0) findings.push(describe(series, missing, calendar, previous, i, null));
       }

@@ -1,10 +1,12 @@
 import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
 import { BusinessCalendars } from '../../src/calendar/business-calendar.js';
 import { missingDates } from '../../checks/missing-dates.js';
 import { lateSeries } from '../../checks/late-series.js';
 import { offCalendarDate } from '../../checks/off-calendar-date.js';
 import { futureDate } from '../../checks/future-date.js';
-import { contextFor, day, master, seriesOf } from './helpers.js';
+import { contextFor, day, frameOfArrays, master, seriesOf } from './helpers.js';
+import { seriesAt } from '../../src/series/frame.js';
 
 const northCalendar = () => {
   const calendars = new BusinessCalendars();
@@ -38,6 +40,36 @@ describe('missing_dates', () => {
     const series = seriesOf('S1', [['2026-03-06', 1], ['2026-03-10', 1.01]]);
     const findings = missingDates.run(series, contextFor({ calendars: northCalendar() }), missingDates.defaults);
     expect(findings.map((f) => f.start)).toEqual(['2026-03-09']);
+  });
+
+  it('finds every run the plain listing of each gap between distinct dates finds, whatever the rows', () => {
+    // The plain rule: every pair of consecutive distinct dates up to the as-of, the business
+    // days strictly between them listed in full (the check skips consecutive days and weekends).
+    const plainRuns = (dates: number[], asOf: number, calendars: BusinessCalendars) => {
+      const runs: Array<[number, number, number]> = [];
+      const kept = dates.filter((d, i) => d <= asOf && (i === 0 || d !== dates[i - 1]));
+      for (let i = 1; i < kept.length && kept[i] <= asOf; i++) {
+        const missing = calendars.businessDaysBetween('north', kept[i - 1], kept[i]);
+        if (missing.length > 0) runs.push([missing[0], missing[missing.length - 1], missing.length]);
+      }
+      return runs;
+    };
+    const start = day('2026-01-01');
+    const gaps = fc.array(fc.oneof({ weight: 6, arbitrary: fc.constant(1) }, { weight: 2, arbitrary: fc.constant(0) }, { weight: 3, arbitrary: fc.integer({ min: 2, max: 9 }) }), { maxLength: 120 });
+    fc.assert(
+      fc.property(gaps, fc.integer({ min: 0, max: 400 }), (steps, asOfOffset) => {
+        const dates: number[] = [];
+        let d = start;
+        for (const gap of steps) dates.push((d += gap));
+        const calendars = northCalendar();
+        const series = seriesAt(frameOfArrays([{ id: 'S1', dates, values: dates.map((_, i) => 10 + i / 100) }]), 0);
+        const asOf = start + asOfOffset;
+        const context = contextFor({ asOf, calendars, master: master('S1', { calendar: 'north' }) });
+        const found = missingDates.run(series, context, missingDates.defaults).map((f) => [day(f.start!), day(f.end!), f.evidence.missing_days]);
+        expect(found).toEqual(plainRuns(dates, asOf, calendars));
+      }),
+      { numRuns: 300 },
+    );
   });
 });
 
