@@ -1,13 +1,13 @@
 /**
- * A worker thread of the parallel check runner (src/checks/parallel.ts): runs every
- * series-level check over each range of series dealt to it, reading the frames on shared
- * memory, and posts the findings range by range.
+ * A worker thread of the parallel check runner (src/checks/parallel.ts): claims ranges of
+ * series one after another until none is left, runs every series-level check over each,
+ * reading the frames on shared memory, and posts the findings range by range.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { BusinessCalendars } from '../calendar/business-calendar.js';
 import type { SeriesFrame } from '../series/frame.js';
 import type { FrameData, WorkerAnswer, WorkerInput } from './parallel.js';
-import { seriesChecker } from './series-runner.js';
+import { claimRange, seriesChecker } from './series-runner.js';
 import { SettingsResolver } from './settings-resolver.js';
 
 const job = workerData as WorkerInput;
@@ -24,5 +24,8 @@ const input = {
 };
 // The settings were validated on the main thread; the worker only resolves them.
 const check = seriesChecker(input, new SettingsResolver(job.settings), job.feedLatest);
-const answer: WorkerAnswer = job.numbers.map((range, j) => [range, check(job.ranges[j][0], job.ranges[j][1])]);
+const answer: WorkerAnswer = [];
+for (let range = claimRange(job.claims); range < job.ranges.length; range = claimRange(job.claims)) {
+  answer.push([range, check(job.ranges[range][0], job.ranges[range][1])]);
+}
 parentPort!.postMessage(answer);

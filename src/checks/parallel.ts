@@ -1,15 +1,17 @@
 /**
- * The check runner on worker threads: the series are cut into many consecutive ranges of about
- * equal row counts, dealt to the workers in turn (range r to worker r mod threads), so a
- * stretch of costly series is shared by every worker instead of holding one of them up at the
- * end. Every worker receives the whole frame on shared memory (the readers build frames on
- * SharedArrayBuffers, src/ingest/shared-columns.ts, so the rows are neither copied nor moved;
- * a frame made of ordinary arrays is copied once onto shared memory for all the workers) and
- * the list of its ranges, runs every series-level check over each range
- * (src/checks/check-worker.ts) while this thread runs the feed-level checks, and answers the
- * findings of each range. The findings are put back in range order and sorted exactly as
- * `runChecks` sorts them: same findings as `runChecks`, in the same order
- * (test/checks/parallel.test.ts).
+ * The check runner on several threads: this thread and `threads − 1` worker threads. The series
+ * are cut into many consecutive ranges of about equal row counts, and every thread claims the
+ * next unclaimed range from one counter on shared memory until none is left, so a thread that
+ * had other work first (this one runs the feed-level checks, and the daily job computes the risk
+ * figures here while the workers check) or drew costlier series simply takes fewer ranges, and
+ * all threads finish within about one range of each other. Every worker receives the whole frame
+ * on shared memory (the readers build frames on SharedArrayBuffers, src/ingest/shared-columns.ts,
+ * so the rows are neither copied nor moved; a frame made of ordinary arrays is copied once onto
+ * shared memory for all the workers), runs every series-level check over each range it claims
+ * (src/checks/check-worker.ts) and answers the findings of each range. This thread takes its
+ * ranges one per turn of its event loop, whenever it is otherwise idle. The findings are put back
+ * in range order and sorted exactly as `runChecks` sorts them: same findings as `runChecks`, in
+ * the same order, whichever thread checked which range (test/checks/parallel.test.ts).
  */
 import { availableParallelism } from 'node:os';
 import { answerOfSiblingWorker, MIN_ROWS_FOR_A_WORKER } from '../threads/module-worker.js';
@@ -17,7 +19,8 @@ import type { Finding } from '../findings.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
 import { sharedFrame, type SeriesFrame } from '../series/frame.js';
 import type { CalendarDescription } from '../calendar/business-calendar.js';
-import { compareFindings, latestDateUpTo, runChecks, runFeedChecks, type CheckInput } from './run.js';
+import { compareFindings, latestDateUpTo, runChecks, runFeedChecks, seriesChecker, type CheckInput } from './run.js';
+import { claimRange } from './series-runner.js';
 import { parseCheckSettings, SettingsResolver, type CheckSettings } from './settings.js';
 
 /** A frame on shared memory, which a worker receives without its `indexById` map. */
@@ -29,9 +32,9 @@ export interface FrameData {
   readonly lines: Int32Array;
 }
 
-/** What one worker needs for the ranges of series dealt to it. */
+/** What one worker needs to check the ranges of series it claims. */
 export interface WorkerInput {
-  /** The whole feed; the worker checks only the series of its ranges. */
+  /** The whole feed; the worker checks only the series of the ranges it claims. */
   readonly nav: FrameData;
   readonly benchmarks?: FrameData;
   readonly previous?: FrameData;
@@ -41,9 +44,10 @@ export interface WorkerInput {
   readonly asOf: number;
   readonly feedLatest: number | undefined;
   readonly settings: CheckSettings;
-  /** The worker's ranges: range `numbers[j]` is the series `ranges[j][0]` to `ranges[j][1] − 1` of `nav`. */
-  readonly numbers: number[];
+  /** Every range: range `r` is the series `ranges[r][0]` to `ranges[r][1] − 1` of `nav`. */
   readonly ranges: Array<[first: number, end: number]>;
+  /** The number of the next range to claim, shared by every thread (see `claimRange`). */
+  readonly claims: Int32Array;
 }
 
 /** What a worker answers: the findings of each of its ranges, by range number. */
@@ -51,23 +55,26 @@ export type WorkerAnswer = Array<[range: number, findings: Finding[]]>;
 
 /** More threads than this gain little: the feed-level checks and the final sort stay on one. */
 const MAX_DEFAULT_THREADS = 8;
-/** Ranges per thread: enough that costly stretches of series are shared out evenly. */
-const RANGES_PER_THREAD = 16;
+/**
+ * Ranges per thread: enough that the threads finish close together (the last range claimed is
+ * the most any thread can run on alone), few enough that a range's own cost stays negligible.
+ */
+const RANGES_PER_THREAD = 32;
 
 export interface ParallelOptions {
-  /** Worker threads; 1 runs the plain path on this thread. Default: `defaultThreads()`. */
+  /** Threads, this one included (so `threads − 1` workers); 1 runs the plain path on this thread. Default: `defaultThreads()`. */
   readonly threads?: number;
   /** Feeds with fewer NAV rows take the plain path (tests lower it to exercise the workers). */
   readonly minRows?: number;
 }
 
-/** One worker per available core, at most MAX_DEFAULT_THREADS. */
+/** One thread per available core, at most MAX_DEFAULT_THREADS. */
 export function defaultThreads(): number {
   return Math.max(1, Math.min(MAX_DEFAULT_THREADS, availableParallelism()));
 }
 
 /**
- * `runChecks` on `threads` worker threads. One thread (or a small feed) takes the plain path
+ * `runChecks` on `threads` threads, this one and `threads − 1` workers. One thread (or a small feed) takes the plain path
  * on this thread. Settings are validated here first, so a bad key fails before any worker starts.
  */
 export async function runChecksInParallel(input: CheckInput, settings: CheckSettings = {}, options: ParallelOptions = {}): Promise<Finding[]> {
@@ -76,38 +83,55 @@ export async function runChecksInParallel(input: CheckInput, settings: CheckSett
   const small = input.nav.dates.length < (options.minRows ?? MIN_ROWS_FOR_A_WORKER) || input.nav.ids.length < threads;
   if (threads <= 1 || small) return runChecks(input, parsed);
   const feedLatest = latestDateUpTo(input.nav, input.asOf);
-  const calendars = input.calendars.describe();
-  const nav = frameData(sharedFrame(input.nav));
-  const benchmarks = input.benchmarks && frameData(sharedFrame(input.benchmarks));
-  const previous = input.previous && frameData(sharedFrame(input.previous));
   const ranges = seriesRanges(input.nav, threads * RANGES_PER_THREAD);
-  const pending = Array.from({ length: threads }, (_, worker) => {
-    const numbers = ranges.map((_, r) => r).filter((r) => r % threads === worker);
-    const mine = numbers.map((r) => ranges[r]);
-    const ids = new Set(mine.flatMap(([first, end]) => input.nav.ids.slice(first, end)));
-    const job: WorkerInput = {
-      nav,
-      benchmarks,
-      previous,
-      master: (input.master ?? []).filter((record) => ids.has(record.series_id)),
-      actions: (input.actions ?? []).filter((action) => ids.has(action.series_id)),
-      calendars,
-      asOf: input.asOf,
-      feedLatest,
-      settings: parsed,
-      numbers,
-      ranges: mine,
-    };
-    return runWorker(job);
-  });
-  // This thread runs the feed-level checks while the workers run the series-level ones.
-  const feedFindings = runFeedChecks(input, new SettingsResolver(parsed));
+  const claims = new Int32Array(new SharedArrayBuffer(Int32Array.BYTES_PER_ELEMENT));
+  const job: WorkerInput = {
+    nav: frameData(sharedFrame(input.nav)),
+    benchmarks: input.benchmarks && frameData(sharedFrame(input.benchmarks)),
+    previous: input.previous && frameData(sharedFrame(input.previous)),
+    master: [...(input.master ?? [])],
+    actions: [...(input.actions ?? [])],
+    calendars: input.calendars.describe(),
+    asOf: input.asOf,
+    feedLatest,
+    settings: parsed,
+    ranges,
+    claims,
+  };
+  // This thread is one of the `threads`: it starts the others, then runs the feed-level checks
+  // while they start and check, then claims ranges too whenever it is idle.
+  const workers = Array.from({ length: threads - 1 }, () => runWorker(job));
+  const resolver = new SettingsResolver(parsed);
+  const feedFindings = runFeedChecks(input, resolver);
+  const own = checkRangesWhenIdle(seriesChecker(input, resolver, feedLatest), ranges, claims);
   const byRange: Finding[][] = new Array(ranges.length);
-  for (const answer of await Promise.all(pending)) for (const [range, findings] of answer) byRange[range] = findings;
+  for (const answer of await Promise.all([own, ...workers])) for (const [range, findings] of answer) byRange[range] = findings;
   // Range order is series order, as on one thread, so equal findings keep their order in the sort.
   const findings = byRange.flat();
   findings.push(...feedFindings);
   return findings.sort(compareFindings);
+}
+
+/**
+ * The ranges this thread claims, one per turn of its event loop (so the work its caller does
+ * beside the checks, and the workers' answers, are never held up by more than one range), until
+ * every range is claimed.
+ */
+function checkRangesWhenIdle(check: (first: number, end: number) => Finding[], ranges: ReadonlyArray<[number, number]>, claims: Int32Array): Promise<WorkerAnswer> {
+  return new Promise((resolve, reject) => {
+    const answer: WorkerAnswer = [];
+    const checkNext = (): void => {
+      try {
+        const range = claimRange(claims);
+        if (range >= ranges.length) return resolve(answer);
+        answer.push([range, check(ranges[range][0], ranges[range][1])]);
+        setImmediate(checkNext);
+      } catch (error) {
+        reject(error);
+      }
+    };
+    setImmediate(checkNext);
+  });
 }
 
 /** `threads` consecutive ranges [first, end) of series with about equal row counts. */

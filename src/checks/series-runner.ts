@@ -80,3 +80,12 @@ function groupActions(actions: readonly CorporateActionRecord[]): Map<string, Co
   for (const list of byId.values()) list.sort((a, b) => a.ex_date - b.ex_date);
   return byId;
 }
+
+/**
+ * The number of the next range of series nobody has claimed yet, from a counter on shared memory
+ * that every thread of the parallel runner reads and advances at once (src/checks/parallel.ts);
+ * numbers past the last range mean none is left.
+ */
+export function claimRange(claims: Int32Array): number {
+  return Atomics.add(claims, 0, 1);
+}

@@ -33,7 +33,7 @@ const figureInputOptions = (): Option[] => [
 ];
 
 export const threadsOption = () =>
-  new Option('--threads <count>', "worker threads for the checks (default: the configuration's threads, else one per core, at most 8)");
+  new Option('--threads <count>', "threads for the checks, the main one included (default: the configuration's threads, else one per core, at most 8)");
 
 /** A positive whole number of threads, or undefined when the option is absent. */
 export function parseThreads(text: string | undefined): number | undefined {

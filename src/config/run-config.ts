@@ -66,7 +66,7 @@ export const RunConfigSchema = z
       .strict()
       .default({ dir: 'navassay-report', formats: ['json', 'html'] }),
     fail_on: z.enum(['info', 'warning', 'error', 'critical', 'none']).default('error'),
-    /** Worker threads for the checks; by default one per available core (at most 8). */
+    /** Threads for the checks, the main one included (so one fewer worker threads); by default one per available core (at most 8). */
     threads: z.number().int().min(1).max(64).optional(),
     /** Sizes, widths and the plausible date range the readers hold inputs to (docs/ingestion.md). */
     limits: LimitsSchema.default(LimitsSchema.parse({})),

@@ -45,6 +45,20 @@ describe('checks on worker threads', () => {
     }
   });
 
+  it('find the same whichever thread claims which range: a caller busy beside the checks, more threads than cores', async () => {
+    const universe = generateUniverse({ seed: 2005, funds: 60 });
+    const plain = runChecks(universe);
+    // The daily job computes the figures on this thread beside the checks: the workers claim
+    // the first ranges and this thread only those left when it is free.
+    const checking = runChecksInParallel(universe, {}, { threads: 2, minRows: 0 });
+    const until = Date.now() + 300;
+    while (Date.now() < until) {
+      // busy, as the figures keep this thread
+    }
+    expect(await checking).toEqual(plain);
+    expect(await runChecksInParallel(universe, {}, { threads: 5, minRows: 0 })).toEqual(plain);
+  });
+
   it('apply per-category and per-series settings in the workers as on one thread', async () => {
     const universe = generateUniverse({ seed: 2003 });
     const someSeries = universe.nav.ids[5];
