@@ -68,15 +68,14 @@ function daysFundsNeed(context: FeedContext): Map<string, Set<number>> {
   const { first, last } = daySpan(context.nav.dates, context.asOf);
   const flagsById = new Map<string, Uint8Array>();
   const benchmarkOf = new Map((context.master ?? []).map((record) => [record.series_id, record.benchmark_id]));
-  for (let i = 0; i < context.nav.ids.length; i++) {
-    const benchmarkId = benchmarkOf.get(context.nav.ids[i]);
+  const { ids, offsets, dates } = context.nav;
+  const asOf = context.asOf;
+  for (let i = 0; i < ids.length; i++) {
+    const benchmarkId = benchmarkOf.get(ids[i]);
     if (!benchmarkId || !context.benchmarks?.indexById.has(benchmarkId)) continue;
     let flags = flagsById.get(benchmarkId);
     if (!flags) flagsById.set(benchmarkId, (flags = new Uint8Array(Math.max(0, last - first + 1))));
-    const dates = context.nav.dates;
-    for (let row = context.nav.offsets[i]; row < context.nav.offsets[i + 1]; row++) {
-      if (dates[row] <= context.asOf) flags[dates[row] - first] = 1;
-    }
+    flagDays(flags, dates, offsets[i], offsets[i + 1], first, asOf);
   }
   const needed = new Map<string, Set<number>>();
   for (const [benchmarkId, flags] of flagsById) {
@@ -87,6 +86,14 @@ function daysFundsNeed(context: FeedContext): Map<string, Set<number>> {
     needed.set(benchmarkId, days);
   }
   return needed;
+}
+
+/** Flags the days of rows `start` to `end − 1` on or before the as-of, slot 0 being day `first`. */
+function flagDays(flags: Uint8Array, dates: Int32Array, start: number, end: number, first: number, asOf: number): void {
+  for (let row = start; row < end; row++) {
+    const day = dates[row];
+    if (day <= asOf) flags[day - first] = 1;
+  }
 }
 
 /** The earliest and latest day on or before the as-of (an empty span when there is none). */

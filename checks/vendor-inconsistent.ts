@@ -62,10 +62,12 @@ function conflictingCopies(figures: readonly VendorFigureRecord[]) {
   const byKey = new Map<string, VendorFigureRecord[]>();
   for (const figure of figures) {
     const key = [figure.series_id, figure.as_of, figure.window, figure.metric].join('|');
-    byKey.set(key, [...(byKey.get(key) ?? []), figure]);
+    const copies = byKey.get(key);
+    if (copies) copies.push(figure);
+    else byKey.set(key, [figure]);
   }
   return [...byKey.values()]
-    .filter((copies) => new Set(copies.map((copy) => copy.value)).size > 1)
+    .filter(holdsDifferentValues)
     .map((copies) => {
       const [first] = copies;
       return makeFinding({
@@ -79,6 +81,19 @@ function conflictingCopies(figures: readonly VendorFigureRecord[]) {
         identity: [isoDate(first.as_of), first.window, first.metric, 'conflict'],
       });
     });
+}
+
+/**
+ * True when the copies hold two values a `Set` would keep apart (SameValueZero: NaN equals NaN,
+ * 0 equals −0): some copy differs from the first, as that relation is an equivalence.
+ */
+function holdsDifferentValues(copies: readonly VendorFigureRecord[]): boolean {
+  const first = copies[0].value;
+  for (let i = 1; i < copies.length; i++) {
+    const value = copies[i].value;
+    if (value !== first && !(value !== value && first !== first)) return true;
+  }
+  return false;
 }
 
 /** Treynor's sign must be Sharpe's times beta's, for one series, window and as-of. */

@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
 import { vendorInconsistent } from '../../checks/vendor-inconsistent.js';
 import { BusinessCalendars } from '../../src/calendar/business-calendar.js';
 import { parseIsoDate } from '../../src/calendar/days.js';
@@ -75,5 +76,24 @@ describe('vendor_inconsistent', () => {
     expect(negativeBeta).toEqual([]);
     const nearZero = run([figure('NVA0006', 'sharpe', 0.03), figure('NVA0006', 'beta', 1.1), figure('NVA0006', 'treynor', -0.001)]);
     expect(nearZero).toEqual([]);
+  });
+});
+
+describe('vendor_inconsistent, conflicting copies', () => {
+  it('reports exactly the groups whose values a Set keeps apart (NaN equal to NaN, 0 to −0)', () => {
+    const value = fc.constantFrom(0.1, 0.2, 0, -0, NaN, 1e-9);
+    const copy = fc.record({ series: fc.constantFrom('NVA0001', 'NVA0002'), window: fc.constantFrom('1y', '3y'), value });
+    fc.assert(
+      fc.property(fc.array(copy, { maxLength: 12 }), (copies) => {
+        const figures = copies.map((c) => figure(c.series, 'std_dev', c.value, 'decimal', c.window));
+        const groups = new Map<string, number[]>();
+        for (const f of figures) groups.set(`${f.series_id}|${f.window}`, [...(groups.get(`${f.series_id}|${f.window}`) ?? []), f.value]);
+        const expected = [...groups.entries()].filter(([, values]) => new Set(values).size > 1).map(([key]) => key);
+        const found = run(figures)
+          .filter((finding) => finding.key.endsWith('conflict'))
+          .map((finding) => `${finding.series_id}|${(finding.evidence.figures as Array<{ window: string }>)[0].window}`);
+        expect(found).toEqual(expected);
+      }),
+    );
   });
 });
