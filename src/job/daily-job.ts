@@ -52,7 +52,7 @@ export async function runDailyJob(config: RunConfig, asOf: number, onStage: Stag
   const checking = checkStage(day, config.checks, { threads: config.threads });
   // Risk figures stand at the last month-end on or before the as-of date.
   const figureRequest = { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology };
-  // The figures need no finding (only their marks do): this thread computes them while the check workers run.
+  // The figures need no finding (only their marks do): this thread computes them while the check workers run, then takes its share of the series checks (src/checks/parallel.ts).
   const figures = await beside(checking, () => computeFigures(day, figureRequest));
   const check = await checking;
   // The snapshot is written on another thread while this one marks the figures, reconciles and carries the tickets.

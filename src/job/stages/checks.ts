@@ -5,7 +5,7 @@ import type { Day } from '../day.js';
 
 /**
  * The checks stage: the whole catalogue over the day's raw (unadjusted) NAVs, the series-level
- * checks on worker threads for a large feed (src/checks/parallel.ts; same findings as one thread).
+ * checks on worker threads and this one for a large feed (src/checks/parallel.ts; same findings as one thread).
  */
 export async function checkStage(day: Day, settings: CheckSettings = {}, parallel: ParallelOptions = {}): Promise<CheckAnswer> {
   const findings = await runChecksInParallel({ ...day.feed, previous: day.previous, asOf: day.asOf }, settings, parallel);
