@@ -17,20 +17,26 @@ import { cutInput, InputError } from './errors.js';
  * up to seven. It is stopped after a failure or a timeout, and a fresh one serves the next file;
  * between files it does not keep the process alive.
  */
+/*
+ * The source is evaluated as a CommonJS script, or as an ES module when the process was started
+ * with --input-type=module (workers inherit it); `import()` works in both, `require` only in the
+ * first. Messages posted before the listener is attached wait in the port.
+ */
 const WORKER_SOURCE = `
-const { parentPort, workerData } = require('node:worker_threads');
-const library = import(workerData.arrowUrl);
-parentPort.on('message', (bytes) => {
-  library
-    .then(({ tableFromIPC }) => {
-      const table = tableFromIPC(bytes);
-      for (const field of table.schema.fields) {
-        const vector = table.getChild(field.name);
-        if (vector) for (const data of vector.data) void data.length;
-      }
-      parentPort.postMessage({ ok: true });
-    })
-    .catch((error) => parentPort.postMessage({ ok: false, message: String((error && error.message) || error) }));
+import('node:worker_threads').then(({ parentPort, workerData }) => {
+  const library = import(workerData.arrowUrl);
+  parentPort.on('message', (bytes) => {
+    library
+      .then(({ tableFromIPC }) => {
+        const table = tableFromIPC(bytes);
+        for (const field of table.schema.fields) {
+          const vector = table.getChild(field.name);
+          if (vector) for (const data of vector.data) void data.length;
+        }
+        parentPort.postMessage({ ok: true });
+      })
+      .catch((error) => parentPort.postMessage({ ok: false, message: String((error && error.message) || error) }));
+  });
 });
 `;
 

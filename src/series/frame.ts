@@ -95,15 +95,23 @@ function framedInFileOrder(input: UnsortedObservations): SeriesFrame | null {
     runCodes.push(codes[row]);
   }
   starts.push(codes.length);
+  return frameOfRuns(runCodes, starts, input);
+}
+
+/**
+ * The frame of rows already in (id, date) order, given where each series' run of rows starts
+ * (`starts` ends with the row count) and the code of each run.
+ */
+export function frameOfRuns(runCodes: readonly number[], starts: readonly number[], input: Omit<UnsortedObservations, 'codes'>): SeriesFrame {
   const ids = runCodes.map((code) => input.dictionary[code]);
   const indexById = new Map(ids.map((id, i) => [id, i]));
   const offsets = sharedInt32Array(starts.length);
   offsets.set(starts);
-  return { ids, offsets, dates, values: input.values, lines: input.lines, indexById };
+  return { ids, offsets, dates: input.dates, values: input.values, lines: input.lines, indexById };
 }
 
 /** The rank of every dictionary entry in ascending id order (as `rankDictionary` compares them). */
-function rankOfEveryCode(dictionary: readonly string[]): Int32Array {
+export function rankOfEveryCode(dictionary: readonly string[]): Int32Array {
   const order = [...dictionary.keys()].sort(compareIdsOf(dictionary));
   const rankOfCode = new Int32Array(dictionary.length);
   order.forEach((code, rank) => (rankOfCode[code] = rank));

@@ -1,9 +1,11 @@
+import { join } from 'node:path';
 import { DataType, DateUnit, tableFromIPC, type Data, type Table } from 'apache-arrow';
 import { arrowToCanonical } from '../ingest/arrow-table.js';
 import { toSeriesFrame } from '../ingest/convert.js';
 import { buildSeriesFrame, type SeriesFrame } from '../series/frame.js';
 import { MIN_ROWS_FOR_A_WORKER, onWorkerWhenLarge } from '../threads/module-worker.js';
 import type { SnapshotFile } from './manifest.js';
+import { readNavFrameInPart } from './stored-nav-frame.js';
 import { latestEarlierThatLoads, readStoredArrow, scanSnapshots, type UnreadableSnapshot } from './snapshot-store.js';
 
 /**
@@ -11,10 +13,12 @@ import { latestEarlierThatLoads, readStoredArrow, scanSnapshots, type Unreadable
  * the NAV table of the latest earlier snapshot whose NAV table reads. Only that table is read;
  * a snapshot whose manifest or NAV table is damaged is passed over and returned with its reason.
  *
- * A stored NAV table is read into shared memory and, in the common case (one record batch, no
- * missing value, ids in ascending order), the frame's dates, values and lines are views of the
- * file's own bytes: 25.8 M rows at 10,000 series are 500 MB of Arrow that used to be decoded
- * into a second 500 MB of copies, and the check workers can read shared views without copying.
+ * The frame's columns are on shared memory, so the check workers read them without a copy. In
+ * the common case (the form `run` stores: no missing value, ids in ascending order) only the
+ * dates, values and lines are read from the file, each at its place: at 10,000 series 400 MB of
+ * the 500 MB file, whose series codes (100 MB) the frame does not need once its runs are found.
+ * Any other table is read whole into shared memory and framed as views of its bytes (one
+ * record batch, no missing value) or decoded as any Arrow table.
  */
 export interface PreviousNav {
   readonly asOf?: string;
@@ -30,8 +34,16 @@ export function previousNav(storeDir: string, feed: string, asOfExclusive: strin
   return snapshot ? { asOf: snapshot.asOf, nav: loaded, skipped } : { skipped };
 }
 
-/** A stored NAV table as a series frame, checked against the SHA-256 of its manifest. */
+/**
+ * A stored NAV table as a series frame, checked against the SHA-256 of its manifest: read in part
+ * when it is in the form `run` stores (src/store/stored-nav-frame.ts), else read whole.
+ */
 export function readStoredNavFrame(dir: string, file: SnapshotFile): SeriesFrame {
+  return readNavFrameInPart(join(dir, file.stored_file), file.stored_sha256) ?? readWholeNavFrame(dir, file);
+}
+
+/** The whole file in shared memory, framed as views of its bytes when it can be, else decoded. */
+export function readWholeNavFrame(dir: string, file: SnapshotFile): SeriesFrame {
   return readStoredArrow(
     dir,
     file,

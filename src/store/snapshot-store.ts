@@ -427,9 +427,19 @@ function readStoredBytes(path: string, shared = false): Buffer {
   try {
     return shared ? readIntoSharedMemory(path) : readFileSync(path);
   } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    throw new InputError(`${path} cannot be read (${code === 'ENOENT' ? 'it is missing' : cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
+    throw unreadableStoredFile(path, error);
   }
+}
+
+/** The error of a stored file that cannot be read: its snapshot is damaged. */
+export function unreadableStoredFile(path: string, error: unknown): InputError {
+  const code = (error as NodeJS.ErrnoException).code;
+  return new InputError(`${path} cannot be read (${code === 'ENOENT' ? 'it is missing' : cutInput((error as Error).message)}); the snapshot is damaged, so write that day again.`);
+}
+
+/** The error of a stored file whose bytes are not those its manifest's SHA-256 names. */
+export function alteredStoredFile(path: string): InputError {
+  return new InputError(`${path} does not match the SHA-256 in its manifest; the snapshot is damaged, so write that day again.`);
 }
 
 function readIntoSharedMemory(path: string): Buffer {
@@ -456,9 +466,7 @@ function readStoredTable(dir: string, file: SnapshotFile): CanonicalTable {
 export function readStoredArrow<T>(dir: string, file: SnapshotFile, decode: (bytes: Uint8Array, path: string) => T, shared = false): T {
   const path = join(dir, file.stored_file);
   const bytes = readStoredBytes(path, shared);
-  if (sha256Bytes(bytes) !== file.stored_sha256) {
-    throw new InputError(`${path} does not match the SHA-256 in its manifest; the snapshot is damaged, so write that day again.`);
-  }
+  if (sha256Bytes(bytes) !== file.stored_sha256) throw alteredStoredFile(path);
   try {
     return decode(bytes, path);
   } catch (error) {

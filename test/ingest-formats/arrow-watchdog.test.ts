@@ -1,3 +1,5 @@
+import { spawnSync } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { canonicalToArrowIpc } from '../../src/ingest/arrow-table.js';
 import { decodeArrowUnderWatchdog, releaseArrowDecoder } from '../../src/ingest/arrow-watchdog.js';
@@ -42,5 +44,23 @@ describe('decodeArrowUnderWatchdog', () => {
     await expect(decodeArrowUnderWatchdog(goodFile(), 'later.arrow', 30_000)).resolves.toBeUndefined();
     await releaseArrowDecoder();
     await releaseArrowDecoder(); // nothing to stop: a no-op
+  });
+
+  it('decodes in a process started with --input-type=module, whose evaluated workers are ES modules', () => {
+    const watchdog = fileURLToPath(new URL('../../src/ingest/arrow-watchdog.ts', import.meta.url));
+    const tables = fileURLToPath(new URL('../../src/ingest/arrow-table.ts', import.meta.url));
+    const rowsHere = fileURLToPath(new URL('./tables.ts', import.meta.url));
+    const source = `
+      const { decodeArrowUnderWatchdog, releaseArrowDecoder } = await import(${JSON.stringify(watchdog)});
+      const { canonicalToArrowIpc } = await import(${JSON.stringify(tables)});
+      const { tableFromRows } = await import(${JSON.stringify(rowsHere)});
+      const rows = ${JSON.stringify(rows)};
+      await decodeArrowUnderWatchdog(canonicalToArrowIpc(tableFromRows('nav', ['series_id', 'date', 'nav'], rows)), 'good.arrow', 30000);
+      await releaseArrowDecoder();
+      console.log('decoded');
+    `;
+    const child = spawnSync(process.execPath, ['--input-type=module', '--import', 'tsx', '-e', source], { encoding: 'utf8' });
+    expect(child.stderr).toBe('');
+    expect(child.stdout.trim()).toBe('decoded');
   });
 });
