@@ -43,7 +43,9 @@ export function pageDecodedForm(element: SchemaElement, metadata: FileMetaData):
   const form = valueForm(element);
   if (form === null) return null;
   for (const group of metadata.row_groups) {
-    const chunk = group.columns.find((column) => column.meta_data?.path_in_schema[0] === element.name);
+    // hyparquet would read every chunk of a name given twice into one column; leave that to it.
+    const chunks = group.columns.filter((column) => column.meta_data?.path_in_schema[0] === element.name);
+    const chunk = chunks.length === 1 ? chunks[0] : undefined;
     const meta = chunk?.meta_data;
     if (!chunk || chunk.file_path || !meta || meta.path_in_schema.length !== 1 || meta.type !== element.type) return null;
     if (!CODECS_DECODED.has(meta.codec)) return null;
@@ -126,6 +128,7 @@ function decodeChunk(chunk: Uint8Array, meta: ColumnMetaData, optional: boolean,
 }
 
 interface DataPage {
+  readonly version: 1 | 2;
   readonly rows: number;
   /** One level a row (1 = a value, 0 = null), or null when every row has a value. */
   readonly defined: Uint8Array | null;
@@ -147,7 +150,7 @@ function dataPage(header: PageHeader, body: Uint8Array, meta: ColumnMetaData, op
     // Version 1 pages prefix their definition levels with their byte length.
     const defined = optional ? readLevels(reader, rows, undefined) : null;
     const valueCount = defined ? countDefined(defined) : rows;
-    return { rows, defined: defined && valueCount < rows ? defined : null, valueCount, encoding: pageHeader.encoding, values: page.subarray(reader.offset) };
+    return { version: 1, rows, defined: defined && valueCount < rows ? defined : null, valueCount, encoding: pageHeader.encoding, values: page.subarray(reader.offset) };
   }
   const pageHeader = header.data_page_header_v2;
   if (!pageHeader || !VALUE_ENCODINGS.has(pageHeader.encoding)) throw new Error('data page without a known encoding');
@@ -161,7 +164,7 @@ function dataPage(header: PageHeader, body: Uint8Array, meta: ColumnMetaData, op
   const uncompressedSize = header.uncompressed_page_size - defineBytes - repeatBytes;
   let values = body.subarray(defineBytes + repeatBytes);
   if (pageHeader.is_compressed !== false && uncompressedSize) values = decompress(values, uncompressedSize, meta.codec);
-  return { rows, defined: defined && valueCount < rows ? defined : null, valueCount, encoding: pageHeader.encoding, values };
+  return { version: 2, rows, defined: defined && valueCount < rows ? defined : null, valueCount, encoding: pageHeader.encoding, values };
 }
 
 /**
@@ -219,15 +222,15 @@ function placePage(page: DataPage, sink: ValueSink, rowStart: number): void {
     sink.plain(page.values, page.valueCount, rowStart, page.rows, page.defined);
     return;
   }
+  // hyparquet reads the bit width even when no value follows, and fails when it is missing.
+  if (page.values.length === 0) throw new Error('dictionary-encoded page without a bit width');
   const indices = new Int32Array(page.valueCount);
-  if (page.valueCount > 0 && page.values.length > 0) {
-    const bitWidth = page.values[0]!;
-    if (bitWidth > 0) {
-      const reader: DataReader = { view: new DataView(page.values.buffer, page.values.byteOffset, page.values.byteLength), offset: 1 };
-      readRleBitPackedHybrid(reader, bitWidth, indices, page.values.length - 1);
-    }
-  } else if (page.valueCount > 0) {
-    throw new Error('dictionary page without indices');
+  const bitWidth = page.values[0]!;
+  // As in hyparquet: a version 1 page with a bit width of 0 holds only index 0 and its runs are
+  // not read; a version 2 page's runs are read whatever the width.
+  if (page.valueCount > 0 && (bitWidth > 0 || page.version === 2)) {
+    const reader: DataReader = { view: new DataView(page.values.buffer, page.values.byteOffset, page.values.byteLength), offset: 1 };
+    readRleBitPackedHybrid(reader, bitWidth, indices, page.values.length - 1);
   }
   sink.indices(indices, rowStart, page.rows, page.defined);
 }
