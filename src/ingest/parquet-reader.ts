@@ -9,6 +9,7 @@ import {
 } from 'hyparquet';
 import { ingestColumnarFile, matchColumns, TextDictionaryBuilder, type SourceColumn } from './columnar-ingest.js';
 import { cutInput, InputError } from './errors.js';
+import { decodeColumnPages, pageDecodedForm } from './parquet-pages.js';
 import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
 import type { FeedProfile } from './profile.js';
 import type { FileKind } from './schema.js';
@@ -35,8 +36,10 @@ function floorDays(count: bigint, unitsPerMilli: bigint): number {
 }
 
 /**
- * Reads a canonical file held as Parquet. hyparquet reads whole columns, so the reader asks only
- * for the columns the file kind needs and works on each as one array.
+ * Reads a canonical file held as Parquet, only the columns the file kind needs, each as one array.
+ * Flat string, date and number columns in the common encodings go through the page decoder
+ * (parquet-pages.ts); anything else, and any file that decoder finds out of shape, through
+ * hyparquet. `pageDecoder: false` reads every column with hyparquet: tests compare the two.
  */
 export async function readParquetBuffer(
   bytes: Uint8Array,
@@ -44,6 +47,7 @@ export async function readParquetBuffer(
   kind: FileKind,
   profile: FeedProfile,
   limits: ReadLimits = DEFAULT_READ_LIMITS,
+  pageDecoder = true,
 ): Promise<IngestResult> {
   const file = exactArrayBuffer(bytes);
   const metadata = openParquetMetadata(file, fileName);
@@ -53,14 +57,40 @@ export async function readParquetBuffer(
     throw new InputError(`${fileName} has ${columnNames.length} columns, more than the limit of ${limits.maxHeaderColumns}; raise limits.max_header_columns in the run configuration if it is genuine.`);
   }
   const rowCount = checkedRowCount(metadata, bytes.length, fileName);
-  const wanted = matchColumns(fileName, columnNames, kind, profile).map((match) => match.sourceName);
-  const chunks = await readColumnChunks(file, metadata, [...new Set(wanted)]);
+  const wanted = [...new Set(matchColumns(fileName, columnNames, kind, profile).map((match) => match.sourceName))];
+  const sources = pageDecoder ? decodeByPages(file, metadata, elements, wanted, rowCount) : new Map<string, SourceColumn>();
+  const left = sources.size === 0 ? wanted : wanted.filter((name) => !sources.has(name));
+  const chunks = await readColumnChunks(file, metadata, left);
   checkChunks(chunks, rowCount, fileName);
-  const sources = new Map<string, SourceColumn>();
   for (const [name, columnChunks] of chunks) {
     sources.set(name, parquetSourceColumn(columnChunks, rowCount, elements.get(name)!, fileName));
   }
   return ingestColumnarFile({ fileName, rowCount, columnNames, readColumn: (name) => sources.get(name)! }, kind, profile, limits);
+}
+
+/**
+ * The columns the page decoder can read (parquet-pages.ts), straight into typed columns. If any
+ * of them is not the well-formed shape it expects, none is kept: hyparquet then reads every column,
+ * so a damaged file gives the same message as before.
+ */
+function decodeByPages(
+  file: ArrayBuffer,
+  metadata: FileMetaData,
+  elements: Map<string, SchemaElement>,
+  wanted: readonly string[],
+  rowCount: number,
+): Map<string, SourceColumn> {
+  const sources = new Map<string, SourceColumn>();
+  try {
+    for (const name of wanted) {
+      const element = elements.get(name)!;
+      const form = pageDecodedForm(element, metadata);
+      if (form !== null) sources.set(name, decodeColumnPages(file, metadata, element, form, rowCount));
+    }
+    return sources;
+  } catch {
+    return new Map();
+  }
 }
 
 /**
