@@ -91,16 +91,23 @@ function countTickets(records: readonly TicketRecord[]): TicketCounts {
 }
 
 export function summarizeFigures(metrics: MetricsAnswer, figures: readonly FlaggedFigure[], fullFile: string): FigureSummary {
-  const needsPerson = (f: FlaggedFigure) => f.value === null || f.flagged_by.length > 0;
   const complete = figures.length <= FIGURES_SHOWN_AT_MOST;
-  const shown = complete ? figures : figures.filter(needsPerson).slice(0, FIGURES_SHOWN_AT_MOST);
+  // Counted and picked in one pass, without a list of every figure per count.
+  let notComputable = 0;
+  let flagged = 0;
+  const needingPerson: FlaggedFigure[] = [];
+  for (const f of figures) {
+    if (f.value === null) notComputable++;
+    if (f.flagged_by.length > 0) flagged++;
+    if (!complete && needingPerson.length < FIGURES_SHOWN_AT_MOST && (f.value === null || f.flagged_by.length > 0)) needingPerson.push(f);
+  }
   return {
     as_of: metrics.as_of,
     methodology: metrics.methodology,
-    computed: figures.filter((f) => f.value !== null).length,
-    not_computable: figures.filter((f) => f.value === null).length,
-    flagged: figures.filter((f) => f.flagged_by.length > 0).length,
-    shown,
+    computed: figures.length - notComputable,
+    not_computable: notComputable,
+    flagged,
+    shown: complete ? figures : needingPerson,
     complete,
     full_file: fullFile,
   };

@@ -19,8 +19,12 @@ export function flagFigures(metrics: MetricsAnswer, findings: readonly Finding[]
   return metrics.metrics.map((figure, index) => {
     const own = figure.suspect_data;
     const more = marked[index].suspect_data;
-    // Most figures have no flag: no sets built for them.
-    const flagged_by = own === undefined && more === undefined ? [] : [...new Set([...(own ?? []), ...(more ?? [])])];
-    return { ...figure, flagged_by };
+    // Most figures have no flag: no sets built for them, and one shared empty list.
+    const flagged_by = own === undefined && more === undefined ? NO_FLAGS : [...new Set([...(own ?? []), ...(more ?? [])])];
+    // The figure's keys in their order, then flagged_by, as a spread gives them; Object.assign is
+    // several times quicker than a spread of objects of a few shapes (360,000 at 10,000 series).
+    return Object.assign({}, figure, { flagged_by });
   });
 }
+
+const NO_FLAGS: readonly string[] = Object.freeze([]);

@@ -1,11 +1,12 @@
 import { join } from 'node:path';
 import { jsonPieces } from '../json-pieces.js';
 import { withFinalNewline } from '../render.js';
-import { csvLine } from '../safe-text.js';
+import { csvCell, csvLine } from '../safe-text.js';
+import { linesInPieces } from '../text-pieces.js';
 import { ticketsToCsv, ticketsToJsonLines } from '../../tickets/export.js';
 import type { FlaggedFigure } from './figure-flags.js';
 import { renderDailyHtml } from './daily-html.js';
-import { renderDailyCsv, renderDailyMarkdown } from './daily-text.js';
+import { dailyCsvInPieces, renderDailyMarkdown } from './daily-text.js';
 import type { DailyReport } from './daily-report.js';
 
 /** Names of the day's files in the output directory. */
@@ -27,7 +28,7 @@ export function dailyFiles(report: DailyReport, flaggedFigures: readonly Flagged
   const files: Record<string, () => string | Iterable<string>> = {
     [DAILY_FILES.html]: () => renderDailyHtml(report),
     [DAILY_FILES.markdown]: () => renderDailyMarkdown(report),
-    [DAILY_FILES.csv]: () => renderDailyCsv(report),
+    [DAILY_FILES.csv]: () => dailyCsvInPieces(report),
     [DAILY_FILES.json]: () => withFinalNewline(jsonPieces(report, 1)),
     [DAILY_FILES.ticketsJsonLines]: () => ticketsToJsonLines(report.tickets.records),
     [DAILY_FILES.ticketsCsv]: () => ticketsToCsv(report.tickets.records),
@@ -36,13 +37,17 @@ export function dailyFiles(report: DailyReport, flaggedFigures: readonly Flagged
   return files;
 }
 
-/** Every figure, flat, with the flag of an error-level finding in its window: the file the report links. */
-export function figuresCsv(flaggedFigures: readonly FlaggedFigure[]): string {
-  const lines = [csvLine(['series_id', 'window', 'metric', 'value', 'observations', 'reason', 'flagged_by'])];
+/** Every figure, flat, with the flag of an error-level finding in its window: the file the report links, in pieces. */
+export function figuresCsv(flaggedFigures: readonly FlaggedFigure[]): Iterable<string> {
+  return linesInPieces(figuresCsvLines(flaggedFigures));
+}
+
+function* figuresCsvLines(flaggedFigures: readonly FlaggedFigure[]): Generator<string> {
+  yield csvLine(['series_id', 'window', 'metric', 'value', 'observations', 'reason', 'flagged_by']);
   for (const f of flaggedFigures) {
-    lines.push(csvLine([f.series_id, f.window, f.metric, f.value, f.observations, f.reason ?? null, f.flagged_by.join(' ')]));
+    // csvLine's cells, without an array per line.
+    yield `${csvCell(f.series_id)},${csvCell(f.window)},${csvCell(f.metric)},${csvCell(f.value)},${csvCell(f.observations)},${csvCell(f.reason ?? null)},${csvCell(f.flagged_by.length === 0 ? '' : f.flagged_by.join(' '))}`;
   }
-  return lines.join('\n') + '\n';
 }
 
 export function dailyPaths(dir: string): Record<keyof typeof DAILY_FILES, string> {
