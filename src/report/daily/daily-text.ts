@@ -33,7 +33,7 @@ export function renderDailyMarkdown(report: DailyReport): string {
   lines.push('', `## Findings by check and severity (${report.findings.length})`, '', ...mdTable(['check', ...SEVERITIES, 'total'], findingsByCheck(report.findings).map(({ check, counts, total }) => [check, ...SEVERITIES.map((s) => counts[s] || ''), total])));
   const rec = report.reconciliation;
   if (rec) {
-    const off = needingALook(rec.results ?? []).slice(0, ROWS_SHOWN);
+    const off = needingALook(rec.results ?? [], ROWS_SHOWN);
     lines.push('', '## Reconciliation with the vendor', '', ...mdTable(['series', 'window', 'metric', 'status', 'vendor', 'computed', 'tolerance', 'explanation or reason'], off.map((r) => [r.series_id, r.window, r.metric, r.status, r.vendor, r.computed, r.tolerance, r.status === 'not_computable' ? r.reason : (r.explanation_text ?? (r.explanations ?? []).map((x) => JSON.stringify(x.changes ?? {})).join('; '))])));
     for (const v of rec.vendor_explanations ?? []) lines.push(`- ${md(v.vendor ?? 'vendor')}: ${md(v.message ?? v.explanation ?? JSON.stringify(v.changes ?? {}))}`);
   }

@@ -4,7 +4,7 @@ import { withFinalNewline } from '../render.js';
 import { csvCell, csvLine } from '../safe-text.js';
 import { linesInPieces } from '../text-pieces.js';
 import { ticketsToCsv, ticketsToJsonLines } from '../../tickets/export.js';
-import type { FlaggedFigure } from './figure-flags.js';
+import type { FigureFlags } from './figure-flags.js';
 import { renderDailyHtml } from './daily-html.js';
 import { dailyCsvInPieces, renderDailyMarkdown } from './daily-text.js';
 import type { DailyReport } from './daily-report.js';
@@ -24,7 +24,7 @@ export const DAILY_FILES = {
  * The day's files, by name, each made only when its maker is called, so the caller can write one
  * and let it go before making the next (at 10,000 series `report.json` alone is about 77 MB).
  */
-export function dailyFiles(report: DailyReport, flaggedFigures: readonly FlaggedFigure[] | null): Record<string, () => string | Iterable<string>> {
+export function dailyFiles(report: DailyReport, flaggedFigures: FigureFlags | null): Record<string, () => string | Iterable<string>> {
   const files: Record<string, () => string | Iterable<string>> = {
     [DAILY_FILES.html]: () => renderDailyHtml(report),
     [DAILY_FILES.markdown]: () => renderDailyMarkdown(report),
@@ -38,15 +38,17 @@ export function dailyFiles(report: DailyReport, flaggedFigures: readonly Flagged
 }
 
 /** Every figure, flat, with the flag of an error-level finding in its window: the file the report links, in pieces. */
-export function figuresCsv(flaggedFigures: readonly FlaggedFigure[]): Iterable<string> {
+export function figuresCsv(flaggedFigures: FigureFlags): Iterable<string> {
   return linesInPieces(figuresCsvLines(flaggedFigures));
 }
 
-function* figuresCsvLines(flaggedFigures: readonly FlaggedFigure[]): Generator<string> {
+function* figuresCsvLines({ figures, flags }: FigureFlags): Generator<string> {
   yield csvLine(['series_id', 'window', 'metric', 'value', 'observations', 'reason', 'flagged_by']);
-  for (const f of flaggedFigures) {
+  for (let index = 0; index < figures.length; index++) {
+    const f = figures[index];
+    const flagged_by = flags[index];
     // csvLine's cells, without an array per line.
-    yield `${csvCell(f.series_id)},${csvCell(f.window)},${csvCell(f.metric)},${csvCell(f.value)},${csvCell(f.observations)},${csvCell(f.reason ?? null)},${csvCell(f.flagged_by.length === 0 ? '' : f.flagged_by.join(' '))}`;
+    yield `${csvCell(f.series_id)},${csvCell(f.window)},${csvCell(f.metric)},${csvCell(f.value)},${csvCell(f.observations)},${csvCell(f.reason ?? null)},${csvCell(flagged_by.length === 0 ? '' : flagged_by.join(' '))}`;
   }
 }
 
