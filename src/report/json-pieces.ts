@@ -5,8 +5,9 @@
  * garbage of making it raised the process's peak memory by several hundred megabytes.
  *
  * Objects and short arrays holding containers are walked here; a long array is stringified 128
- * elements at a time, and everything else is given to `JSON.stringify` itself, re-indented to its
- * depth. JSON strings never hold a raw line break, so re-indenting every line break is safe.
+ * elements at a time, and everything else is given to `JSON.stringify` itself, indented to its
+ * depth: the value is stringified inside as many one-element arrays as its depth, so the engine
+ * indents it, and the wrapping is cut off (a substring, not a copy).
  */
 
 /** Arrays longer than this are written a slice at a time; shorter ones are walked, or stringified whole when they hold no container. */
@@ -34,7 +35,9 @@ function* arrayPieces(array: readonly unknown[], indent: number, depth: number):
   yield '[';
   if (long) {
     for (let start = 0; start < array.length; start += ELEMENTS_PER_PIECE) {
-      yield (start === 0 ? '' : ',') + elementsAt(array, start, Math.min(start + ELEMENTS_PER_PIECE, array.length), indent, depth);
+      // The comma apart: joined to the piece it would make a new string to copy before encoding.
+      if (start > 0) yield ',';
+      yield elementsAt(array, start, Math.min(start + ELEMENTS_PER_PIECE, array.length), indent, depth);
     }
   } else {
     for (let i = 0; i < array.length; i++) {
@@ -61,9 +64,9 @@ function elementsAt(array: readonly unknown[], start: number, end: number, inden
   if (slice.some(hasToJson)) {
     return slice.map((element, k) => lineStart(indent, depth + 1) + stringifiedAt(jsonValueOf(element, String(start + k)) ?? null, indent, depth + 1)).join(',');
   }
-  const text = JSON.stringify(slice, null, indent);
-  const inside = indent > 0 ? text.slice(1, text.length - 2) : text.slice(1, text.length - 1); // "[\n  a,\n  b\n]" or "[a,b]"
-  return depth === 0 || indent === 0 ? inside : inside.replaceAll('\n', lineStart(indent, depth));
+  // The slice as it stands at `depth`, "[\n    a,\n    b\n  ]", without its brackets and the line break before the last one.
+  const text = stringifiedAt(slice, indent, depth);
+  return text.slice(1, text.length - 1 - lineStart(indent, depth).length);
 }
 
 function hasToJson(value: unknown): value is { toJSON(key: string): unknown } {
@@ -99,9 +102,29 @@ function isWalkableContainer(value: unknown): boolean {
   return (Array.isArray(value) && value.length > 0) || isWalkableObject(value);
 }
 
+/** JSON text of a value (toJSON already applied) as it stands at `depth`: every line after the first indented to it. */
 function stringifiedAt(value: unknown, indent: number, depth: number): string {
-  const text = JSON.stringify(value, null, indent);
-  return depth === 0 || indent === 0 || !text.includes('\n') ? text : text.replaceAll('\n', lineStart(indent, depth));
+  if (depth === 0 || indent === 0 || value === null || typeof value !== 'object') return JSON.stringify(value, null, indent);
+  // A value with a toJSON of its own would be told the wrapper's key ("0") instead of "".
+  if (hasToJson(value)) return JSON.stringify(value, null, indent).replaceAll('\n', lineStart(indent, depth));
+  let wrapped: unknown = value;
+  for (let level = 0; level < depth; level++) wrapped = [wrapped];
+  const text = JSON.stringify(wrapped, null, indent);
+  return text.slice(wrapperOpening(indent, depth).length, text.length - wrapperClosing(indent, depth).length);
+}
+
+/** What `depth` one-element arrays write before their element: "[\n  [\n    " at depth 2, indentation 2. */
+function wrapperOpening(indent: number, depth: number): string {
+  let text = '';
+  for (let level = 1; level <= depth; level++) text += '[' + lineStart(indent, level);
+  return text;
+}
+
+/** What they write after it: "\n  ]\n]" at depth 2, indentation 2. */
+function wrapperClosing(indent: number, depth: number): string {
+  let text = '';
+  for (let level = depth - 1; level >= 0; level--) text += lineStart(indent, level) + ']';
+  return text;
 }
 
 function lineStart(indent: number, depth: number): string {

@@ -33,6 +33,20 @@ describe('JSON in pieces', () => {
     );
   });
 
+  it('writes numbers and text deep inside long arrays as JSON.stringify does', () => {
+    // Each long array is stringified inside one-element wrappers as deep as it stands, then cut out.
+    const number = fc.oneof(fc.double(), fc.integer(), fc.constantFrom(-0, 1e21, 1e-7, 5e-324, Number.MAX_VALUE, Number.NaN, Infinity, -Infinity));
+    const text = fc.oneof(fc.string({ unit: 'binary' }), fc.string({ unit: 'grapheme' }), fc.constantFrom('\ud800', '\udc00x', '"\\\n\t\u0000\u2028'));
+    const row = fc.record({ id: text, value: number, more: fc.array(fc.oneof(number, text, fc.constant(null)), { maxLength: 3 }), inner: fc.dictionary(text, number, { maxKeys: 2 }) });
+    const nested = fc.dictionary(fc.string(), fc.record({ rows: fc.array(row, { minLength: 65, maxLength: 300 }), also: fc.array(fc.array(number, { minLength: 65, maxLength: 70 }), { maxLength: 2 }) }), { minKeys: 1, maxKeys: 2 });
+    fc.assert(
+      fc.property(nested, fc.constantFrom(0, 1, 2, 4), (value, indent) => {
+        expect(joined({ deeper: [value, { again: value }] }, indent)).toBe(JSON.stringify({ deeper: [value, { again: value }] }, null, indent));
+      }),
+      { numRuns: 60 },
+    );
+  });
+
   it('skips what JSON skips and calls toJSON with the member name', () => {
     const seen: string[] = [];
     const value = {

@@ -4,7 +4,7 @@ import type { Finding } from '../../findings.js';
 import type { MetricsAnswer } from '../../metrics/compute.js';
 import type { ReconcileAnswer } from '../../reconcile/reconcile.js';
 import { checkView, type CheckAnswer } from '../../report/check-answer.js';
-import { buildDailyReport, dailyFiles, flagFigures, navChart, type DailyReport, type NavChart } from '../../report/daily/index.js';
+import { buildDailyReport, dailyFiles, figureFlags, navChart, type DailyReport, type NavChart } from '../../report/daily/index.js';
 import { writeFileAtomically, writeQuarantine } from '../../report/files.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { reconcileView } from '../../report/reconcile-answer.js';
@@ -49,7 +49,7 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
     ? [`${tooLong.join(' and ')} ${tooLong.length > 1 ? 'have' : 'has'} more than ${READABLE_TABLE_ROWS} rows: written as json and csv only; report.html shows what needs a person.`]
     : [];
   // Flagged once, for the day's report and for figures.csv.
-  const flaggedFigures = metrics && flagFigures(metrics, check.findings);
+  const flaggedFigures = metrics && figureFlags(metrics, check.findings);
   const report = buildDailyReport({
     feed: answers.feed,
     previousAsOf: tickets.previousAsOf,
@@ -58,7 +58,7 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
     tickets: tickets.records,
     history: tickets.history,
     metrics,
-    flaggedFigures: flaggedFigures ?? undefined,
+    figureFlags: flaggedFigures ?? undefined,
     reconciliation: tickets.reconciliation,
     charts: chartsOf(day, tickets.records, check.findings),
     notices: [...answers.notices, ...tickets.notices, ...notices],

@@ -130,7 +130,7 @@ function reconciliationSection(report: DailyReport): string {
   for (const r of results) statuses.set(r.status, (statuses.get(r.status) ?? 0) + 1);
   const plotted: ToleranceRow[] = breachesFirst(results.filter((r) => typeof r.vendor === 'number' && typeof r.computed === 'number' && typeof r.tolerance === 'number'), PLOTTED_AT_MOST)
     .map((r) => ({ label: `${r.series_id} ${r.window ?? ''} ${r.metric ?? ''}`, vendor: r.vendor!, computed: r.computed!, tolerance: r.tolerance!, status: r.status }));
-  const notMatching = needingALook(results).slice(0, TICKETS_SHOWN);
+  const notMatching = needingALook(results, TICKETS_SHOWN);
   const rows = notMatching.map((r) => [
     e(r.series_id), e(r.window), e(r.metric), `<span class="${r.status === 'breach' ? 'sev-error' : ''}">${e(r.status)}</span>`, e(r.vendor ?? null), e(r.computed ?? null), e(r.tolerance ?? null),
     e(r.status === 'not_computable' ? (r.reason ?? 'no reason given') : (r.explanation_text ?? (r.explanations ?? []).map((x) => JSON.stringify(x.changes ?? {})).join('; '))),

@@ -7,7 +7,7 @@ import type { ReconciliationInput, TicketRecord, TicketState } from '../../ticke
 import type { CheckAnswer } from '../check-answer.js';
 import { CAUTION } from '../view.js';
 import type { NavChart } from './chart-data.js';
-import { flagFigures, type FlaggedFigure } from './figure-flags.js';
+import { figureFlags, flaggedFigure, type FigureFlags, type FlaggedFigure } from './figure-flags.js';
 
 /**
  * The day's report, one object that every output (html, markdown, csv, json, terminal) renders.
@@ -59,8 +59,8 @@ export interface DailyInputs {
   readonly tickets: readonly TicketRecord[];
   readonly history: readonly RunCounts[];
   readonly metrics: MetricsAnswer | null;
-  /** The metrics' figures flagged against the check's findings (`flagFigures`), when the caller has them already. */
-  readonly flaggedFigures?: readonly FlaggedFigure[];
+  /** The metrics' figures flagged against the check's findings (`figureFlags`), when the caller has them already. */
+  readonly figureFlags?: FigureFlags;
   readonly reconciliation?: ReconciliationInput | null;
   readonly charts?: readonly NavChart[];
   readonly figuresFile?: string;
@@ -75,7 +75,7 @@ export function buildDailyReport(inputs: DailyInputs): DailyReport {
     patterns: inputs.patterns.map((p) => p.finding),
     tickets: { counts: countTickets(inputs.tickets), records: inputs.tickets },
     figures: inputs.metrics
-      ? summarizeFigures(inputs.metrics, inputs.flaggedFigures ?? flagFigures(inputs.metrics, inputs.check.findings), inputs.figuresFile ?? 'figures.csv')
+      ? summarizeFigures(inputs.metrics, inputs.figureFlags ?? figureFlags(inputs.metrics, inputs.check.findings), inputs.figuresFile ?? 'figures.csv')
       : null,
     reconciliation: inputs.reconciliation ?? null,
     history: inputs.history,
@@ -90,16 +90,26 @@ function countTickets(records: readonly TicketRecord[]): TicketCounts {
   return { new: live('new'), open: live('open'), reopened: live('reopened'), resolved: records.filter((r) => r.state === 'resolved').length, acknowledged: records.filter((r) => r.silenced).length };
 }
 
-export function summarizeFigures(metrics: MetricsAnswer, figures: readonly FlaggedFigure[], fullFile: string): FigureSummary {
-  const needsPerson = (f: FlaggedFigure) => f.value === null || f.flagged_by.length > 0;
+export function summarizeFigures(metrics: MetricsAnswer, flagged: FigureFlags, fullFile: string): FigureSummary {
+  const { figures, flags } = flagged;
   const complete = figures.length <= FIGURES_SHOWN_AT_MOST;
-  const shown = complete ? figures : figures.filter(needsPerson).slice(0, FIGURES_SHOWN_AT_MOST);
+  // Counted and picked in one pass; a flagged figure made only for those shown.
+  let notComputable = 0;
+  let flaggedCount = 0;
+  const shown: FlaggedFigure[] = [];
+  for (let index = 0; index < figures.length; index++) {
+    const missing = figures[index].value === null;
+    const hasFlags = flags[index].length > 0;
+    if (missing) notComputable++;
+    if (hasFlags) flaggedCount++;
+    if (shown.length < FIGURES_SHOWN_AT_MOST && (complete || missing || hasFlags)) shown.push(flaggedFigure(flagged, index));
+  }
   return {
     as_of: metrics.as_of,
     methodology: metrics.methodology,
-    computed: figures.filter((f) => f.value !== null).length,
-    not_computable: figures.filter((f) => f.value === null).length,
-    flagged: figures.filter((f) => f.flagged_by.length > 0).length,
+    computed: figures.length - notComputable,
+    not_computable: notComputable,
+    flagged: flaggedCount,
     shown,
     complete,
     full_file: fullFile,

@@ -1,6 +1,7 @@
 import { needingALook } from './reconcile-rows.js';
 import { SEVERITIES } from '../../findings.js';
-import { csvLine, markdownText } from '../safe-text.js';
+import { csvCell, csvLine, markdownText } from '../safe-text.js';
+import { linesInPieces } from '../text-pieces.js';
 import { cellText } from '../view.js';
 import { figureGrid, figureNote, findingsByCheck, headline, ticketDates, ticketsNeedingPerson, type DailyReport } from './daily-report.js';
 
@@ -32,7 +33,7 @@ export function renderDailyMarkdown(report: DailyReport): string {
   lines.push('', `## Findings by check and severity (${report.findings.length})`, '', ...mdTable(['check', ...SEVERITIES, 'total'], findingsByCheck(report.findings).map(({ check, counts, total }) => [check, ...SEVERITIES.map((s) => counts[s] || ''), total])));
   const rec = report.reconciliation;
   if (rec) {
-    const off = needingALook(rec.results ?? []).slice(0, ROWS_SHOWN);
+    const off = needingALook(rec.results ?? [], ROWS_SHOWN);
     lines.push('', '## Reconciliation with the vendor', '', ...mdTable(['series', 'window', 'metric', 'status', 'vendor', 'computed', 'tolerance', 'explanation or reason'], off.map((r) => [r.series_id, r.window, r.metric, r.status, r.vendor, r.computed, r.tolerance, r.status === 'not_computable' ? r.reason : (r.explanation_text ?? (r.explanations ?? []).map((x) => JSON.stringify(x.changes ?? {})).join('; '))])));
     for (const v of rec.vendor_explanations ?? []) lines.push(`- ${md(v.vendor ?? 'vendor')}: ${md(v.message ?? v.explanation ?? JSON.stringify(v.changes ?? {}))}`);
   }
@@ -50,14 +51,25 @@ export const DAILY_CSV_COLUMNS = ['section', 'state', 'severity', 'check', 'seri
 
 /** One long table: tickets, patterns, findings, figures that need a person, reconciliation results. */
 export function renderDailyCsv(report: DailyReport): string {
-  const lines = [csvLine(DAILY_CSV_COLUMNS)];
-  for (const r of report.tickets.records) lines.push(csvLine(['ticket', r.silenced ? 'acknowledged' : r.state, r.severity, r.check, r.series_ids.join(' '), r.start, r.end, r.title, r.action, null, r.key]));
-  for (const p of report.patterns) lines.push(csvLine(['pattern', null, p.severity, p.check, null, p.start, p.end, p.message, ((p.evidence.series_ids as string[]) ?? []).join(' '), null, p.key]));
-  for (const f of report.findings) lines.push(csvLine(['finding', null, f.severity, f.check, f.series_id, f.start, f.end, f.message, JSON.stringify(f.evidence), null, f.key]));
+  return [...dailyCsvLines(report)].join('\n') + '\n';
+}
+
+/** The same text as `renderDailyCsv`, in pieces for a file. */
+export function dailyCsvInPieces(report: DailyReport): Iterable<string> {
+  return linesInPieces(dailyCsvLines(report));
+}
+
+function* dailyCsvLines(report: DailyReport): Generator<string> {
+  yield csvLine(DAILY_CSV_COLUMNS);
+  for (const r of report.tickets.records) yield csvLine(['ticket', r.silenced ? 'acknowledged' : r.state, r.severity, r.check, r.series_ids.join(' '), r.start, r.end, r.title, r.action, null, r.key]);
+  for (const p of report.patterns) yield csvLine(['pattern', null, p.severity, p.check, null, p.start, p.end, p.message, ((p.evidence.series_ids as string[]) ?? []).join(' '), null, p.key]);
+  for (const f of report.findings) yield csvLine(['finding', null, f.severity, f.check, f.series_id, f.start, f.end, f.message, JSON.stringify(f.evidence), null, f.key]);
   for (const x of report.figures?.shown ?? []) {
     if (x.value !== null && x.flagged_by.length === 0) continue;
-    lines.push(csvLine(['figure', x.value === null ? 'not_computable' : 'flagged', null, x.metric, x.series_id, null, null, x.window, figureNote(x), x.value, null]));
+    yield csvLine(['figure', x.value === null ? 'not_computable' : 'flagged', null, x.metric, x.series_id, null, null, x.window, figureNote(x), x.value, null]);
   }
-  for (const r of report.reconciliation?.results ?? []) lines.push(csvLine(['reconciliation', r.status, null, r.metric ?? null, r.series_id, null, null, r.window ?? null, r.reason ?? null, r.vendor ?? null, null]));
-  return lines.join('\n') + '\n';
+  // One line per vendor figure (360,000 at 10,000 series): csvLine's cells without an array per line.
+  for (const r of report.reconciliation?.results ?? []) {
+    yield `reconciliation,${csvCell(r.status)},,${csvCell(r.metric ?? null)},${csvCell(r.series_id)},,,${csvCell(r.window ?? null)},${csvCell(r.reason ?? null)},${csvCell(r.vendor ?? null)},`;
+  }
 }

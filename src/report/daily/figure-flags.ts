@@ -14,13 +14,37 @@ export interface FlaggedFigure extends MetricRow {
   readonly flagged_by: readonly string[];
 }
 
-export function flagFigures(metrics: MetricsAnswer, findings: readonly Finding[]): FlaggedFigure[] {
+/**
+ * The metrics' figures and, index for index, their flags: what `flagFigures` gives without an
+ * object per figure. At 10,000 series there are 360,000 figures, and only figures.csv reads them
+ * all; the day's report shows at most a few hundred.
+ */
+export interface FigureFlags {
+  readonly figures: readonly MetricRow[];
+  /** The `flagged_by` of each figure. */
+  readonly flags: ReadonlyArray<readonly string[]>;
+}
+
+export function figureFlags(metrics: MetricsAnswer, findings: readonly Finding[]): FigureFlags {
   const marked = markSuspectFigures(metrics, findings, []).metrics;
-  return metrics.metrics.map((figure, index) => {
+  const flags = metrics.metrics.map((figure, index) => {
     const own = figure.suspect_data;
     const more = marked[index].suspect_data;
-    // Most figures have no flag: no sets built for them.
-    const flagged_by = own === undefined && more === undefined ? [] : [...new Set([...(own ?? []), ...(more ?? [])])];
-    return { ...figure, flagged_by };
+    // Most figures have no flag: no sets built for them, and one shared empty list.
+    return own === undefined && more === undefined ? NO_FLAGS : [...new Set([...(own ?? []), ...(more ?? [])])];
   });
+  return { figures: metrics.metrics, flags };
+}
+
+const NO_FLAGS: readonly string[] = Object.freeze([]);
+
+/** Figure `index` with its flags: the figure's keys in their order, then `flagged_by`. */
+export function flaggedFigure(flagged: FigureFlags, index: number): FlaggedFigure {
+  return { ...flagged.figures[index], flagged_by: flagged.flags[index] };
+}
+
+/** Every figure with its flags. */
+export function flagFigures(metrics: MetricsAnswer, findings: readonly Finding[]): FlaggedFigure[] {
+  const flagged = figureFlags(metrics, findings);
+  return flagged.figures.map((_, index) => flaggedFigure(flagged, index));
 }

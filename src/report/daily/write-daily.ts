@@ -1,11 +1,12 @@
 import { join } from 'node:path';
 import { jsonPieces } from '../json-pieces.js';
 import { withFinalNewline } from '../render.js';
-import { csvLine } from '../safe-text.js';
+import { csvCell, csvLine } from '../safe-text.js';
+import { linesInPieces } from '../text-pieces.js';
 import { ticketsToCsv, ticketsToJsonLines } from '../../tickets/export.js';
-import type { FlaggedFigure } from './figure-flags.js';
+import type { FigureFlags } from './figure-flags.js';
 import { renderDailyHtml } from './daily-html.js';
-import { renderDailyCsv, renderDailyMarkdown } from './daily-text.js';
+import { dailyCsvInPieces, renderDailyMarkdown } from './daily-text.js';
 import type { DailyReport } from './daily-report.js';
 
 /** Names of the day's files in the output directory. */
@@ -23,11 +24,11 @@ export const DAILY_FILES = {
  * The day's files, by name, each made only when its maker is called, so the caller can write one
  * and let it go before making the next (at 10,000 series `report.json` alone is about 77 MB).
  */
-export function dailyFiles(report: DailyReport, flaggedFigures: readonly FlaggedFigure[] | null): Record<string, () => string | Iterable<string>> {
+export function dailyFiles(report: DailyReport, flaggedFigures: FigureFlags | null): Record<string, () => string | Iterable<string>> {
   const files: Record<string, () => string | Iterable<string>> = {
     [DAILY_FILES.html]: () => renderDailyHtml(report),
     [DAILY_FILES.markdown]: () => renderDailyMarkdown(report),
-    [DAILY_FILES.csv]: () => renderDailyCsv(report),
+    [DAILY_FILES.csv]: () => dailyCsvInPieces(report),
     [DAILY_FILES.json]: () => withFinalNewline(jsonPieces(report, 1)),
     [DAILY_FILES.ticketsJsonLines]: () => ticketsToJsonLines(report.tickets.records),
     [DAILY_FILES.ticketsCsv]: () => ticketsToCsv(report.tickets.records),
@@ -36,13 +37,19 @@ export function dailyFiles(report: DailyReport, flaggedFigures: readonly Flagged
   return files;
 }
 
-/** Every figure, flat, with the flag of an error-level finding in its window: the file the report links. */
-export function figuresCsv(flaggedFigures: readonly FlaggedFigure[]): string {
-  const lines = [csvLine(['series_id', 'window', 'metric', 'value', 'observations', 'reason', 'flagged_by'])];
-  for (const f of flaggedFigures) {
-    lines.push(csvLine([f.series_id, f.window, f.metric, f.value, f.observations, f.reason ?? null, f.flagged_by.join(' ')]));
+/** Every figure, flat, with the flag of an error-level finding in its window: the file the report links, in pieces. */
+export function figuresCsv(flaggedFigures: FigureFlags): Iterable<string> {
+  return linesInPieces(figuresCsvLines(flaggedFigures));
+}
+
+function* figuresCsvLines({ figures, flags }: FigureFlags): Generator<string> {
+  yield csvLine(['series_id', 'window', 'metric', 'value', 'observations', 'reason', 'flagged_by']);
+  for (let index = 0; index < figures.length; index++) {
+    const f = figures[index];
+    const flagged_by = flags[index];
+    // csvLine's cells, without an array per line.
+    yield `${csvCell(f.series_id)},${csvCell(f.window)},${csvCell(f.metric)},${csvCell(f.value)},${csvCell(f.observations)},${csvCell(f.reason ?? null)},${csvCell(flagged_by.length === 0 ? '' : flagged_by.join(' '))}`;
   }
-  return lines.join('\n') + '\n';
 }
 
 export function dailyPaths(dir: string): Record<keyof typeof DAILY_FILES, string> {
