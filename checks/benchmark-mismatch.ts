@@ -4,7 +4,7 @@ import { isoWeekStart } from '../src/calendar/days.js';
 import { seriesAt } from '../src/series/frame.js';
 import { movesOf } from '../src/checks/move-analysis.js';
 import { GROSS_Z, type ResidualMoves } from '../src/checks/residual-moves.js';
-import { FrameTables, indexInFrame, searchTable, spanLogMove, type DayTable } from '../src/checks/series-tables.js';
+import { FrameTables, indexInFrame, searchTable, spanLogMove, spansMoves, type DayTable } from '../src/checks/series-tables.js';
 import { isoDate, makeFinding, round } from '../src/checks/support.js';
 
 interface MismatchParams {
@@ -230,10 +230,17 @@ function weeklyReturns(series: SeriesSlice, returns: ResidualMoves): Week[] {
  * benchmark prices exactly remain). One pass from the end with running sums.
  */
 function suffixFits(weeks: Week[], benchmark: Priced, minWeeks: number): Float64Array {
+  const moves = new Float64Array(weeks.length);
+  for (let i = 0; i < weeks.length; i++) moves[i] = weekMove(weeks[i], benchmark);
+  return suffixFitsOf(weeks, moves, minWeeks);
+}
+
+/** `suffixFits` with the benchmark's move over each week given: `moves[i]` over week i (NaN when it has not both dates). */
+function suffixFitsOf(weeks: Week[], moves: Float64Array, minWeeks: number): Float64Array {
   const fits = new Float64Array(weeks.length).fill(NaN);
   let n = 0, sx = 0, sy = 0, sxx = 0, syy = 0, sxy = 0;
   for (let i = weeks.length - 1; i >= 0; i--) {
-    const y = weekMove(weeks[i], benchmark);
+    const y = moves[i];
     if (Number.isFinite(y)) {
       const x = weeks[i].fund;
       n++;
@@ -252,12 +259,20 @@ function suffixFits(weeks: Week[], benchmark: Priced, minWeeks: number): Float64
   return fits;
 }
 
-/** Every other benchmark's R² per start (see `suffixFits`). */
+/**
+ * Every other benchmark's R² per start (see `suffixFits`). The benchmarks' moves over each week
+ * come from the tables' rows (`spansMoves`): funds of one calendar share their weeks, so each
+ * week's moves of every benchmark are computed once, not once per fund and benchmark.
+ */
 function alternativeFits(weeks: Week[], tables: FrameTables, assignedId: string, minWeeks: number): Alternative[] {
   const benchmarks = tables.frame;
+  const rows = weeks.map((week) => spansMoves(tables, week.start, week.end));
+  const moves = new Float64Array(weeks.length);
   const others: Alternative[] = [];
-  for (let i = 0; i < benchmarks.ids.length; i++) {
-    if (benchmarks.ids[i] !== assignedId) others.push({ id: benchmarks.ids[i], index: i, fits: suffixFits(weeks, pricedAt(tables, i), minWeeks) });
+  for (let b = 0; b < benchmarks.ids.length; b++) {
+    if (benchmarks.ids[b] === assignedId) continue;
+    for (let i = 0; i < weeks.length; i++) moves[i] = rows[i][b];
+    others.push({ id: benchmarks.ids[b], index: b, fits: suffixFitsOf(weeks, moves, minWeeks) });
   }
   return others;
 }

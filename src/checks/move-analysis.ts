@@ -8,7 +8,7 @@
  */
 import type { SeriesSlice } from '../series/frame.js';
 import type { SeriesContext } from './check.js';
-import { residualMoves, type ResidualMoves } from './residual-moves.js';
+import { residualMoves, type MoveScratch, type ResidualMoves } from './residual-moves.js';
 import { benchmarkStepMoves } from './series-tables.js';
 import { findShifts, type Shift, type ShiftParams } from '../../checks/date-shift.js';
 import type { SplitParams } from '../../checks/split-like-jump.js';
@@ -35,9 +35,13 @@ export interface ClaimingParams {
   readonly spike_reversal?: SpikeParams;
 }
 
-/** Builds the series' analysis: one model, and the spans and parameters that claim its steps. */
-export function analyseMoves(series: SeriesSlice, context: SeriesContext, claiming: ClaimingParams): MoveAnalysis {
-  const model = residualMoves(series, context);
+/**
+ * Builds the series' analysis: one model, and the spans and parameters that claim its steps.
+ * With `scratch`, the model's arrays live in it and are valid only until the next series'
+ * analysis with the same scratch (see `MoveScratch`).
+ */
+export function analyseMoves(series: SeriesSlice, context: SeriesContext, claiming: ClaimingParams, scratch?: MoveScratch): MoveAnalysis {
+  const model = residualMoves(series, context, scratch);
   const shiftParams = claiming.date_shift;
   const benchmark = context.benchmark;
   const found = shiftParams && benchmark ? findShifts(series, model, benchmark, shiftParams, benchmarkStepMoves(context, benchmark)) : [];

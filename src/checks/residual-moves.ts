@@ -67,9 +67,66 @@ export interface TopMagnitudes {
 /** Steps whose robust z exceeds this are gross errors, left out of every fitted statistic. */
 export const GROSS_Z = 8;
 
-/** The residual model of the series' moves, built from scratch (the runner calls it once per series). */
-export function residualMoves(series: SeriesSlice, context: SeriesContext): ResidualMoves {
-  return computeMoves(series, context);
+/**
+ * The residual model of the series' moves, built from scratch (the runner calls it once per series).
+ * With `scratch`, the model's arrays are views of the scratch's buffers: valid only until the
+ * next model built with the same scratch (see `MoveScratch`). Without it, fresh arrays.
+ */
+export function residualMoves(series: SeriesSlice, context: SeriesContext, scratch?: MoveScratch): ResidualMoves {
+  return computeMoves(series, context, scratch);
+}
+
+/**
+ * Buffers for the arrays of one series' model at a time, reused from series to series instead of
+ * ten fresh typed arrays per series (each zeroed, tracked and swept by the garbage collector).
+ * The series runner owns one and builds each series' model in it; the model never outlives its
+ * series there, and nothing a check returns keeps a reference to the model's arrays. Grown when a
+ * longer series comes.
+ */
+export class MoveScratch {
+  private capacity = 0;
+  private ints = new Int32Array(0);
+  private floats = new Float64Array(0);
+
+  /** The model's arrays of `count` elements each, as views of the buffers; contents left from earlier series. */
+  take(count: number): MoveArrays {
+    if (this.capacity < count) {
+      this.capacity = Math.max(count, 2 * this.capacity);
+      this.ints = new Int32Array(4 * this.capacity);
+      this.floats = new Float64Array(6 * this.capacity);
+    }
+    const int = (i: number) => this.ints.subarray(i * this.capacity, i * this.capacity + count);
+    const float = (i: number) => this.floats.subarray(i * this.capacity, i * this.capacity + count);
+    return { from: int(0), to: int(1), benchFrom: int(2), benchTo: int(3), raw: float(0), fund: float(1), bench: float(2), span: float(3), residual: float(4), z: float(5) };
+  }
+}
+
+interface MoveArrays {
+  from: Int32Array;
+  to: Int32Array;
+  benchFrom: Int32Array;
+  benchTo: Int32Array;
+  raw: Float64Array;
+  fund: Float64Array;
+  bench: Float64Array;
+  span: Float64Array;
+  residual: Float64Array;
+  z: Float64Array;
+}
+
+function freshArrays(count: number): MoveArrays {
+  return {
+    from: new Int32Array(count),
+    to: new Int32Array(count),
+    benchFrom: new Int32Array(count),
+    benchTo: new Int32Array(count),
+    raw: new Float64Array(count),
+    fund: new Float64Array(count),
+    bench: new Float64Array(count),
+    span: new Float64Array(count),
+    residual: new Float64Array(count),
+    z: new Float64Array(count),
+  };
 }
 
 function anchorRows(series: SeriesSlice, asOf: number): number[] {
@@ -87,17 +144,14 @@ function anchorRows(series: SeriesSlice, asOf: number): number[] {
   return anchors;
 }
 
-function computeMoves(series: SeriesSlice, context: SeriesContext): ResidualMoves {
+function computeMoves(series: SeriesSlice, context: SeriesContext, scratch: MoveScratch | undefined): ResidualMoves {
   const anchors = anchorRows(series, context.asOf);
   const count = Math.max(0, anchors.length - 1);
-  const from = new Int32Array(count);
-  const to = new Int32Array(count);
-  const raw = new Float64Array(count);
-  const fund = new Float64Array(count);
-  const bench = new Float64Array(count).fill(NaN);
-  const benchFrom = new Int32Array(count).fill(-1);
-  const benchTo = new Int32Array(count).fill(-1);
-  const span = new Float64Array(count);
+  const { from, to, raw, fund, bench, benchFrom, benchTo, span, residual, z } = scratch ? scratch.take(count) : freshArrays(count);
+  // Every element of from, to, raw, fund, span, residual and z is written below; these three are filled first.
+  bench.fill(NaN);
+  benchFrom.fill(-1);
+  benchTo.fill(-1);
   const calendar = calendarOf(context);
   const benchmark = context.benchmark;
   const benchPositions = benchmark ? positionsInBenchmark(series, anchors, benchmark) : undefined;
@@ -132,8 +186,6 @@ function computeMoves(series: SeriesSlice, context: SeriesContext): ResidualMove
   // prices every step (as for most funds) leaves it unread, so it is not made.
   const alone = hasBenchmark && pricesEveryStep(bench) ? undefined : fitAlone(fund, span);
   const fit = hasBenchmark || alone === undefined ? fitAgainstBenchmark(fund, bench, span) : alone;
-  const residual = new Float64Array(count);
-  const z = new Float64Array(count);
   for (let k = 0; k < count; k++) {
     // A step the benchmark cannot price is judged against the series' own typical move.
     const own = !hasBenchmark || !Number.isFinite(bench[k]);

@@ -11,6 +11,7 @@ import type { SeriesCheck, SeriesContext } from './check.js';
 import { analyseMoves, type ClaimingParams } from './move-analysis.js';
 import { CHECKS } from './registry.js';
 import { FrameTables } from './series-tables.js';
+import { MoveScratch } from './residual-moves.js';
 import type { CheckInput } from './run.js';
 import type { ResolvedCheck, SettingsResolver } from './settings-resolver.js';
 
@@ -32,6 +33,8 @@ export function seriesChecker(input: CheckInput, resolver: SettingsResolver, fee
   const masterById = new Map((input.master ?? []).map((record) => [record.series_id, record]));
   const actionsById = groupActions(input.actions ?? []);
   const benchmarkTables = input.benchmarks && new FrameTables(input.benchmarks);
+  // Each series' model is built in these buffers: it is read only while its series' checks run.
+  const scratch = new MoveScratch();
 
   return (first, end) => {
     const findings: Finding[] = [];
@@ -51,7 +54,7 @@ export function seriesChecker(input: CheckInput, resolver: SettingsResolver, fee
       };
       const resolved = seriesChecks.map((check) => resolver.resolve(check, master?.category, series.id));
       const readsMoves = seriesChecks.some((check, c) => check.readsMoves && resolved[c].enabled);
-      const context = readsMoves ? { ...base, moves: analyseMoves(series, base, claimingParams(seriesChecks, resolved)) } : base;
+      const context = readsMoves ? { ...base, moves: analyseMoves(series, base, claimingParams(seriesChecks, resolved), scratch) } : base;
       seriesChecks.forEach((check, c) => {
         if (resolved[c].enabled) findings.push(...check.run(series, context, resolved[c].params));
       });

@@ -33,6 +33,8 @@ interface SpanMoves {
 /** The tables of one frame's series, built on first use (frames never change once built). */
 export class FrameTables {
   private readonly bySeries: Array<Tables | undefined>;
+  /** `spansMoves` rows by span key (see `spanKey`). */
+  private readonly spanRows = new Map<number, Float64Array>();
 
   constructor(readonly frame: SeriesFrame) {
     this.bySeries = new Array<Tables | undefined>(frame.ids.length);
@@ -59,6 +61,30 @@ export class FrameTables {
     return tables.moves;
   }
 
+  /** The moves of every series over days `start` to `end` (see `spansMoves`). */
+  spanRow(start: number, end: number): Float64Array {
+    const key = spanKey(start, end);
+    let row = key === undefined ? undefined : this.spanRows.get(key);
+    if (!row) {
+      row = this.computeSpanRow(start, end);
+      if (key !== undefined) this.spanRows.set(key, row);
+    }
+    return row;
+  }
+
+  private computeSpanRow(start: number, end: number): Float64Array {
+    const { ids, offsets, values } = this.frame;
+    const row = new Float64Array(ids.length);
+    for (let s = 0; s < ids.length; s++) {
+      const days = this.dayTable(s);
+      const p = days.at(start);
+      const q = days.at(end);
+      const first = offsets[s];
+      row[s] = p >= 0 && q > p && values[first + p] > 0 && values[first + q] > 0 ? Math.log(values[first + q] / values[first + p]) : NaN;
+    }
+    return row;
+  }
+
   /** The remembered span moves of series `index` (see `spanLogMove`). */
   spanMoves(index: number): SpanMoves {
     const tables = (this.bySeries[index] ??= {});
@@ -68,6 +94,26 @@ export class FrameTables {
     }
     return tables.spans;
   }
+}
+
+/**
+ * The key of the span from day `start` to day `end` for `spansMoves`' rows: a small integer for
+ * spans of under 64 days ending before day 2^24 (every ordinary week), undefined otherwise.
+ */
+function spanKey(start: number, end: number): number | undefined {
+  const length = end - start;
+  return length >= 0 && length < 64 && end >= 0 && end < 1 << 24 ? end * 64 + length : undefined;
+}
+
+/**
+ * The log move of every series of the frame over exactly the days `start` to `end`:
+ * `moves[s]` = ln(values[q] / values[p]) of series `s`, computed as that very expression, where
+ * `p` and `q` are its first rows on those two days, both levels positive and q > p; NaN when it
+ * lacks either day. Funds of one calendar ask for the same weeks: the row is remembered per span
+ * (spans of 64 days or more are computed afresh each time). The caller must not change it.
+ */
+export function spansMoves(tables: FrameTables, start: number, end: number): Float64Array {
+  return tables.spanRow(start, end);
 }
 
 /**
