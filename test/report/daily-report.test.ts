@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import type { Finding } from '../../src/findings.js';
 import type { MetricRow, MetricsAnswer } from '../../src/metrics/compute.js';
 import { DEFAULT_METHODOLOGY } from '../../src/metrics/methodology.js';
 import { checkAnswer } from '../../src/report/check-answer.js';
@@ -7,17 +6,9 @@ import { buildDailyReport, renderDailyHtml, renderDailyMarkdown, renderDailyTerm
 import { flagFigures } from '../../src/report/daily/figure-flags.js';
 import { progressLine } from '../../src/cli/progress.js';
 import { CAUTION } from '../../src/report/view.js';
+import { spikeFinding } from './findings.js';
 
-const finding = (severity: Finding['severity'], start: string, series = 'S1'): Finding => ({
-  check: 'spike_reversal',
-  severity,
-  series_id: series,
-  start,
-  end: start,
-  message: 'm',
-  evidence: {},
-  key: `spike_reversal|${series}|${start}`,
-});
+const finding = spikeFinding;
 const figure = (window: string, metric: MetricRow['metric'] = 'beta', series = 'S1', value: number | null = 0.9): MetricRow => ({
   series_id: series,
   window,

@@ -12,6 +12,7 @@ import { needingALook } from '../../src/report/daily/reconcile-rows.js';
 import { figuresCsv } from '../../src/report/daily/write-daily.js';
 import { csvCell, csvLine } from '../../src/report/safe-text.js';
 import { linesInPieces } from '../../src/report/text-pieces.js';
+import { spikeFinding } from './findings.js';
 import type { ReconciliationResultLike } from '../../src/tickets/ticket.js';
 
 // Each shortcut of the reports against the plain way it replaced, written out here.
@@ -80,16 +81,7 @@ describe('report shortcuts give what the plain code gave', () => {
     severity: fc.constantFrom<Finding['severity']>('warning', 'error', 'critical'),
     start: fc.constantFrom('2021-03-02', '2024-06-03', '2026-03-02'),
   });
-  const toFinding = ({ series, severity, start }: { series: string; severity: Finding['severity']; start: string }): Finding => ({
-    check: 'spike_reversal',
-    severity,
-    series_id: series,
-    start,
-    end: start,
-    message: 'm',
-    evidence: {},
-    key: `spike_reversal|${series}|${start}`,
-  });
+  const toFinding = ({ series, severity, start }: { series: string; severity: Finding['severity']; start: string }): Finding => spikeFinding(severity, start, series);
   const answerOf = (metrics: MetricRow[]): MetricsAnswer => ({ as_of: '2026-11-30', methodology: DEFAULT_METHODOLOGY, metrics });
 
   it('figures.csv from the flags is the file of every flagged figure, line by line', () => {

@@ -9,6 +9,7 @@ import { previousNav, previousNavInBackground, readStoredNavFrame } from '../../
 import { readManifest, writeSnapshot, type SnapshotInput } from '../../src/store/index.js';
 import { tableFromRows } from '../ingest-formats/tables.js';
 import type { SeriesFrame } from '../../src/series/frame.js';
+import { plainFrame } from './frames.js';
 
 let work: string;
 
@@ -42,13 +43,6 @@ function decodedFrame(dir: string): SeriesFrame {
   return toSeriesFrame(arrowIpcToCanonical('nav', readFileSync(join(dir, 'nav.arrow'))), 'nav');
 }
 
-const plain = (frame: SeriesFrame) => ({
-  ids: [...frame.ids],
-  offsets: [...frame.offsets],
-  dates: [...frame.dates],
-  values: [...frame.values],
-  lines: [...frame.lines],
-});
 
 const navFile = (dir: string) => readManifest(dir).files.find((file) => file.kind === 'nav')!;
 
@@ -63,7 +57,7 @@ describe('the previous NAV frame read from the store', () => {
       fc.property(fc.array(row, { minLength: 1, maxLength: 60 }), fc.boolean(), (rows, sorted) => {
         const ordered = sorted ? [...rows].sort((a, b) => (a.series_id + a.date < b.series_id + b.date ? -1 : 1)) : rows;
         const dir = store('2026-03-02', ordered, join(work, `store-${Math.random().toString(36).slice(2)}`));
-        expect(plain(readStoredNavFrame(dir, navFile(dir)))).toEqual(plain(decodedFrame(dir)));
+        expect(plainFrame(readStoredNavFrame(dir, navFile(dir)))).toEqual(plainFrame(decodedFrame(dir)));
       }),
       { numRuns: 60 },
     );
@@ -76,7 +70,7 @@ describe('the previous NAV frame read from the store', () => {
       { series_id: 'NVA0002', date: '2026-03-02', nav: 50 },
     ]);
     const frame = readStoredNavFrame(dir, navFile(dir));
-    expect(plain(frame)).toEqual(plain(decodedFrame(dir)));
+    expect(plainFrame(frame)).toEqual(plainFrame(decodedFrame(dir)));
     expect(frame.values.buffer).toBeInstanceOf(SharedArrayBuffer);
     expect(frame.dates.buffer).toBeInstanceOf(SharedArrayBuffer);
     expect(frame.lines.buffer).toBeInstanceOf(SharedArrayBuffer);
@@ -117,7 +111,7 @@ describe('the previous NAVs read on a worker thread', () => {
     // minRows 0: a small store would otherwise be read on this thread.
     const onWorker = await previousNavInBackground(join(work, 'store'), 'f', '2026-03-04', 0);
     const here = previousNav(join(work, 'store'), 'f', '2026-03-04');
-    expect(plain(onWorker.nav!)).toEqual(plain(here.nav!));
+    expect(plainFrame(onWorker.nav!)).toEqual(plainFrame(here.nav!));
     expect([...onWorker.nav!.indexById]).toEqual([...here.nav!.indexById]);
     expect(onWorker.skipped).toEqual(here.skipped);
     expect(onWorker.asOf).toBe('2026-03-02');

@@ -12,7 +12,7 @@ import { sha256Bytes } from '../../src/store/durable-files.js';
 import { readStoredNavFrame } from '../../src/store/previous-nav.js';
 import { readNavFrameInPart } from '../../src/store/stored-nav-frame.js';
 import type { SnapshotFile } from '../../src/store/manifest.js';
-import type { SeriesFrame } from '../../src/series/frame.js';
+import { plainFrame } from './frames.js';
 import { tableFromRows } from '../ingest-formats/tables.js';
 
 let work: string;
@@ -61,14 +61,6 @@ function fileOf(bytes: Uint8Array): { dir: string; file: SnapshotFile } {
 /** The frame as the whole file decodes through the general Arrow reader: the oracle. */
 const decodedFrame = (bytes: Uint8Array) => toSeriesFrame(arrowIpcToCanonical('nav', bytes), 'nav');
 
-const plain = (frame: SeriesFrame) => ({
-  ids: [...frame.ids],
-  offsets: [...frame.offsets],
-  dates: [...frame.dates],
-  values: [...frame.values],
-  lines: [...frame.lines],
-  indexById: [...frame.indexById],
-});
 
 describe('the stored NAV table read in part', () => {
   it('gives the whole-file decode, in one record batch or several, for any table in stored order', () => {
@@ -80,10 +72,10 @@ describe('the stored NAV table read in part', () => {
         // A table without rows has no dictionary batch to read the ids from: it is read whole.
         if (rows.length > 0) {
           expect(inPart).not.toBeNull();
-          expect(plain(inPart!)).toEqual(plain(decodedFrame(bytes)));
+          expect(plainFrame(inPart!)).toEqual(plainFrame(decodedFrame(bytes)));
           expect(inPart!.values.buffer).toBeInstanceOf(SharedArrayBuffer);
         }
-        expect(plain(readStoredNavFrame(dir, file))).toEqual(plain(decodedFrame(bytes)));
+        expect(plainFrame(readStoredNavFrame(dir, file))).toEqual(plainFrame(decodedFrame(bytes)));
       }),
       { numRuns: 80 },
     );
@@ -95,8 +87,8 @@ describe('the stored NAV table read in part', () => {
         const bytes = arrowFileInBatches(tableFromRows('nav', ['series_id', 'date', 'nav'], sorted ? inStoredOrder(rows) : rows), cuts);
         const { dir, file } = fileOf(bytes);
         const inPart = readNavFrameInPart(join(dir, file.stored_file), file.stored_sha256);
-        if (inPart) expect(plain(inPart)).toEqual(plain(decodedFrame(bytes)));
-        expect(plain(readStoredNavFrame(dir, file))).toEqual(plain(decodedFrame(bytes)));
+        if (inPart) expect(plainFrame(inPart)).toEqual(plainFrame(decodedFrame(bytes)));
+        expect(plainFrame(readStoredNavFrame(dir, file))).toEqual(plainFrame(decodedFrame(bytes)));
       }),
       { numRuns: 60 },
     );
@@ -129,6 +121,6 @@ describe('the stored NAV table read in part', () => {
     const rows = inStoredOrder(fc.sample(row(false), { numRuns: 300, seed: 11 }));
     const { dir, file } = fileOf(canonicalToArrowIpc(tableFromRows('nav', ['series_id', 'date', 'nav'], rows)));
     const stored = readFileSync(join(dir, file.stored_file));
-    expect(plain(readNavFrameInPart(join(dir, file.stored_file), file.stored_sha256)!)).toEqual(plain(decodedFrame(stored)));
+    expect(plainFrame(readNavFrameInPart(join(dir, file.stored_file), file.stored_sha256)!)).toEqual(plainFrame(decodedFrame(stored)));
   });
 });
