@@ -282,7 +282,7 @@ function plainFixed(bytes: Uint8Array, element: SchemaElement, count: number): A
  * is 0 get `missing`. Every row of a column is written by exactly one page, so the columns need no
  * filling beforehand.
  */
-function spreadFloat64(target: Float64Array, rowStart: number, rows: number, defined: Uint8Array | null, source: Float64Array, missing: number): void {
+function spread<T extends Float64Array | Int32Array>(target: T, rowStart: number, rows: number, defined: Uint8Array | null, source: T, missing: number): void {
   if (defined === null) {
     target.set(source.subarray(0, rows), rowStart);
     return;
@@ -291,13 +291,15 @@ function spreadFloat64(target: Float64Array, rowStart: number, rows: number, def
   for (let i = 0; i < rows; i++) target[rowStart + i] = defined[i] === 1 ? source[value++]! : missing;
 }
 
-function spreadInt32(target: Int32Array, rowStart: number, rows: number, defined: Uint8Array | null, source: Int32Array, missing: number): void {
-  if (defined === null) {
-    target.set(source.subarray(0, rows), rowStart);
-    return;
+/** The dictionary entries a page's indices name, into `looked`, each index checked against the dictionary. */
+function lookedUp<T extends Float64Array | Int32Array>(entries: T | null, indices: Int32Array, looked: T): T {
+  if (entries === null) throw new Error('dictionary-encoded page without a dictionary');
+  for (let i = 0; i < indices.length; i++) {
+    const entry = indices[i]!;
+    if (entry >= entries.length) throw new Error('dictionary index past its dictionary');
+    looked[i] = entries[entry]!;
   }
-  let value = 0;
-  for (let i = 0; i < rows; i++) target[rowStart + i] = defined[i] === 1 ? source[value++]! : missing;
+  return looked;
 }
 
 /** Numbers (INT32, INT64, FLOAT, DOUBLE) as float64; nulls are NaN, as hyparquet's nulls became. */
@@ -327,14 +329,11 @@ class NumberSink implements ValueSink {
       new Uint8Array(this.values.buffer, this.values.byteOffset + rowStart * 8, valueCount * 8).set(bytes.subarray(0, valueCount * 8));
       return;
     }
-    spreadFloat64(this.values, rowStart, rows, defined, asFloat64(plainFixed(bytes, this.element, valueCount)), NaN);
+    spread(this.values, rowStart, rows, defined, asFloat64(plainFixed(bytes, this.element, valueCount)), NaN);
   }
 
   indices(indices: Int32Array, rowStart: number, rows: number, defined: Uint8Array | null): void {
-    const entries = checkedEntries(this.entries, indices);
-    const looked = new Float64Array(indices.length);
-    for (let i = 0; i < indices.length; i++) looked[i] = entries[indices[i]!]!;
-    spreadFloat64(this.values, rowStart, rows, defined, looked, NaN);
+    spread(this.values, rowStart, rows, defined, lookedUp(this.entries, indices, new Float64Array(indices.length)), NaN);
   }
 
   finish(): SourceColumn {
@@ -373,27 +372,16 @@ class DaysSink implements ValueSink {
       new Uint8Array(this.days.buffer, this.days.byteOffset + rowStart * 4, valueCount * 4).set(bytes.subarray(0, valueCount * 4));
       return;
     }
-    spreadInt32(this.days, rowStart, rows, defined, plainFixed(bytes, DaysSink.ELEMENT, valueCount) as Int32Array, NULL_DATE);
+    spread(this.days, rowStart, rows, defined, plainFixed(bytes, DaysSink.ELEMENT, valueCount) as Int32Array, NULL_DATE);
   }
 
   indices(indices: Int32Array, rowStart: number, rows: number, defined: Uint8Array | null): void {
-    const entries = checkedEntries(this.entries, indices);
-    const looked = new Int32Array(indices.length);
-    for (let i = 0; i < indices.length; i++) looked[i] = entries[indices[i]!]!;
-    spreadInt32(this.days, rowStart, rows, defined, looked, NULL_DATE);
+    spread(this.days, rowStart, rows, defined, lookedUp(this.entries, indices, new Int32Array(indices.length)), NULL_DATE);
   }
 
   finish(): SourceColumn {
     return { form: 'days', days: this.days };
   }
-}
-
-function checkedEntries<T extends ArrayLike<unknown>>(entries: T | null, indices: Int32Array): T {
-  if (entries === null) throw new Error('dictionary-encoded page without a dictionary');
-  for (let i = 0; i < indices.length; i++) {
-    if (indices[i]! >= entries.length) throw new Error('dictionary index past its dictionary');
-  }
-  return entries;
 }
 
 const UTF8 = new TextDecoder();
@@ -432,10 +420,12 @@ class TextSink implements ValueSink {
   }
 
   indices(indices: Int32Array, rowStart: number, rows: number, defined: Uint8Array | null): void {
-    const entries = checkedEntries(this.entries, indices);
+    const entries = this.entries;
+    if (entries === null) throw new Error('dictionary-encoded page without a dictionary');
     const codeOfEntry = this.codeOfEntry;
     for (let i = 0; i < indices.length; i++) {
       const entry = indices[i]!;
+      if (entry >= entries.length) throw new Error('dictionary index past its dictionary');
       if (codeOfEntry[entry] === NOT_CODED) codeOfEntry[entry] = this.builder.codeFor(UTF8.decode(entries[entry]!));
     }
     const codes = this.builder.codes;
