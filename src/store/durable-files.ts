@@ -124,15 +124,19 @@ const HASH_CHUNK = 1 << 20;
 
 /** SHA-256 of a file as lowercase hex, read in chunks so large feeds are not held in memory. */
 export function sha256File(path: string): string {
-  const hash = createHash('sha256');
-  const buffer = Buffer.allocUnsafe(HASH_CHUNK);
   const fd = openSync(path, 'r');
   try {
-    let read: number;
-    while ((read = readSync(fd, buffer, 0, HASH_CHUNK, null)) > 0) hash.update(buffer.subarray(0, read));
+    return sha256OfOpenFile(fd, Buffer.allocUnsafe(HASH_CHUNK));
   } finally {
     closeSync(fd);
   }
+}
+
+/** SHA-256 of an open file from its first byte to its end, read through `buffer` (a caller's scratch). */
+export function sha256OfOpenFile(fd: number, buffer: Uint8Array): string {
+  const hash = createHash('sha256');
+  let read: number;
+  for (let at = 0; (read = readSync(fd, buffer, 0, buffer.length, at)) > 0; at += read) hash.update(buffer.subarray(0, read));
   return hash.digest('hex');
 }
 

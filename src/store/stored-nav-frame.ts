@@ -1,10 +1,10 @@
-import { createHash } from 'node:crypto';
 import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { DataType, DateUnit, Precision, type Field } from 'apache-arrow';
 import { Footer, type FileBlock } from 'apache-arrow/ipc/metadata/file';
 import { Message } from 'apache-arrow/ipc/metadata/message';
 import { sharedFloat64Array, sharedInt32Array } from '../ingest/shared-columns.js';
 import { frameOfRuns, rankOfEveryCode, type SeriesFrame } from '../series/frame.js';
+import { sha256OfOpenFile } from './durable-files.js';
 import { alteredStoredFile, unreadableStoredFile } from './snapshot-store.js';
 
 /**
@@ -34,7 +34,7 @@ export function readNavFrameInPart(path: string, sha256: string): SeriesFrame | 
     const size = fstatSync(fd).size;
     const scratch = new Uint8Array(CHUNK_BYTES);
     // The file is checked before its layout is parsed: damaged metadata could send a parser anywhere.
-    if (sha256Of(fd, size, scratch, path) !== sha256) throw alteredStoredFile(path);
+    if (sha256OfOpenFile(fd, scratch) !== sha256) throw alteredStoredFile(path);
     const layout = layoutOrNull(fd, size);
     if (!layout) return null;
     const columns: NavColumns = { dates: sharedInt32Array(layout.rows), values: sharedFloat64Array(layout.rows), lines: sharedInt32Array(layout.rows) };
@@ -228,16 +228,6 @@ function fill(fd: number, target: Uint8Array, position: number): number {
 }
 
 /** The SHA-256 (hex) of the whole file, read through `scratch`; a file that cannot be read is a damaged snapshot. */
-function sha256Of(fd: number, size: number, scratch: Uint8Array, path: string): string {
-  const hash = createHash('sha256');
-  for (let at = 0; at < size; at += scratch.length) {
-    const chunk = scratch.subarray(0, Math.min(scratch.length, size - at));
-    readFully(fd, chunk, at, path);
-    hash.update(chunk);
-  }
-  return hash.digest('hex');
-}
-
 /** The dates, values and lines of every range into their columns, and the codes through `scratch` into `runs`. */
 function readColumns(fd: number, layout: NavLayout, columns: NavColumns, runs: SeriesRuns, scratch: Uint8Array, path: string): void {
   for (const range of layout.ranges) {
