@@ -17,14 +17,19 @@ function naiveFrame(rows: ReadonlyArray<{ id: string; date: number; value: numbe
   return { ids, offsets, dates: order.map((row) => row.date), values: order.map((row) => row.value), lines: order.map((row) => row.line) };
 }
 
-function framed(rows: ReadonlyArray<{ id: string; date: number; value: number }>, dictionary: readonly string[]) {
-  const frame = buildSeriesFrame({
+/** The frame of `rows` in file order (line k + 2 for row k), their ids coded by `dictionary`. */
+function frameOfRows(rows: ReadonlyArray<{ id: string; date: number; value: number }>, dictionary: readonly string[]) {
+  return buildSeriesFrame({
     codes: Int32Array.from(rows, (row) => dictionary.indexOf(row.id)),
     dictionary,
     dates: Int32Array.from(rows, (row) => row.date),
     values: Float64Array.from(rows, (row) => row.value),
     lines: Int32Array.from(rows, (_, index) => index + 2),
   });
+}
+
+function framed(rows: ReadonlyArray<{ id: string; date: number; value: number }>, dictionary: readonly string[]) {
+  const frame = frameOfRows(rows, dictionary);
   return { ids: frame.ids, offsets: [...frame.offsets], dates: [...frame.dates], values: [...frame.values], lines: [...frame.lines] };
 }
 
@@ -79,13 +84,7 @@ describe('frames on shared memory', () => {
     fc.assert(
       fc.property(someRows, (rows) => {
         const dictionary = ['B2', 'A1', 'C3', 'A10', 'É1'];
-        const ordinary = buildSeriesFrame({
-          codes: Int32Array.from(rows, (row) => dictionary.indexOf(row.id)),
-          dictionary,
-          dates: Int32Array.from(rows, (row) => row.date),
-          values: Float64Array.from(rows, (row) => row.value),
-          lines: Int32Array.from(rows, (_, index) => index + 2),
-        });
+        const ordinary = frameOfRows(rows, dictionary);
         const shared = sharedFrame(ordinary);
         expect(isSharedFrame(shared)).toBe(true);
         expect(sharedFrame(shared)).toBe(shared);
