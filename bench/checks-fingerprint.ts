@@ -12,7 +12,7 @@
  * It also prints the checks' CPU seconds per input, on stderr, for a rough before/after.
  */
 import { createHash } from 'node:crypto';
-import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { generateUniverse } from '../fixtures/universe/generate.js';
@@ -52,16 +52,19 @@ async function report(name: string, input: () => CheckInput | Promise<CheckInput
 }
 
 async function demoInput(): Promise<CheckInput> {
-  // A fixed folder: the findings of unreadable rows name the file, and the hash must not move with it.
-  const dir = join(tmpdir(), 'navassay-fingerprint-demo');
-  mkdirSync(dir, { recursive: true });
+  // The findings of unreadable rows name the file, and the hash must not move with the folder:
+  // the files are read by relative names from inside a fresh folder, so two fingerprints can run
+  // at once and still print the same hashes.
+  const dir = mkdtempSync(join(tmpdir(), 'navassay-fingerprint-'));
+  const startedIn = process.cwd();
+  process.chdir(dir);
   try {
     for (const [file, text] of Object.entries(demoFiles())) {
       mkdirSync(dirname(join(dir, file)), { recursive: true });
       writeFileSync(join(dir, file), text);
     }
     const indexVendor = FeedProfileSchema.parse({ columns: { benchmark_id: 'Index Code', date: 'Value Date', level: 'Close' }, delimiter: ';', decimal: ',', date_format: 'day-first' });
-    const at = (file: string) => join(dir, file);
+    const at = (file: string) => file;
     const feed = await loadFeed(
       { nav: at('nav.csv'), benchmarks: at('benchmarks.csv'), master: at('master.csv'), rates: at('rates.csv'), holidays: at('holidays.csv'), actions: at('actions.csv'), vendor: at('vendor-figures.csv') },
       { profiles: { benchmarks: indexVendor } },
@@ -69,6 +72,7 @@ async function demoInput(): Promise<CheckInput> {
     const previous = (await loadFeed({ nav: at('nav-previous.csv') })).nav;
     return { ...feed, previous, asOf: DEMO_AS_OF };
   } finally {
+    process.chdir(startedIn);
     rmSync(dir, { recursive: true, force: true });
   }
 }
