@@ -69,7 +69,7 @@ const best = (values: number[]) => Math.min(...values);
 /** Where each stage that runs beside others is timed (bench/audit-child.ts). */
 const BESIDE: Record<string, string> = {
   figures: 'computed on the main thread while the check workers run, inside the checks row; the metrics row is their marks',
-  store: 'the snapshot written on its own thread from the end of the checks; the store row is the wait left after the tickets',
+  store: 'the snapshot written on its own thread from the end of the checks; the store row is the wait left after the reports',
 };
 
 console.log(`navassay audit bench: the whole daily audit in a fresh process per run, ${runs} run${runs === 1 ? '' : 's'} per size, warm page cache`);

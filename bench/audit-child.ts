@@ -20,7 +20,7 @@ import { checkStage } from '../src/job/stages/checks.js';
 import { computeFigures, markFigures } from '../src/job/stages/metrics.js';
 import { reconcileStage } from '../src/job/stages/reconcile.js';
 import { ticketsStage } from '../src/job/stages/tickets.js';
-import { snapshotStageInBackground } from '../src/job/stages/snapshot.js';
+import { startSnapshotInBackground } from '../src/job/stages/snapshot.js';
 import { parseAsOf } from '../src/cli/options.js';
 
 export interface ChildReport {
@@ -78,13 +78,15 @@ const check = await stage('checks', async () => {
   background.figures = Number(process.hrtime.bigint() - figuresStarted) / 1e9;
   return checking;
 });
-// Then the snapshot is written on its own thread to the end of the tickets stage; the 'store'
-// row is the wait that is left, `background.store` the whole write.
+// Then the snapshot is written on its own thread to the end of the reports; the 'store' row is
+// the wait that is left after them, `background.store` the whole write.
 const storeStarted = process.hrtime.bigint();
-const storing = snapshotStageInBackground(day, { store: config.store, feed: config.feed, previous: config.previous }).then((stored) => {
+const storing = startSnapshotInBackground(day, { store: config.store, feed: config.feed, previous: config.previous });
+const stored = storing.stored.then((snapshot) => {
   background.store = Number(process.hrtime.bigint() - storeStarted) / 1e9;
-  return stored;
+  return snapshot;
 });
+stored.catch(() => {});
 const metrics = await stage('metrics', () => markFigures(day, figures, check.findings));
 const reconciliation = await stage('reconcile', () =>
   reconcileStage(day, check.findings, { methodology: config.methodology, tolerances: config.reconcile.tolerances, through: asOf }),
@@ -92,10 +94,10 @@ const reconciliation = await stage('reconcile', () =>
 const tickets = await stage('tickets', () =>
   ticketsStage(day, check.findings, reconciliation, { store: config.store, feed: config.feed, acknowledgements: config.acknowledgements }),
 );
-const snapshot = await stage('store', () => storing);
 await stage('reports', () =>
-  answersStage(day, { feed: config.feed, check, metrics, reconciliation, tickets, notices: snapshot.notices }, config.output),
+  answersStage(day, { feed: config.feed, check, metrics, reconciliation, tickets, notices: storing.notices }, config.output),
 );
+await stage('store', () => stored);
 stages.total = Number(process.hrtime.bigint() - started) / 1e9;
 const whole = process.cpuUsage();
 cpu.total = (whole.user + whole.system) / 1e6;

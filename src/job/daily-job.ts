@@ -12,14 +12,14 @@ import { answersStage } from './stages/answers.js';
 import { checkStage } from './stages/checks.js';
 import { computeFigures, markFigures } from './stages/metrics.js';
 import { reconcileStage } from './stages/reconcile.js';
-import { snapshotStageInBackground } from './stages/snapshot.js';
+import { startSnapshotInBackground } from './stages/snapshot.js';
 import { ticketsStage, type TicketsStageResult } from './stages/tickets.js';
 
 /**
  * The daily job: load → checks → metrics → reconcile → tickets → snapshot → answers. Two stages
  * run beside others: the figures are computed on this thread while worker threads run the
- * checks, and the snapshot is written on a worker thread from the end of the checks to the
- * tickets. Each stage
+ * checks, and the snapshot is written on a worker thread from the end of the checks while this
+ * one reconciles, carries the tickets and writes the reports. Each stage
  * takes the day (and what earlier stages produced) and returns typed output; commands only
  * parse options, call the job, render and set the exit status.
  */
@@ -55,20 +55,24 @@ export async function runDailyJob(config: RunConfig, asOf: number, onStage: Stag
   // The figures need no finding (only their marks do): this thread computes them while the check workers run, then takes its share of the series checks (src/checks/parallel.ts).
   const figures = await beside(checking, () => computeFigures(day, figureRequest));
   const check = await checking;
-  // The snapshot is written on another thread while this one marks the figures, reconciles and carries the tickets.
-  const storing = snapshotStageInBackground(day, { store: config.store, feed: config.feed, previous: config.previous });
-  const { metrics, reconciliation, tickets } = await beside(storing, () => {
+  // The snapshot is written on another thread while this one marks the figures, reconciles,
+  // carries the tickets and writes the reports; its notices are known before it is written.
+  const storing = startSnapshotInBackground(day, { store: config.store, feed: config.feed, previous: config.previous });
+  const { metrics, reconciliation, tickets } = await beside(storing.stored, () => {
     const metrics = markFigures(day, figures, check.findings);
     if (day.feed.vendor) onStage(`reconciling ${day.feed.vendor.length} vendor figures …`);
     // A vendor figure dated after the day cannot be judged on the day's data: it waits for its own day.
     const reconciliation = reconcileStage(day, check.findings, { methodology: config.methodology, tolerances: config.reconcile.tolerances, through: asOf });
-    onStage('carrying the tickets and storing the snapshot …');
+    onStage('carrying the tickets …');
     const tickets = ticketsStage(day, check.findings, reconciliation, { store: config.store, feed: config.feed, acknowledgements: config.acknowledgements });
     return { metrics, reconciliation, tickets };
   });
-  const snapshot = await storing;
-  onStage('writing the reports …');
-  const answers = answersStage(day, { feed: config.feed, check, metrics, reconciliation, tickets, notices: snapshot.notices }, config.output);
+  onStage('writing the reports and storing the snapshot …');
+  // A snapshot that cannot be written still fails the run (exit 2), after the reports are on the disk.
+  const answers = await beside(storing.stored, () =>
+    answersStage(day, { feed: config.feed, check, metrics, reconciliation, tickets, notices: storing.notices }, config.output),
+  );
+  const snapshot = await storing.stored;
   return {
     config,
     day,

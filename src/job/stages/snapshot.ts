@@ -23,7 +23,7 @@ export interface StoredSnapshot {
  */
 export function snapshotStage(day: Day, place: SnapshotPlace): StoredSnapshot {
   const plan = planSnapshot(day, place);
-  return plan.kept ?? afterWrite(plan, place, writeSnapshot(place.store, plan.input));
+  return plan.kept ?? { ref: writeSnapshot(place.store, plan.input), notices: plan.notices };
 }
 
 /**
@@ -33,16 +33,32 @@ export function snapshotStage(day: Day, place: SnapshotPlace): StoredSnapshot {
  * `snapshotStage`.
  */
 export async function snapshotStageInBackground(day: Day, place: SnapshotPlace, options: BackgroundOptions = {}): Promise<StoredSnapshot> {
+  return startSnapshotInBackground(day, place, options).stored;
+}
+
+/** A snapshot being written on a worker thread, with what its notices say already known. */
+export interface SnapshotUnderWay {
+  /** The stage's notices, the same as `stored`'s: they depend on the store as found, not on the write. */
+  readonly notices: readonly string[];
+  /** Settles when the snapshot is on the disk (or kept), or fails with the store's error. */
+  readonly stored: Promise<StoredSnapshot>;
+}
+
+/**
+ * Starts the snapshot's write on a worker thread and answers at once with its notices, so the
+ * day's reports can be written while the snapshot is (src/job/daily-job.ts).
+ */
+export function startSnapshotInBackground(day: Day, place: SnapshotPlace, options: BackgroundOptions = {}): SnapshotUnderWay {
   const plan = planSnapshot(day, place);
-  return plan.kept ?? afterWrite(plan, place, await writeSnapshotInBackground(place.store, plan.input, options));
+  const stored = plan.kept ? Promise.resolve(plan.kept) : writeSnapshotInBackground(place.store, plan.input, options).then((ref) => ({ ref, notices: plan.notices }));
+  return { notices: plan.notices, stored };
 }
 
 interface SnapshotPlan {
-  readonly asOf: string;
   readonly input: SnapshotInput;
   /** The stored snapshot of the same files, kept as it is; null when today's must be written. */
   readonly kept: StoredSnapshot | null;
-  readonly replacing: SnapshotRef | undefined;
+  /** Everything the stage tells, decided before the write: writing today's snapshot changes none of it. */
   readonly notices: string[];
 }
 
@@ -55,17 +71,12 @@ function planSnapshot(day: Day, place: SnapshotPlace): SnapshotPlan {
   const input: SnapshotInput = { feed: place.feed, asOf, results: day.feed.results, sources: day.feed.sources };
   if (existing && sameSources(existing, day.feed.sources)) {
     notices.push(`the snapshot of ${asOf} stored at ${existing.manifest.created_at} holds the same files; it was kept.`);
-    return { asOf, input, kept: { ref: existing, notices }, replacing: undefined, notices };
+    return { input, kept: { ref: existing, notices }, notices };
   }
-  return { asOf, input, kept: null, replacing: existing, notices };
-}
-
-function afterWrite(plan: SnapshotPlan, place: SnapshotPlace, ref: SnapshotRef): StoredSnapshot {
-  const notices = [...plan.notices];
-  if (plan.replacing) notices.push(`the snapshot of ${plan.asOf} stored at ${plan.replacing.manifest.created_at} held other files; it was replaced by today's.`);
-  const later = listSnapshots(place.store, place.feed).filter((snapshot) => snapshot.asOf > plan.asOf).map((snapshot) => snapshot.asOf);
+  if (existing) notices.push(`the snapshot of ${asOf} stored at ${existing.manifest.created_at} held other files; it was replaced by today's.`);
+  const later = listSnapshots(place.store, place.feed).filter((snapshot) => snapshot.asOf > asOf).map((snapshot) => snapshot.asOf);
   if (later.length > 0) notices.push(`the store holds later snapshots (${later.join(', ')}); this run is a re-run of an earlier day.`);
-  return { ref, notices };
+  return { input, kept: null, notices };
 }
 
 /** When the configuration pins `previous:` while the store holds an earlier snapshot, which one was used. */
