@@ -13,12 +13,20 @@ const PSEUDO_FILE_SYSTEMS = ['/proc/', '/sys/', '/dev/'];
 
 /**
  * `shared` reads the bytes into shared memory (a SharedArrayBuffer), so a worker thread can look
- * at them without a copy (the Arrow watchdog, arrow-watchdog.ts).
+ * at them without a copy (the Arrow watchdog, arrow-watchdog.ts). `onRun`, given the file's size,
+ * may answer a function that is told each run of bytes as it lands, in order (the SHA-256 is then
+ * taken while the rest is read, read.ts); a run is never written again.
  */
-export function readInputFile(path: string, maxBytes: number, what = 'the file', shared = false): Buffer {
+export function readInputFile(
+  path: string,
+  maxBytes: number,
+  what = 'the file',
+  shared = false,
+  onRun?: (size: number) => ((run: Uint8Array) => void) | null,
+): Buffer {
   const { fd, size } = openInputFile(path, maxBytes, what);
   try {
-    return readAtMost(fd, path, what, maxBytes, size, shared ? sharedBuffer : Buffer.allocUnsafe);
+    return readAtMost(fd, path, what, maxBytes, size, shared ? sharedBuffer : Buffer.allocUnsafe, onRun?.(size) ?? null);
   } finally {
     closeSync(fd);
   }
@@ -94,7 +102,18 @@ export function tooLarge(path: string, what: string, maxBytes: number): InputErr
 }
 
 /** Reads up to `maxBytes`; one byte more means the file is over the limit, whatever its size said. */
-function readAtMost(fd: number, path: string, what: string, maxBytes: number, sizeHint: number, allocate: (size: number) => Buffer): Buffer {
+/** Bytes read per call when each run is told as it lands, so the hashing keeps pace with the read. */
+const RUN_BYTES = 8 << 20;
+
+function readAtMost(
+  fd: number,
+  path: string,
+  what: string,
+  maxBytes: number,
+  sizeHint: number,
+  allocate: (size: number) => Buffer,
+  told: ((run: Uint8Array) => void) | null,
+): Buffer {
   let buffer = allocate(Math.min(Math.max(sizeHint, 0) + 1, maxBytes + 1, 1 << 30));
   let filled = 0;
   for (;;) {
@@ -104,8 +123,11 @@ function readAtMost(fd: number, path: string, what: string, maxBytes: number, si
       buffer.copy(bigger, 0, 0, filled);
       buffer = bigger;
     }
-    const read = readSync(fd, buffer, filled, buffer.length - filled, null);
+    const wanted = told ? Math.min(RUN_BYTES, buffer.length - filled) : buffer.length - filled;
+    const read = readSync(fd, buffer, filled, wanted, null);
     if (read === 0) break;
+    // Bytes past the limit are never told: the read fails below instead.
+    if (told && filled + read <= maxBytes) told(buffer.subarray(filled, filled + read));
     filled += read;
   }
   if (filled > maxBytes) throw tooLarge(path, what, maxBytes);

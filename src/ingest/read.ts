@@ -44,28 +44,41 @@ export async function readSourceFile(
       throw asInputError(error, path, 'csv');
     }
   }
-  const bytes = readInputFile(path, limits.maxInputBytes, 'the file', formatOf(path) === 'arrow');
-  const hash = hashOfBytes(bytes);
+  const hash = new HashWhileReading(formatOf(path) === 'arrow');
   try {
+    const bytes = readInputFile(path, limits.maxInputBytes, 'the file', hash.shared, (size) => hash.runsOf(size));
     const result = await parseFeedBytes(bytes, path, kind, profile, limits);
-    return { result, sha256: hash.sha256() };
+    return { result, sha256: hash.sha256(bytes) };
   } finally {
     hash.stop();
   }
 }
 
 /**
- * The SHA-256 of a whole input. A large one already in shared memory (an Arrow file, read there
- * for the watchdog) is hashed on another thread while it is decoded and parsed; nothing writes
- * to those bytes, so the digest is of the very bytes parsed.
+ * The SHA-256 of a whole input. A large one read into shared memory (an Arrow file, read there
+ * for the watchdog) is hashed on another thread run by run as the read lands, and on while it is
+ * decoded and parsed; nothing writes to those bytes, so the digest is of the very bytes parsed.
+ * Any other is hashed here once it is read.
  */
-function hashOfBytes(bytes: Buffer): { sha256(): string; stop(): void } {
-  if (bytes.buffer instanceof SharedArrayBuffer && bytes.length >= BACKGROUND_HASH_BYTES) {
-    const hash = new BackgroundHash();
-    hash.add(bytes);
-    return hash;
+class HashWhileReading {
+  private background: BackgroundHash | null = null;
+
+  constructor(readonly shared: boolean) {}
+
+  /** Where each run of a file of `size` bytes goes as it lands, or null to hash it once read. */
+  runsOf(size: number): ((run: Uint8Array) => void) | null {
+    if (!this.shared || size < BACKGROUND_HASH_BYTES) return null;
+    const background = (this.background = new BackgroundHash());
+    return (run) => background.add(run);
   }
-  return { sha256: () => createHash('sha256').update(bytes).digest('hex'), stop: () => undefined };
+
+  sha256(bytes: Buffer): string {
+    return this.background ? this.background.sha256() : createHash('sha256').update(bytes).digest('hex');
+  }
+
+  stop(): void {
+    this.background?.stop();
+  }
 }
 
 /** Reads one canonical file in whatever format its extension names, within the limits. */

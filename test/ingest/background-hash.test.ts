@@ -5,7 +5,11 @@ import { join } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
 import { BackgroundHash } from '../../src/ingest/background-hash.js';
+import { DateDay, Dictionary, Float64, Int32, makeData, makeVector, Table, tableToIPC, Utf8, vectorFromArray } from 'apache-arrow';
 import { BACKGROUND_HASH_BYTES, FileWindow } from '../../src/ingest/csv-window.js';
+import { readInputFile } from '../../src/ingest/input-file.js';
+import { DEFAULT_PROFILE } from '../../src/ingest/profile.js';
+import { readSourceFile } from '../../src/ingest/read.js';
 import { runCli } from '../cli/run-cli.js';
 
 /**
@@ -72,6 +76,40 @@ describe('the SHA-256 taken on the hashing thread', () => {
     expect(answer.status).toBe(0);
     const manifest = JSON.parse(readFileSync(findManifest(store), 'utf8')) as { files: Array<{ kind: string; source_sha256: string }> };
     expect(manifest.files.find((file) => file.kind === 'nav')?.source_sha256).toBe(sha256Of(readFileSync(nav)));
+  });
+});
+
+describe('an input hashed while it is read', () => {
+  it('readInputFile tells every run of bytes as it lands, in order, and the runs make the file', () => {
+    for (const size of [0, 1, (8 << 20) - 1, (8 << 20) + 1, (20 << 20) + 5]) {
+      const bytes = Buffer.alloc(size);
+      for (let i = 0; i < size; i++) bytes[i] = (i * 7919 + 13) & 255;
+      const path = join(dir, `runs-${size}`);
+      writeFileSync(path, bytes);
+      const runs: Buffer[] = [];
+      const read = readInputFile(path, 1 << 30, 'the file', true, () => (run) => runs.push(Buffer.from(run)));
+      expect(read.buffer).toBeInstanceOf(SharedArrayBuffer);
+      expect(Buffer.concat(runs).equals(bytes), `size ${size}`).toBe(true);
+      expect(read.equals(bytes)).toBe(true);
+    }
+  });
+
+  it("gives an Arrow file above the hashing thread's threshold the SHA-256 createHash gives the file", async () => {
+    const rows = Math.ceil(BACKGROUND_HASH_BYTES / 16) + 1000; // 16 bytes a row: index, day, value
+    const indices = new Int32Array(rows).map((_, k) => Math.floor((k * 3) / rows));
+    const days = new Int32Array(rows).map((_, k) => 10_000 + (k % 5000));
+    const values = new Float64Array(rows).map((_, k) => 100 + (k % 977) / 8);
+    const table = new Table({
+      series_id: makeVector(makeData({ type: new Dictionary(new Utf8(), new Int32()), data: indices, dictionary: vectorFromArray(['FUND-A', 'FUND-B', 'FUND-C'], new Utf8()) })),
+      date: makeVector(makeData({ type: new DateDay(), data: days })),
+      nav: makeVector(makeData({ type: new Float64(), data: values })),
+    });
+    const path = join(dir, 'nav.arrow');
+    writeFileSync(path, tableToIPC(table, 'file'));
+    expect(readFileSync(path).length).toBeGreaterThan(BACKGROUND_HASH_BYTES);
+    const read = await readSourceFile(path, 'nav', DEFAULT_PROFILE);
+    expect(read.result.rows.accepted).toBe(rows);
+    expect(read.sha256).toBe(sha256Of(readFileSync(path)));
   });
 });
 
