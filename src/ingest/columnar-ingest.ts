@@ -281,19 +281,28 @@ function isMissing(column: Column, row: number): boolean {
 
 /** Calls `visit` for each row whose value is missing, with one tight loop per column type. */
 function forEachMissing(column: Column, visit: (row: number) => void): void {
+  // Each loop reads a local array: a property read per row of a column of any type costs more.
   switch (column.type) {
-    case 'date':
-      for (let row = 0; row < column.values.length; row++) if (column.values[row] === NULL_DATE) visit(row);
+    case 'date': {
+      const days = column.values;
+      for (let row = 0; row < days.length; row++) if (days[row] === NULL_DATE) visit(row);
       return;
-    case 'number':
-      for (let row = 0; row < column.values.length; row++) if (Number.isNaN(column.values[row])) visit(row);
+    }
+    case 'number': {
+      const numbers = column.values;
+      for (let row = 0; row < numbers.length; row++) if (numbers[row] !== numbers[row]) visit(row); // NaN
       return;
-    case 'text':
-      for (let row = 0; row < column.codes.length; row++) if (column.codes[row] < 0) visit(row);
+    }
+    case 'text': {
+      const codes = column.codes;
+      for (let row = 0; row < codes.length; row++) if (codes[row] < 0) visit(row);
       return;
-    case 'boolean':
-      for (let row = 0; row < column.values.length; row++) if (column.values[row] === NULL_BOOLEAN) visit(row);
+    }
+    case 'boolean': {
+      const flags = column.values;
+      for (let row = 0; row < flags.length; row++) if (flags[row] === NULL_BOOLEAN) visit(row);
       return;
+    }
   }
 }
 
