@@ -7,6 +7,7 @@ import { readParquetBuffer } from '../src/ingest/parquet-reader.js';
 import { canonicalToParquetBuffer } from '../fixtures/parquet-writer.js';
 import { DEFAULT_PROFILE } from '../src/ingest/profile.js';
 import { benchUniverse, navCsv } from './universe.js';
+import { epochDay } from '../src/calendar/days.js';
 
 /**
  * Ingestion speed on one core: reads a generated NAV universe several times and reports the best
@@ -47,7 +48,10 @@ function report(m: Measurement): string {
   return `${m.label.padEnd(34)} wall: best ${rate(best)} (${best.toFixed(3)} s), median ${rate(median(m.seconds))}; CPU median ${rate(median(m.cpuSeconds))}`;
 }
 
-const universe = benchUniverse(seriesCount, businessDays);
+// The default universe starts on 2021-01-04; a longer one (2,580 days is the standard universe's
+// ten years) starts early enough to end before today, inside the readers' plausible dates.
+const daysBack = Math.ceil((businessDays * 7) / 5) + 7;
+const universe = benchUniverse(seriesCount, businessDays, Math.min(epochDay(2021, 1, 4), Math.floor(Date.now() / 86_400_000) - daysBack));
 const csv = navCsv(universe);
 const rows = seriesCount * businessDays;
 console.log(`navassay ingestion bench: ${seriesCount} series × ${businessDays} days = ${rows.toLocaleString('en')} NAV rows, CSV ${(csv.length / 1e6).toFixed(1)} MB`);
