@@ -107,11 +107,11 @@ export class MetricCalculator {
    * builds no key string (the reconcile stage looks up every figure again, and the search its
    * variants; building and hashing a long key cost more than the rest of a look-up).
    */
-  private readonly cache = new Map<string, Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>>>();
+  private readonly cache = new Map<string, StatisticsBySampling>();
   /** The sampling key of the methodology asked for last (most requests share one methodology object). */
   private lastMethodology: Methodology | null = null;
   private lastSamplingKey = '';
-  private latestSeries: { readonly id: string; readonly statistics: Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>> } | null = null;
+  private latestSeries: LatestSeriesStatistics | null = null;
   private readonly parts = new LatestSeriesParts();
   private readonly sources = new SourceParts();
   private readonly spans = new Map<string, Map<number, Map<number, WindowMonths>>>();
@@ -138,12 +138,29 @@ export class MetricCalculator {
     return figureOf(request.metric, this.statistics(request), this.effectiveMethodology(request.methodology));
   }
 
-  /** The window's statistics (cached), or why the window cannot be computed at all. */
-  statistics(request: Omit<MetricRequest, 'metric'>): Outcome<WindowStatistics> {
+  /**
+   * A figure under a methodology tried for one figure (the convention search's variants): a
+   * window sampled anew for it is kept only while its series is the latest (`statistics`).
+   */
+  variantMetric(request: MetricRequest): MetricValue {
+    return figureOf(request.metric, this.statistics(request, 'while the series is the latest'), this.effectiveMethodology(request.methodology));
+  }
+
+  /**
+   * The window's statistics (cached), or why the window cannot be computed at all. Kept for the
+   * run, or only while the series is the latest: the convention search samples a few dozen
+   * variants of a breach's window, each holding its returns; kept for the run, they piled up
+   * (about 120 MB at 10,000 series) and every young-generation collection copied them on.
+   */
+  statistics(request: Omit<MetricRequest, 'metric'>, kept: StatisticsKept = 'for the run'): Outcome<WindowStatistics> {
     const methodology = this.effectiveMethodology(request.methodology);
-    const bySampling = this.statisticsOfSeries(request.seriesId);
-    const byWindow = mapUnder(bySampling, this.samplingKey(methodology));
-    const byAsOf = mapUnder(byWindow, request.window);
+    const series = this.statisticsOfSeries(request.seriesId);
+    const samplingKey = this.samplingKey(methodology);
+    const forTheRun = kept === 'for the run';
+    // A variant whose sampling is the run's (another denominator, another MAR …) reads the run's statistics.
+    const keptForRun = forTheRun ? undefined : series.forTheRun.get(samplingKey)?.get(request.window)?.get(request.asOf);
+    if (keptForRun) return keptForRun;
+    const byAsOf = mapUnder(mapUnder(forTheRun ? series.forTheRun : series.whileLatest, samplingKey), request.window);
     let stats = byAsOf.get(request.asOf);
     if (!stats) {
       const reuse = this.parts.reuseFor(request, methodology);
@@ -156,10 +173,13 @@ export class MetricCalculator {
     return stats;
   }
 
-  /** The series' part of the cache; the latest one is at hand, since figures come series by series. */
-  private statisticsOfSeries(seriesId: string): Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>> {
-    if (seriesId !== this.latestSeries?.id) this.latestSeries = { id: seriesId, statistics: mapUnder(this.cache, seriesId) };
-    return this.latestSeries.statistics;
+  /**
+   * The series' part of the cache, and its statistics kept only while it is the latest series;
+   * the latest one is at hand, since figures come series by series.
+   */
+  private statisticsOfSeries(seriesId: string): LatestSeriesStatistics {
+    if (seriesId !== this.latestSeries?.id) this.latestSeries = { id: seriesId, forTheRun: mapUnder(this.cache, seriesId), whileLatest: new Map() };
+    return this.latestSeries;
   }
 
   /** The window's returns as sampled under the methodology, or why they cannot be (nothing shared with the cache). */
@@ -256,6 +276,19 @@ export class MetricCalculator {
     }
     return this.lastSamplingKey;
   }
+}
+
+/** How long a window's statistics are kept: for the run, or only while its series is the latest. */
+export type StatisticsKept = 'for the run' | 'while the series is the latest';
+
+/** Statistics by sampling key, window and as-of. */
+type StatisticsBySampling = Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>>;
+
+/** The latest series' statistics: those kept for the run (its part of the cache), and those kept while it is the latest. */
+interface LatestSeriesStatistics {
+  readonly id: string;
+  readonly forTheRun: StatisticsBySampling;
+  readonly whileLatest: StatisticsBySampling;
 }
 
 /** A window request with the two rate settings the risk-free part depends on, for its key. */
