@@ -1,6 +1,6 @@
 import { formatIsoDate } from '../calendar/days.js';
 import type { SeriesMasterRecord } from '../ingest/records.js';
-import { findSeries, type SeriesFrame } from '../series/frame.js';
+import { findSeries, type SeriesFrame, type SeriesSlice } from '../series/frame.js';
 import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { failure, success, type Outcome } from '../outcome.js';
@@ -115,8 +115,15 @@ export class MetricCalculator {
   private readonly parts = new LatestSeriesParts();
   private readonly sources = new SourceParts();
   private readonly spans = new Map<string, Map<number, Map<number, WindowMonths>>>();
+  /** The latest fund's slice, and every benchmark's and rate's asked for (a frame holds few of them). */
+  private readonly funds: Slices;
+  private readonly benchmarkLevels: Slices;
+  private readonly rates: Slices | null;
 
   constructor(private readonly inputs: MetricInputs) {
+    this.funds = new Slices(inputs.nav, 1);
+    this.benchmarkLevels = new Slices(inputs.benchmarks, SOURCE_SLICES_KEPT);
+    this.rates = inputs.rates ? new Slices(inputs.rates, SOURCE_SLICES_KEPT) : null;
     for (const record of inputs.master) {
       if (!this.masterById.has(record.series_id)) this.masterById.set(record.series_id, record);
     }
@@ -191,7 +198,7 @@ export class MetricCalculator {
   /** What sampling a window needs: the fund, its benchmark and rate sources, the span, the settings. */
   private windowRequest(request: Omit<MetricRequest, 'metric'>): Outcome<SharedPartsRequest> {
     const methodology = this.effectiveMethodology(request.methodology);
-    const fund = findSeries(this.inputs.nav, request.seriesId);
+    const fund = this.funds.of(request.seriesId);
     const span = this.spanOf(request.asOf, request.window, methodology.window_end);
     if (!fund || fund.dates.length === 0) return { ok: false, reason: `series ${request.seriesId} has no NAV observations` };
     return {
@@ -246,7 +253,7 @@ export class MetricCalculator {
         ? failure(`no benchmark is mapped to series ${seriesId} in the series master`)
         : failure(`series ${seriesId} is not in the series master, so it has no benchmark`);
     }
-    const levels = findSeries(this.inputs.benchmarks, id);
+    const levels = this.benchmarkLevels.of(id);
     return levels && levels.dates.length > 0 ? success({ id, levels }) : failure(`benchmark ${id} has no levels`);
   }
 
@@ -261,7 +268,7 @@ export class MetricCalculator {
     if (!this.inputs.rates) {
       return failure(`no risk-free rates were given for rate ${id}: give a rate file or a constant rate`);
     }
-    const rates = findSeries(this.inputs.rates, id);
+    const rates = this.rates!.of(id);
     return rates && rates.dates.length > 0 ? success({ id, rates }) : failure(`risk-free rate ${id} has no observations`);
   }
 
@@ -277,6 +284,31 @@ export class MetricCalculator {
     return this.lastSamplingKey;
   }
 }
+
+/**
+ * Series slices of a frame, each made once while kept: a slice is three typed-array views, and
+ * the convention search samples a breach's window anew a few dozen times, each time with the
+ * same fund, benchmarks and rate. At most `atMost` are kept; then they are dropped together.
+ */
+class Slices {
+  private readonly kept = new Map<string, SeriesSlice | undefined>();
+
+  constructor(
+    private readonly frame: SeriesFrame,
+    private readonly atMost: number,
+  ) {}
+
+  of(id: string): SeriesSlice | undefined {
+    if (this.kept.has(id)) return this.kept.get(id);
+    if (this.kept.size >= this.atMost) this.kept.clear();
+    const slice = findSeries(this.frame, id);
+    this.kept.set(id, slice);
+    return slice;
+  }
+}
+
+/** Benchmark and rate slices kept: more than a feed's benchmarks or rates usually number. */
+const SOURCE_SLICES_KEPT = 256;
 
 /** How long a window's statistics are kept: for the run, or only while its series is the latest. */
 export type StatisticsKept = 'for the run' | 'while the series is the latest';
