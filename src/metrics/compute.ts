@@ -1,6 +1,6 @@
 import { formatIsoDate } from '../calendar/days.js';
 import type { SeriesMasterRecord } from '../ingest/records.js';
-import { findSeries, type SeriesFrame } from '../series/frame.js';
+import { findSeries, type SeriesFrame, type SeriesSlice } from '../series/frame.js';
 import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { failure, success, type Outcome } from '../outcome.js';
@@ -107,16 +107,23 @@ export class MetricCalculator {
    * builds no key string (the reconcile stage looks up every figure again, and the search its
    * variants; building and hashing a long key cost more than the rest of a look-up).
    */
-  private readonly cache = new Map<string, Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>>>();
+  private readonly cache = new Map<string, StatisticsBySampling>();
   /** The sampling key of the methodology asked for last (most requests share one methodology object). */
   private lastMethodology: Methodology | null = null;
   private lastSamplingKey = '';
-  private latestSeries: { readonly id: string; readonly statistics: Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>> } | null = null;
+  private latestSeries: LatestSeriesStatistics | null = null;
   private readonly parts = new LatestSeriesParts();
   private readonly sources = new SourceParts();
   private readonly spans = new Map<string, Map<number, Map<number, WindowMonths>>>();
+  /** The latest fund's slice, and every benchmark's and rate's asked for (a frame holds few of them). */
+  private readonly funds: Slices;
+  private readonly benchmarkLevels: Slices;
+  private readonly rates: Slices | null;
 
   constructor(private readonly inputs: MetricInputs) {
+    this.funds = new Slices(inputs.nav, 1);
+    this.benchmarkLevels = new Slices(inputs.benchmarks, SOURCE_SLICES_KEPT);
+    this.rates = inputs.rates ? new Slices(inputs.rates, SOURCE_SLICES_KEPT) : null;
     for (const record of inputs.master) {
       if (!this.masterById.has(record.series_id)) this.masterById.set(record.series_id, record);
     }
@@ -138,12 +145,29 @@ export class MetricCalculator {
     return figureOf(request.metric, this.statistics(request), this.effectiveMethodology(request.methodology));
   }
 
-  /** The window's statistics (cached), or why the window cannot be computed at all. */
-  statistics(request: Omit<MetricRequest, 'metric'>): Outcome<WindowStatistics> {
+  /**
+   * A figure under a methodology tried for one figure (the convention search's variants): a
+   * window sampled anew for it is kept only while its series is the latest (`statistics`).
+   */
+  variantMetric(request: MetricRequest): MetricValue {
+    return figureOf(request.metric, this.statistics(request, 'while the series is the latest'), this.effectiveMethodology(request.methodology));
+  }
+
+  /**
+   * The window's statistics (cached), or why the window cannot be computed at all. Kept for the
+   * run, or only while the series is the latest: the convention search samples a few dozen
+   * variants of a breach's window, each holding its returns; kept for the run, they piled up
+   * (about 120 MB at 10,000 series) and every young-generation collection copied them on.
+   */
+  statistics(request: Omit<MetricRequest, 'metric'>, kept: StatisticsKept = 'for the run'): Outcome<WindowStatistics> {
     const methodology = this.effectiveMethodology(request.methodology);
-    const bySampling = this.statisticsOfSeries(request.seriesId);
-    const byWindow = mapUnder(bySampling, this.samplingKey(methodology));
-    const byAsOf = mapUnder(byWindow, request.window);
+    const series = this.statisticsOfSeries(request.seriesId);
+    const samplingKey = this.samplingKey(methodology);
+    const forTheRun = kept === 'for the run';
+    // A variant whose sampling is the run's (another denominator, another MAR …) reads the run's statistics.
+    const keptForRun = forTheRun ? undefined : series.forTheRun.get(samplingKey)?.get(request.window)?.get(request.asOf);
+    if (keptForRun) return keptForRun;
+    const byAsOf = mapUnder(mapUnder(forTheRun ? series.forTheRun : series.whileLatest, samplingKey), request.window);
     let stats = byAsOf.get(request.asOf);
     if (!stats) {
       const reuse = this.parts.reuseFor(request, methodology);
@@ -156,10 +180,13 @@ export class MetricCalculator {
     return stats;
   }
 
-  /** The series' part of the cache; the latest one is at hand, since figures come series by series. */
-  private statisticsOfSeries(seriesId: string): Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>> {
-    if (seriesId !== this.latestSeries?.id) this.latestSeries = { id: seriesId, statistics: mapUnder(this.cache, seriesId) };
-    return this.latestSeries.statistics;
+  /**
+   * The series' part of the cache, and its statistics kept only while it is the latest series;
+   * the latest one is at hand, since figures come series by series.
+   */
+  private statisticsOfSeries(seriesId: string): LatestSeriesStatistics {
+    if (seriesId !== this.latestSeries?.id) this.latestSeries = { id: seriesId, forTheRun: mapUnder(this.cache, seriesId), whileLatest: new Map() };
+    return this.latestSeries;
   }
 
   /** The window's returns as sampled under the methodology, or why they cannot be (nothing shared with the cache). */
@@ -171,7 +198,7 @@ export class MetricCalculator {
   /** What sampling a window needs: the fund, its benchmark and rate sources, the span, the settings. */
   private windowRequest(request: Omit<MetricRequest, 'metric'>): Outcome<SharedPartsRequest> {
     const methodology = this.effectiveMethodology(request.methodology);
-    const fund = findSeries(this.inputs.nav, request.seriesId);
+    const fund = this.funds.of(request.seriesId);
     const span = this.spanOf(request.asOf, request.window, methodology.window_end);
     if (!fund || fund.dates.length === 0) return { ok: false, reason: `series ${request.seriesId} has no NAV observations` };
     return {
@@ -226,7 +253,7 @@ export class MetricCalculator {
         ? failure(`no benchmark is mapped to series ${seriesId} in the series master`)
         : failure(`series ${seriesId} is not in the series master, so it has no benchmark`);
     }
-    const levels = findSeries(this.inputs.benchmarks, id);
+    const levels = this.benchmarkLevels.of(id);
     return levels && levels.dates.length > 0 ? success({ id, levels }) : failure(`benchmark ${id} has no levels`);
   }
 
@@ -241,7 +268,7 @@ export class MetricCalculator {
     if (!this.inputs.rates) {
       return failure(`no risk-free rates were given for rate ${id}: give a rate file or a constant rate`);
     }
-    const rates = findSeries(this.inputs.rates, id);
+    const rates = this.rates!.of(id);
     return rates && rates.dates.length > 0 ? success({ id, rates }) : failure(`risk-free rate ${id} has no observations`);
   }
 
@@ -256,6 +283,44 @@ export class MetricCalculator {
     }
     return this.lastSamplingKey;
   }
+}
+
+/**
+ * Series slices of a frame, each made once while kept: a slice is three typed-array views, and
+ * the convention search samples a breach's window anew a few dozen times, each time with the
+ * same fund, benchmarks and rate. At most `atMost` are kept; then they are dropped together.
+ */
+class Slices {
+  private readonly kept = new Map<string, SeriesSlice | undefined>();
+
+  constructor(
+    private readonly frame: SeriesFrame,
+    private readonly atMost: number,
+  ) {}
+
+  of(id: string): SeriesSlice | undefined {
+    if (this.kept.has(id)) return this.kept.get(id);
+    if (this.kept.size >= this.atMost) this.kept.clear();
+    const slice = findSeries(this.frame, id);
+    this.kept.set(id, slice);
+    return slice;
+  }
+}
+
+/** Benchmark and rate slices kept: more than a feed's benchmarks or rates usually number. */
+const SOURCE_SLICES_KEPT = 256;
+
+/** How long a window's statistics are kept: for the run, or only while its series is the latest. */
+export type StatisticsKept = 'for the run' | 'while the series is the latest';
+
+/** Statistics by sampling key, window and as-of. */
+type StatisticsBySampling = Map<string, Map<string, Map<number, Outcome<WindowStatistics>>>>;
+
+/** The latest series' statistics: those kept for the run (its part of the cache), and those kept while it is the latest. */
+interface LatestSeriesStatistics {
+  readonly id: string;
+  readonly forTheRun: StatisticsBySampling;
+  readonly whileLatest: StatisticsBySampling;
 }
 
 /** A window request with the two rate settings the risk-free part depends on, for its key. */

@@ -99,7 +99,7 @@ function attempt(calculator: MetricCalculator, figure: FigureToExplain, changes:
 }
 
 function valueOf(calculator: MetricCalculator, figure: FigureToExplain, methodology: Methodology): number | null {
-  return calculator.metric({ seriesId: figure.seriesId, asOf: figure.asOf, window: figure.window, metric: figure.metric, methodology }).value;
+  return calculator.variantMetric({ seriesId: figure.seriesId, asOf: figure.asOf, window: figure.window, metric: figure.metric, methodology }).value;
 }
 
 /** A changed frequency annualises by its own default unless the annualization is changed too. */

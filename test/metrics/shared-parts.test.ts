@@ -74,6 +74,54 @@ describe('benchmark and risk-free parts kept across series', () => {
   });
 });
 
+describe('variant figures kept only while their series is the latest', () => {
+  const data = manyCalendars();
+  const variants: MethodologyChanges[] = [{}];
+  for (const frequency of ['monthly', 'weekly', 'daily'] as const) {
+    for (const window_end of [0, -2]) {
+      for (const benchmark of [null, 'BMK-NARROW']) variants.push({ frequency, window_end, benchmark }, { frequency, window_end, benchmark, sd_denominator: 'population' });
+    }
+  }
+  const requests = data.nav.ids.flatMap((seriesId) =>
+    ['1y', '3y'].flatMap((window) => variants.flatMap((changes) => METRIC_IDS.map((metric) => ({ seriesId, window, metric, changes })))),
+  );
+
+  it.each([
+    ['series by series', (items: typeof requests) => items],
+    ['in a random order, so each series is left and come back to', (items: typeof requests) => new SeededRandom(17).shuffle(items)],
+  ])('are the figures a fresh calculator gives, asked as variants or kept for the run, %s', (_, order) => {
+    const shared = new MetricCalculator(data);
+    const random = new SeededRandom(5);
+    const sampled = order(requests).filter((_, k) => k % 5 === 0);
+    for (const { seriesId, window, metric, changes } of sampled) {
+      const request = { seriesId, asOf: AS_OF, window, metric, methodology: withChanges(DEFAULT_METHODOLOGY, changes) };
+      const alone = new MetricCalculator(data).metric(request);
+      // Variants and figures kept for the run mixed, as the reconcile stage mixes them.
+      const reused = random.next() < 0.7 ? shared.variantMetric(request) : shared.metric(request);
+      expect(Object.is(reused.value, alone.value), `${seriesId} ${window} ${metric} ${JSON.stringify(changes)}: ${reused.value} vs ${alone.value}`).toBe(true);
+      expect(reused.reason).toBe(alone.reason);
+      expect(reused.observations).toBe(alone.observations);
+    }
+  });
+
+  it("read the run's statistics when the variant samples the window as the run does, and are not kept for the run otherwise", () => {
+    const calculator = new MetricCalculator(data);
+    const request = { seriesId: 'FUND-0', asOf: AS_OF, window: '1y', metric: 'std_dev' as const };
+    const run = calculator.statistics({ ...request, methodology: DEFAULT_METHODOLOGY });
+    // Another denominator samples as the configured methodology does: the very statistics of the run.
+    const population = withChanges(DEFAULT_METHODOLOGY, { sd_denominator: 'population' });
+    expect(calculator.statistics({ ...request, methodology: population }, 'while the series is the latest')).toBe(run);
+    // A weekly variant is kept while FUND-0 is the latest series, and made anew after another series.
+    const weekly = withChanges(DEFAULT_METHODOLOGY, { frequency: 'weekly' });
+    const first = calculator.statistics({ ...request, methodology: weekly }, 'while the series is the latest');
+    expect(calculator.statistics({ ...request, methodology: weekly }, 'while the series is the latest')).toBe(first);
+    calculator.statistics({ ...request, seriesId: 'FUND-1', methodology: weekly }, 'while the series is the latest');
+    const again = calculator.statistics({ ...request, methodology: weekly }, 'while the series is the latest');
+    expect(again).not.toBe(first);
+    expect(again.ok && first.ok && again.value.simple.raw.n === first.value.simple.raw.n).toBe(true);
+  });
+});
+
 /** The moments as one pass over every accumulator builds them (the plain path). */
 function onePass(fund: Float64Array, benchmark: Float64Array, riskFree: Float64Array) {
   const stats = { raw: new PairMoments(), excess: new PairMoments(), active: new SeriesMoments(), belowRiskFree: new TargetSums(), belowZero: new TargetSums() };
