@@ -10,9 +10,11 @@ import { BusinessCalendars } from '../../src/calendar/business-calendar.js';
 import { residualMoves } from '../../src/checks/residual-moves.js';
 import { seriesAt, type SeriesSlice } from '../../src/series/frame.js';
 import { futureDate } from '../../checks/future-date.js';
+import { offCalendarDate } from '../../checks/off-calendar-date.js';
 import { lateSeries } from '../../checks/late-series.js';
 import { logChanges, repeatsAValue } from '../../checks/stale-value.js';
-import { contextFor, frameOfArrays, weekdays } from './helpers.js';
+import { isoDate } from '../../src/checks/support.js';
+import { contextFor, frameOfArrays, master, weekdays } from './helpers.js';
 
 /**
  * A history of business days with repeats, holes, duplicate dates, zero, negative and
@@ -101,6 +103,24 @@ describe('the quicker scans of the checks', () => {
         const late = lateSeries.run(series, { ...context, feedLatest: context.asOf + 30 }, lateSeries.defaults);
         expect(late.length).toBe(lastRow < 0 ? 0 : 1);
         if (lastRow >= 0) expect(late[0].evidence.latest_line).toBe(series.lines[lastRow]);
+      }),
+      { numRuns: 300 },
+    );
+  });
+
+  it('off_calendar_date reads the calendar\'s flags as isBusinessDay answers, inside the table and beyond it', () => {
+    const calendars = new BusinessCalendars();
+    for (const day of weekdays('2025-01-06', 400)) if (day % 7 === 2) calendars.addHoliday('HOLIDAYS', day);
+    // Days around 1900 and 2200 as well, where isBusinessDay leaves its table.
+    const day = fc.oneof(fc.integer({ min: 20090, max: 20500 }), fc.integer({ min: -25580, max: -25560 }), fc.integer({ min: 84000, max: 84020 }));
+    fc.assert(
+      fc.property(fc.constantFrom(undefined, 'HOLIDAYS'), fc.array(day, { maxLength: 60 }), (calendar, days) => {
+        const dates = [...days].sort((a, b) => a - b);
+        const series = seriesAt(frameOfArrays([{ id: 'F1', dates, values: dates.map(() => 100) }]), 0);
+        const context = contextFor({ calendars, master: calendar === undefined ? undefined : master('F1', { calendar }) });
+        const found = offCalendarDate.run(series, context, {}).map((finding) => finding.start);
+        const plain = [...new Set(dates)].filter((d) => !calendars.isBusinessDay(calendar, d)).map((d) => isoDate(d));
+        expect(found).toEqual(plain);
       }),
       { numRuns: 300 },
     );
