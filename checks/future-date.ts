@@ -11,8 +11,7 @@ export const futureDate: SeriesCheck<Record<string, never>> = {
   purpose: 'Values dated after the as-of date.',
   defaults: {},
   run(series, context) {
-    const rows: number[] = [];
-    for (let i = 0; i < series.dates.length; i++) if (series.dates[i] > context.asOf) rows.push(i);
+    const rows = rowsAfter(series.dates, context.asOf);
     if (rows.length === 0) return [];
     const first = series.dates[rows[0]];
     const last = series.dates[rows[rows.length - 1]];
@@ -34,3 +33,13 @@ export const futureDate: SeriesCheck<Record<string, never>> = {
     ];
   },
 };
+
+/**
+ * The rows dated after `asOf`. A series' dates ascend (the frame sorts them), so those rows
+ * are its last few: found from the end, not by reading every row of the history.
+ */
+function rowsAfter(dates: Int32Array, asOf: number): number[] {
+  let first = dates.length;
+  while (first > 0 && dates[first - 1] > asOf) first--;
+  return Array.from({ length: dates.length - first }, (_, i) => first + i);
+}

@@ -22,8 +22,9 @@ export const lateSeries: SeriesCheck<LateParams> = {
   purpose: 'The latest value is more business days behind the feed’s latest date (or the as-of) than allowed.',
   defaults: { max_lag_business_days: 0, max_as_of_lag_business_days: 1, closed_after_business_days: 65 },
   run(series, context, params) {
-    let lastRow = -1;
-    for (let i = 0; i < series.dates.length && series.dates[i] <= context.asOf; i++) lastRow = i;
+    // A series' dates ascend (the frame sorts them): its last row up to the as-of is found from the end.
+    let lastRow = series.dates.length - 1;
+    while (lastRow >= 0 && series.dates[lastRow] > context.asOf) lastRow--;
     if (lastRow < 0) return [];
     const calendar = calendarOf(context);
     const last = series.dates[lastRow];

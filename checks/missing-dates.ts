@@ -74,8 +74,10 @@ function describe(series: SeriesSlice, missing: number[], calendar: string | und
   });
 }
 
-/** True when `businessDaysBetween(calendar, from, to)` would list any day. */
+/**
+ * True when `businessDaysBetween(calendar, from, to)` would list any day: the business days in
+ * (from, to − 1], counted by the calendar's running counts instead of a look-up per day.
+ */
 function someBusinessDayBetween(calendars: BusinessCalendars, calendar: string | undefined, from: number, to: number): boolean {
-  for (let day = from + 1; day < to; day++) if (calendars.isBusinessDay(calendar, day)) return true;
-  return false;
+  return calendars.businessDayDistance(calendar, from, to - 1) > 0;
 }

@@ -33,12 +33,19 @@ export const offCalendarDate: SeriesCheck<Record<string, never>> = {
   },
 };
 
-/** The first row of each date that is not a business day of `calendar`, in one pass (no list of every date first). */
+/**
+ * The first row of each date that is not a business day of `calendar`, in one pass (no list of
+ * every date first), reading the calendar's flags (`isBusinessDay` for days beyond them).
+ */
 function offCalendarRows(series: SeriesSlice, calendars: BusinessCalendars, calendar: string | undefined): number[] {
   const rows: number[] = [];
   const dates = series.dates;
+  const { first, flags } = calendars.businessDayFlags(calendar);
   for (let i = 0; i < dates.length; i++) {
-    if ((i === 0 || dates[i] !== dates[i - 1]) && !calendars.isBusinessDay(calendar, dates[i])) rows.push(i);
+    if (i > 0 && dates[i] === dates[i - 1]) continue;
+    const slot = dates[i] - first;
+    const business = slot >= 0 && slot < flags.length ? flags[slot] === 1 : calendars.isBusinessDay(calendar, dates[i]);
+    if (!business) rows.push(i);
   }
   return rows;
 }

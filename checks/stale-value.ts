@@ -32,6 +32,9 @@ export const staleValue: SeriesCheck<StaleParams> = {
   readsMoves: true,
   run(series, context, params) {
     if (context.master?.stable_value) return [];
+    // Only runs of two or more equal values are judged, and most series have none: one pass
+    // that builds nothing says so before the rows and runs are listed.
+    if (!repeatsAValue(series, context.asOf)) return [];
     const rows = positiveFirstRows(series, context.asOf);
     if (rows.length < 2) return [];
     const runStarts = equalValueRuns(series, rows);
@@ -107,6 +110,21 @@ function positiveFirstRows(series: SeriesSlice, asOf: number): number[] {
     if ((i === 0 || series.dates[i] !== series.dates[i - 1]) && series.values[i] > 0) rows.push(i);
   }
   return rows;
+}
+
+/** True when two consecutive rows of `positiveFirstRows` have the same value: a run of two or more. */
+export function repeatsAValue(series: SeriesSlice, asOf: number): boolean {
+  const dates = series.dates;
+  const values = series.values;
+  let previous = NaN;
+  for (let i = 0; i < dates.length; i++) {
+    if (dates[i] > asOf) break;
+    if ((i === 0 || dates[i] !== dates[i - 1]) && values[i] > 0) {
+      if (values[i] === previous) return true;
+      previous = values[i];
+    }
+  }
+  return false;
 }
 
 /**
@@ -278,10 +296,8 @@ function chanceModel(series: SeriesSlice, rows: number[], runStarts: Int32Array,
   if (n < 21) return undefined;
   // The typical one-day move in log terms, of the series alone (for steps the benchmark
   // cannot price) and of its residual against the benchmark.
-  const changes = new Float64Array(n - 1);
-  for (let k = 1; k < n; k++) changes[k - 1] = Math.log(series.values[rows[k]] / series.values[rows[k - 1]]);
-  const alone = robustScale(changes, 0);
   const returns = movesOf(series, context).model;
+  const alone = robustScale(logChanges(series, rows, returns), 0);
   const fitted = returns.hasBenchmark && returns.count >= 20 && returns.scale > 0;
   const benchmark = context.benchmark;
   const benchMoves = benchmark ? benchmarkStepMoves(context, benchmark) : undefined;
@@ -362,6 +378,24 @@ function chanceModel(series: SeriesSlice, rows: number[], runStarts: Int32Array,
       return (byChance ??= orderByKey(steps, chance));
     },
   };
+}
+
+/**
+ * ln(v[rows[k]] / v[rows[k − 1]]) for each k ≥ 1. Where the value changes, the residual model
+ * mostly has a step ending on rows[k] that starts from a row of the same value as rows[k − 1]:
+ * its raw move is the logarithm of the very same quotient, so it is read, not computed again.
+ */
+export function logChanges(series: SeriesSlice, rows: number[], returns: ResidualMoves): Float64Array {
+  const changes = new Float64Array(rows.length - 1);
+  let step = 0;
+  for (let k = 1; k < rows.length; k++) {
+    const before = series.values[rows[k - 1]];
+    const after = series.values[rows[k]];
+    while (step < returns.count && returns.to[step] < rows[k]) step++;
+    const same = step < returns.count && returns.to[step] === rows[k] && series.values[returns.from[step]] === before;
+    changes[k - 1] = same ? returns.raw[step] : Math.log(after / before);
+  }
+  return changes;
 }
 
 /** The residual model's step from slice row `from` to row `to`, or −1 (a binary search: its steps are in date order). */

@@ -77,6 +77,16 @@ export class BusinessCalendars {
     return !this.isWeekend(day) && !this.isHoliday(calendar, day);
   }
 
+  /**
+   * The calendar's business days as flags over epoch days, for a caller that looks up every day
+   * of a history in one calendar (a look-up per day also finds the calendar's table per day):
+   * `flags[day − first]` is 1 for a business day when `first` ≤ day < `first + flags.length`;
+   * `isBusinessDay` answers for other days.
+   */
+  businessDayFlags(calendar: string | undefined): { readonly first: number; readonly flags: Uint8Array } {
+    return { first: TABLE_FIRST_DAY, flags: this.tableOf(calendar).business };
+  }
+
   /** Business days strictly after `from` and strictly before `to`. */
   businessDaysBetween(calendar: string | undefined, from: number, to: number): number[] {
     const days: number[] = [];

@@ -15,7 +15,8 @@
 import type { SeriesContext } from './check.js';
 import type { CorporateActionRecord } from '../ingest/records.js';
 import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
-import { calendarOf, exactPosition, kthSmallest, median, robustScale } from './support.js';
+import { calendarOf, exactPosition, median, robustScale } from './support.js';
+import { topRanks } from './selection.js';
 import { benchmarkStepMoves } from './series-tables.js';
 
 export interface ResidualMoves {
@@ -129,19 +130,34 @@ function freshArrays(count: number): MoveArrays {
   };
 }
 
-function anchorRows(series: SeriesSlice, asOf: number): number[] {
-  const anchors: number[] = [];
+/**
+ * The anchor rows of the series (see the top of this file), in a working array reused from
+ * model to model instead of a list grown step by step per series: a view valid until the next model.
+ */
+function anchorRows(series: SeriesSlice, asOf: number): Int32Array {
+  const dates = series.dates;
+  const values = series.values;
+  const anchors = (anchorBuffer = atLeast(anchorBuffer, dates.length));
+  let count = 0;
   let previousValue = NaN;
-  for (let i = 0; i < series.dates.length; i++) {
-    const day = series.dates[i];
-    const value = series.values[i];
+  for (let i = 0; i < dates.length; i++) {
+    const day = dates[i];
+    const value = values[i];
     if (day > asOf) break;
-    if (i > 0 && day === series.dates[i - 1]) continue;
+    if (i > 0 && day === dates[i - 1]) continue;
     if (!(value > 0) || !Number.isFinite(value) || value === previousValue) continue;
-    anchors.push(i);
+    anchors[count++] = i;
     previousValue = value;
   }
-  return anchors;
+  return anchors.subarray(0, count);
+}
+
+/** Working arrays of the anchors and their benchmark positions, reused from model to model. */
+let anchorBuffer: Int32Array = new Int32Array(0);
+let positionBuffer: Int32Array = new Int32Array(0);
+
+function atLeast(buffer: Int32Array, n: number): Int32Array {
+  return buffer.length >= n ? buffer : new Int32Array(Math.max(n, 2 * buffer.length));
 }
 
 function computeMoves(series: SeriesSlice, context: SeriesContext, scratch: MoveScratch | undefined): ResidualMoves {
@@ -220,14 +236,19 @@ function valueBeforeActions(series: SeriesSlice, b: number, actions: readonly Co
   return value;
 }
 
-/** For each anchor, the position of a benchmark level stamped on exactly that date (or -1). */
-function positionsInBenchmark(series: SeriesSlice, anchors: number[], benchmark: SeriesSlice): Int32Array {
-  const positions = new Int32Array(anchors.length).fill(-1);
+/**
+ * For each anchor, the position of a benchmark level stamped on exactly that date (or -1), by a
+ * merge walk (both are ascending), in a working array: a view valid until the next model.
+ */
+function positionsInBenchmark(series: SeriesSlice, anchors: Int32Array, benchmark: SeriesSlice): Int32Array {
+  const positions = (positionBuffer = atLeast(positionBuffer, anchors.length)).subarray(0, anchors.length);
+  const dates = benchmark.dates;
+  const levels = benchmark.values;
   let p = 0;
   for (let k = 0; k < anchors.length; k++) {
     const day = series.dates[anchors[k]];
-    while (p < benchmark.dates.length && benchmark.dates[p] < day) p++;
-    if (p < benchmark.dates.length && benchmark.dates[p] === day && benchmark.values[p] > 0) positions[k] = p;
+    while (p < dates.length && dates[p] < day) p++;
+    positions[k] = p < dates.length && dates[p] === day && levels[p] > 0 ? p : -1;
   }
   return positions;
 }
@@ -325,10 +346,8 @@ function topMagnitudes(z: Float64Array): TopMagnitudes {
     if (Number.isFinite(magnitude)) magnitudes[count++] = magnitude;
   }
   const from = Math.max(0, count - Math.floor(0.05 * count) - 3);
-  const all = magnitudes.subarray(0, count);
-  if (count > 0) kthSmallest(all, from);
-  // The top ranks are kept with the model: copied out of the working array.
-  return { count, from, values: all.slice(from).sort() };
+  // The top ranks are kept with the model: a fresh array, not a view of the working one.
+  return { count, from, values: topRanks(magnitudes.subarray(0, count), from) };
 }
 
 function rankOf(top: TopMagnitudes, rank: number): number {

@@ -98,3 +98,100 @@ export function bracketedMedian(values: ArrayLike<number>): number | undefined {
   if (upper === 0 || lower === 0) return undefined;
   return n % 2 === 1 ? upper : (lower + upper) / 2;
 }
+
+/** Top-rank selections of shorter arrays take the quickselect alone (see `MIN_BRACKETED`). */
+const MIN_BRACKETED_TOP = 512;
+/**
+ * Sample ranks taken below the sample rank of `from`: the rank of the 95th percentile in a
+ * sample of 128 has a standard deviation of √(128 · 0.05 · 0.95) ≈ 2.5, so 10 ranks (4 standard
+ * deviations) keep a bound that misses under one time in ten thousand.
+ */
+const TOP_MARGIN = 10;
+
+let above = new Float64Array(0);
+
+/**
+ * The values of ranks `from` … n − 1 of `values` (0-based, ascending order), sorted ascending, as
+ * a fresh array: what `kthSmallest(values, from)` followed by a sort of `values.slice(from)`
+ * gives. For long arrays a bound from an evenly spaced sample (an order statistic of the sample
+ * just below the rank of `from`) splits off the values at or above it in one pass, and the
+ * quickselect runs on those few (about one in eight for the top 5 %) instead of on all of
+ * them; the pass counts the values below the bound, and when more than `from` are (the bound
+ * missed), the plain quickselect answers. The top ranks are one multiset of numbers whatever the
+ * method, and sorted they are one array. For finite values without −0 or NaN (as the
+ * magnitudes it serves): a NaN has no rank and the two zeros no order between them. `values`
+ * may be rearranged either way.
+ */
+export function topRanks(values: Float64Array, from: number): Float64Array {
+  const n = values.length;
+  if (from >= n) return new Float64Array(0);
+  if (n >= MIN_BRACKETED_TOP) {
+    for (let i = 0; i < SAMPLE; i++) sample[i] = values[Math.floor((i * n) / SAMPLE)];
+    const bound = kthSmallest(sample, Math.max(0, Math.floor((from * SAMPLE) / n) - TOP_MARGIN));
+    if (above.length < n) above = new Float64Array(n);
+    let below = 0, kept = 0;
+    for (let i = 0; i < n; i++) {
+      const x = values[i];
+      above[kept] = x;
+      const high = +(x >= bound);
+      kept += high;
+      below += 1 - high;
+    }
+    if (below <= from) {
+      const top = above.subarray(0, kept);
+      const first = from - below;
+      kthSmallest(top, first);
+      return sortAscending(top.slice(first));
+    }
+  }
+  kthSmallest(values, from);
+  return sortAscending(values.slice(from));
+}
+
+/** Ranges this short are sorted by insertion. */
+const INSERTION_RANGE = 16;
+
+/**
+ * Sorts `values` ascending in place and returns it: the typed array's own `sort()` for values
+ * without NaN or −0 (which it alone orders: NaN last, −0 before +0), by a quicksort with
+ * the comparisons written out. The built-in sort of a typed array compares through a generic
+ * path and took as long for the top 5 % of a series' |z| values as selecting them.
+ */
+export function sortAscending(values: Float64Array): Float64Array {
+  quicksort(values, 0, values.length - 1);
+  return values;
+}
+
+function quicksort(values: Float64Array, low: number, high: number): void {
+  while (high - low >= INSERTION_RANGE) {
+    const pivot = values[(low + high) >> 1];
+    let i = low;
+    let j = high;
+    while (i <= j) {
+      while (values[i] < pivot) i++;
+      while (values[j] > pivot) j--;
+      if (i <= j) {
+        const t = values[i];
+        values[i++] = values[j];
+        values[j--] = t;
+      }
+    }
+    // The shorter side by recursion, the longer by the loop: the stack stays shallow.
+    if (j - low < high - i) {
+      quicksort(values, low, j);
+      low = i;
+    } else {
+      quicksort(values, i, high);
+      high = j;
+    }
+  }
+  for (let i = low + 1; i <= high; i++) {
+    const x = values[i];
+    let j = i - 1;
+    while (j >= low && values[j] > x) {
+      values[j + 1] = values[j];
+      j--;
+    }
+    values[j + 1] = x;
+  }
+}

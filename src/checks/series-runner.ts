@@ -55,9 +55,12 @@ export function seriesChecker(input: CheckInput, resolver: SettingsResolver, fee
       const resolved = seriesChecks.map((check) => resolver.resolve(check, master?.category, series.id));
       const readsMoves = seriesChecks.some((check, c) => check.readsMoves && resolved[c].enabled);
       const context = readsMoves ? { ...base, moves: analyseMoves(series, base, claimingParams(seriesChecks, resolved), scratch) } : base;
-      seriesChecks.forEach((check, c) => {
-        if (resolved[c].enabled) findings.push(...check.run(series, context, resolved[c].params));
-      });
+      for (let c = 0; c < seriesChecks.length; c++) {
+        if (!resolved[c].enabled) continue;
+        // Most checks find nothing in most series: their empty lists are not spread into a call.
+        const found = seriesChecks[c].run(series, context, resolved[c].params);
+        for (const finding of found) findings.push(finding);
+      }
     }
     return findings;
   };

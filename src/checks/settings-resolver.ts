@@ -23,6 +23,12 @@ export interface ResolvedCheck {
 export class SettingsResolver {
   private readonly categories: Map<string, CheckOverrides>;
   private readonly memo = new Map<string, ResolvedCheck>();
+  /**
+   * The same resolutions by the category as the master spells it ('' for none), then check id:
+   * asked for every check of every series, the normalised name and the joined key were a cost of
+   * their own (new strings to build and hash each time).
+   */
+  private readonly byCategory = new Map<string, Map<string, ResolvedCheck>>();
 
   constructor(private readonly settings: CheckSettings) {
     this.categories = new Map(Object.entries(settings.categories ?? {}).map(([name, overrides]) => [normalise(name), overrides]));
@@ -30,6 +36,16 @@ export class SettingsResolver {
 
   resolve(check: Check, category: string | null | undefined, seriesId: string | null): ResolvedCheck {
     const own = seriesId === null ? undefined : this.settings.series?.[seriesId]?.[check.id];
+    const spelled = category || '';
+    let resolved = this.byCategory.get(spelled);
+    if (!resolved) this.byCategory.set(spelled, (resolved = new Map()));
+    let base = resolved.get(check.id);
+    if (!base) resolved.set(check.id, (base = this.base(check, category)));
+    return merge(base, own);
+  }
+
+  /** The check's settings for the category (defaults, then the run's, then the category's). */
+  private base(check: Check, category: string | null | undefined): ResolvedCheck {
     const categoryKey = category ? normalise(category) : '';
     const memoKey = `${check.id}\u0000${categoryKey}`;
     let base = this.memo.get(memoKey);
@@ -37,7 +53,7 @@ export class SettingsResolver {
       base = merge(merge({ enabled: true, params: check.defaults as CheckParams }, this.settings.run?.[check.id]), this.categories.get(categoryKey)?.[check.id]);
       this.memo.set(memoKey, base);
     }
-    return merge(base, own);
+    return base;
   }
 }
 

@@ -30,6 +30,24 @@ describe('check settings', () => {
     expect(resolver.resolve(stale, 'Money Market', 'S1')).toEqual({ enabled: false, params: { min_days: 3, max_chance: 0.01, accrual_max_daily: 0.0005 } });
   });
 
+  it('resolves a check the same however often and in whatever order categories, spellings and series are asked', () => {
+    // The resolver keeps its answers by category as spelled; a fresh resolver per question is the plain form.
+    const settings = parseCheckSettings({
+      run: { stale_value: { min_days: 6 } },
+      categories: { 'money market': { stale_value: { enabled: false, min_days: 9 } }, equity: { late_series: { max_lag_business_days: 3 } } },
+      series: { S1: { stale_value: { min_days: 3 } }, S2: { late_series: { enabled: false } } },
+    });
+    const kept = new SettingsResolver(settings);
+    const categories = [null, undefined, '', 'Money Market', ' money market ', 'MONEY MARKET', 'Equity', 'equity', 'bond'];
+    for (let round = 0; round < 3; round++) {
+      for (const category of round === 1 ? [...categories].reverse() : categories) {
+        for (const seriesId of ['S0', 'S1', 'S2', null]) {
+          for (const check of CHECKS) expect(kept.resolve(check, category, seriesId)).toEqual(new SettingsResolver(settings).resolve(check, category, seriesId));
+        }
+      }
+    }
+  });
+
   it('refuses unknown checks, unknown parameters and wrong types, naming the key path', () => {
     expect(() => parseCheckSettings({ run: { stale_values: { min_days: 4 } } })).toThrow(/unknown key run\.stale_values \(check ids: missing_dates, /);
     expect(() => parseCheckSettings({ series: { S1: { stale_value: { min_dayz: 4 } } } })).toThrow(

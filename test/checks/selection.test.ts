@@ -4,7 +4,7 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { bracketedMedian, medianInPlace } from '../../src/checks/selection.js';
+import { bracketedMedian, medianInPlace, sortAscending, topRanks } from '../../src/checks/selection.js';
 
 const plainMedian = (values: ArrayLike<number>) => medianInPlace(Float64Array.from(values));
 const agrees = (values: ArrayLike<number>) => {
@@ -47,5 +47,61 @@ describe('bracketedMedian', () => {
     expect(bracketedMedian(Float64Array.from({ length: 1000 }, (_, i) => (i === 3 ? NaN : i)))).toBeUndefined();
     expect(bracketedMedian(Float64Array.from({ length: 100 }, (_, i) => i))).toBeUndefined();
     expect(bracketedMedian(Float64Array.from({ length: 1000 }, (_, i) => i + 1))).toBe(500.5);
+  });
+});
+
+/** The plain form `topRanks` replaces: a full sort by value, then ranks `from` on. */
+const plainTopRanks = (values: ArrayLike<number>, from: number) => Array.from(values).sort((a, b) => a - b).slice(from);
+
+describe('topRanks', () => {
+  // Magnitudes: finite, not negative, with many ties (a value repeated, or zeros) or any size.
+  const magnitude = fc.oneof(fc.constantFrom(0, 0.5, 1, 2.5, 8), fc.double({ min: 0, max: 1e6, noNaN: true, noDefaultInfinity: true }), fc.double({ min: 0, max: 3, noNaN: true }));
+  const magnitudes = fc.array(magnitude.map((x) => Math.abs(x)), { minLength: 0, maxLength: 1500 });
+
+  it('gives the sorted values of ranks from … n − 1, as a full sort does, for any from', () => {
+    fc.assert(
+      fc.property(magnitudes, fc.double({ min: 0, max: 1, noNaN: true }), (values, share) => {
+        const from = Math.min(values.length, Math.floor(share * values.length));
+        expect(Array.from(topRanks(Float64Array.from(values), from))).toEqual(plainTopRanks(values, from));
+      }),
+      { numRuns: 400 },
+    );
+  });
+
+  it('gives the top 5 % (and 3 more) of long arrays of |z| as a full sort does', () => {
+    let seed = 11;
+    const random = () => (seed = (seed * 16807) % 2147483647) / 2147483647;
+    for (let trial = 0; trial < 100; trial++) {
+      const n = 500 + 37 * trial;
+      // Fat-tailed magnitudes: a ratio of uniforms, some rounded so that ties occur.
+      const values = Float64Array.from({ length: n }, (_, i) => {
+        const x = Math.abs((random() - 0.5) / (random() + 0.05));
+        return i % 5 === 0 ? Math.round(x * 10) / 10 : x;
+      });
+      const from = Math.max(0, n - Math.floor(0.05 * n) - 3);
+      const expected = plainTopRanks(values, from);
+      expect(Array.from(topRanks(values, from))).toEqual(expected);
+    }
+  });
+
+  it('answers when the bound misses: a sample of the smallest values falls back to the plain selection', () => {
+    // Evenly spaced sample positions hold the largest values, so the bound is far too high.
+    const n = 1024;
+    const values = Float64Array.from({ length: n }, (_, i) => (i % 8 === 0 ? 1000 + i : i / 8));
+    const from = 100;
+    expect(Array.from(topRanks(values.slice(), from))).toEqual(plainTopRanks(values, from));
+    expect(topRanks(new Float64Array(0), 0)).toEqual(new Float64Array(0));
+  });
+});
+
+describe('sortAscending', () => {
+  it('orders finite values without −0 exactly as the typed array sort does', () => {
+    const value = fc.oneof(fc.constantFrom(0, 1, -1, 2.5), fc.double({ noNaN: true, noDefaultInfinity: true }).filter((x) => !Object.is(x, -0)));
+    fc.assert(
+      fc.property(fc.array(value, { maxLength: 600 }), (values) => {
+        expect(Array.from(sortAscending(Float64Array.from(values)))).toEqual(Array.from(Float64Array.from(values).sort()));
+      }),
+      { numRuns: 400 },
+    );
   });
 });
