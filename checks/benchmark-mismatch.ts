@@ -244,13 +244,26 @@ function quartersIn(weeks: readonly Week[]): number {
 /**
  * R² of the fund's weekly returns against the benchmark's over the weeks from each judged start
  * (quarter q: weeks 13q…end) to the end, the only starts the judges read; NaN where fewer than
- * `minWeeks` weeks the benchmark prices exactly remain. One pass from the end with running sums.
+ * `minWeeks` weeks the benchmark prices exactly remain.
  */
 function suffixFits(weeks: Week[], benchmark: Priced, minWeeks: number): Float64Array {
-  const fits = new Float64Array(quartersIn(weeks)).fill(NaN);
+  const moves = new Float64Array(weeks.length);
+  for (let i = 0; i < weeks.length; i++) moves[i] = weekMove(weeks[i], benchmark);
+  const fits = new Float64Array(quartersIn(weeks));
+  suffixFitsOf(weeks, moves, minWeeks, fits, 0);
+  return fits;
+}
+
+/**
+ * `suffixFits` with the benchmark's move over each week given (`moves[i]` over week i, NaN when
+ * it has not both dates), written to `fits` from `at` on, one per quarter. One pass from the end
+ * with running sums.
+ */
+function suffixFitsOf(weeks: Week[], moves: Float64Array, minWeeks: number, fits: Float64Array, at: number): void {
+  fits.fill(NaN, at, at + quartersIn(weeks));
   let n = 0, sx = 0, sy = 0, sxx = 0, syy = 0, sxy = 0;
   for (let i = weeks.length - 1; i >= 0; i--) {
-    const y = weekMove(weeks[i], benchmark);
+    const y = moves[i];
     if (Number.isFinite(y)) {
       const x = weeks[i].fund;
       n++;
@@ -260,17 +273,12 @@ function suffixFits(weeks: Week[], benchmark: Priced, minWeeks: number): Float64
       syy += y * y;
       sxy += x * y;
     }
-    if (n >= minWeeks && i % QUARTER_WEEKS === 0) fits[i / QUARTER_WEEKS] = rSquared(n, sx, sy, sxx, syy, sxy);
+    if (n < minWeeks || i % QUARTER_WEEKS !== 0) continue;
+    const cxy = sxy - (sx * sy) / n;
+    const cxx = sxx - (sx * sx) / n;
+    const cyy = syy - (sy * sy) / n;
+    fits[at + i / QUARTER_WEEKS] = cxx > 0 && cyy > 0 ? (cxy * cxy) / (cxx * cyy) : NaN;
   }
-  return fits;
-}
-
-/** R² of y on x from the running sums of n pairs; NaN when either has no spread. */
-function rSquared(n: number, sx: number, sy: number, sxx: number, syy: number, sxy: number): number {
-  const cxy = sxy - (sx * sy) / n;
-  const cxx = sxx - (sx * sx) / n;
-  const cyy = syy - (sy * sy) / n;
-  return cxx > 0 && cyy > 0 ? (cxy * cxy) / (cxx * cyy) : NaN;
 }
 
 /** `suffixFits` of every benchmark of the frame, in one array: benchmark b's fit from quarter q at `b × quarters + q`. */
@@ -278,7 +286,7 @@ class BenchmarkFits {
   readonly r2: Float64Array;
 
   constructor(readonly ids: readonly string[], readonly quarters: number) {
-    this.r2 = new Float64Array(ids.length * quarters).fill(NaN);
+    this.r2 = new Float64Array(ids.length * quarters);
   }
 
   /** Benchmark `b`'s fits, by quarter. */
@@ -288,34 +296,17 @@ class BenchmarkFits {
 }
 
 /**
- * `suffixFits` of every benchmark of the frame at once. The benchmarks' moves over each week
- * come from the tables' rows (`spansMoves`): funds of one calendar share their weeks, so each
- * week's moves of every benchmark are computed once, not once per fund and benchmark. One pass
- * from the end keeps every benchmark's running sums side by side, each taking the same terms in
- * the same order as `suffixFits` does for one benchmark.
+ * `suffixFits` of every benchmark of the frame. The benchmarks' moves over each week come from
+ * the tables' rows (`spansMoves`): funds of one calendar share their weeks, so each week's moves
+ * of every benchmark are computed once, not once per fund and benchmark.
  */
 function everyBenchmarkFits(weeks: Week[], tables: FrameTables, minWeeks: number): BenchmarkFits {
-  const ids = tables.frame.ids;
-  const width = ids.length;
-  const fits = new BenchmarkFits(ids, quartersIn(weeks));
-  const n = new Float64Array(width), sx = new Float64Array(width), sy = new Float64Array(width);
-  const sxx = new Float64Array(width), syy = new Float64Array(width), sxy = new Float64Array(width);
-  for (let i = weeks.length - 1; i >= 0; i--) {
-    const moves = spansMoves(tables, weeks[i].start, weeks[i].end);
-    const x = weeks[i].fund;
-    const judged = i % QUARTER_WEEKS === 0;
-    for (let b = 0; b < width; b++) {
-      const y = moves[b];
-      if (Number.isFinite(y)) {
-        n[b]++;
-        sx[b] += x;
-        sy[b] += y;
-        sxx[b] += x * x;
-        syy[b] += y * y;
-        sxy[b] += x * y;
-      }
-      if (judged && n[b] >= minWeeks) fits.r2[b * fits.quarters + i / QUARTER_WEEKS] = rSquared(n[b], sx[b], sy[b], sxx[b], syy[b], sxy[b]);
-    }
+  const fits = new BenchmarkFits(tables.frame.ids, quartersIn(weeks));
+  const rows = weeks.map((week) => spansMoves(tables, week.start, week.end));
+  const moves = new Float64Array(weeks.length);
+  for (let b = 0; b < fits.ids.length; b++) {
+    for (let i = 0; i < weeks.length; i++) moves[i] = rows[i][b];
+    suffixFitsOf(weeks, moves, minWeeks, fits.r2, b * fits.quarters);
   }
   return fits;
 }
