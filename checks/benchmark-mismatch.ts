@@ -282,7 +282,7 @@ function suffixFitsOf(weeks: Week[], moves: Float64Array, minWeeks: number, fits
 }
 
 /** `suffixFits` of every benchmark of the frame, in one array: benchmark b's fit from quarter q at `b × quarters + q`. */
-class BenchmarkFits {
+export class BenchmarkFits {
   readonly r2: Float64Array;
 
   constructor(readonly ids: readonly string[], readonly quarters: number) {
@@ -300,7 +300,7 @@ class BenchmarkFits {
  * the tables' rows (`spansMoves`): funds of one calendar share their weeks, so each week's moves
  * of every benchmark are computed once, not once per fund and benchmark.
  */
-function everyBenchmarkFits(weeks: Week[], tables: FrameTables, minWeeks: number): BenchmarkFits {
+export function everyBenchmarkFits(weeks: Week[], tables: FrameTables, minWeeks: number): BenchmarkFits {
   const fits = new BenchmarkFits(tables.frame.ids, quartersIn(weeks));
   const rows = weeks.map((week) => spansMoves(tables, week.start, week.end));
   const moves = new Float64Array(weeks.length);
