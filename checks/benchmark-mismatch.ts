@@ -281,7 +281,7 @@ function suffixFitsOf(weeks: Week[], moves: Float64Array, minWeeks: number, fits
   }
 }
 
-/** `suffixFits` of every benchmark of the frame, in one array: benchmark b's fit from quarter q at `b × quarters + q`. */
+/** `suffixFits` of every benchmark of the frame, in one array: benchmark b's fit from quarter q at `b × quarters + q` (exported for its test). */
 export class BenchmarkFits {
   readonly r2: Float64Array;
 
