@@ -21,7 +21,7 @@ interface MismatchParams {
 /** Categories that promise to track an index; matched case-insensitively on whole words. */
 const INDEX_CATEGORY = /\b(index|indexed|tracker|passive|etf)\b/i;
 
-interface Week {
+export interface Week {
   start: number;
   end: number;
   fund: number;
@@ -60,7 +60,7 @@ export const benchmarkMismatch: SeriesCheck<MismatchParams> = {
     if (!benchmark || !benchmarks) return [];
     // The runner's tables, shared by every fund; a check run on its own makes its own.
     const tables = context.benchmarkTables ?? new FrameTables(benchmarks);
-    const weeks = weeklyReturns(series, movesOf(series, context).model).slice(-params.window_weeks);
+    const weeks = lastWeeklyReturns(series, movesOf(series, context).model, params.window_weeks);
     if (weeks.length < params.min_weeks) return [];
     const isIndexFund = INDEX_CATEGORY.test(master?.category ?? '');
     const verdict = isIndexFund ? judgeIndexFund(weeks, benchmark, tables, params) : judgeActiveFund(weeks, benchmark, tables, params);
@@ -125,21 +125,23 @@ function assignedOf(benchmark: SeriesSlice, tables: FrameTables): Priced {
 function judgeIndexFund(weeks: Week[], benchmark: SeriesSlice, tables: FrameTables, params: MismatchParams): Verdict | null {
   const assigned = suffixFits(weeks, assignedOf(benchmark, tables), params.min_weeks)[0];
   if (!(assigned < params.index_r2)) return null;
-  const better = bestAt(alternativeFits(weeks, tables, benchmark.id, params.min_weeks), 0);
+  const better = bestOther(everyBenchmarkFits(weeks, tables, params.min_weeks), benchmark.id, 0);
   return better && better.r2 >= params.index_r2 ? { assigned, better, from: 0 } : null;
 }
 
 /** The weeks from the quarter where another benchmark explains the fund best, if one does. */
 function judgeActiveFund(weeks: Week[], benchmark: SeriesSlice, tables: FrameTables, params: MismatchParams): Verdict | null {
   const priced = assignedOf(benchmark, tables);
-  const assignedFits = suffixFits(weeks, priced, params.min_weeks);
-  const others = alternativeFits(weeks, tables, benchmark.id, params.min_weeks);
+  const fits = everyBenchmarkFits(weeks, tables, params.min_weeks);
+  // The assigned benchmark's row of the fits is made of the very moves `weekMove` gives it.
+  const assignedFits = priced.index >= 0 ? fits.of(priced.index) : suffixFits(weeks, priced, params.min_weeks);
   let verdict: Verdict | null = null;
   let bestScore = 0;
-  for (let from = 0; from < weeks.length; from += QUARTER_WEEKS) {
-    const assigned = assignedFits[from];
+  for (let quarter = 0; quarter < assignedFits.length; quarter++) {
+    const from = quarter * QUARTER_WEEKS;
+    const assigned = assignedFits[quarter];
     if (!Number.isFinite(assigned)) break;
-    const better = bestAt(others, from);
+    const better = bestOther(fits, benchmark.id, quarter);
     if (!better || better.r2 < params.good_r2 || !(better.r2 >= assigned + params.min_sibling_gain)) continue;
     const poorAndBeaten = from === 0 && assigned < params.poor_r2 && better.r2 >= assigned + params.min_gain;
     const t = addedByOther(weeks, from, priced, pricedAt(tables, better.index));
@@ -200,44 +202,65 @@ function weekMove(week: Week, benchmark: Priced): number {
   return benchmark.tables ? spanLogMove(benchmark.tables, benchmark.index, p, q) : Math.log(values[q] / values[p]);
 }
 
-/** Sums of the steps ending in each ISO week; weeks holding a gross error are left out. */
-function weeklyReturns(series: SeriesSlice, returns: ResidualMoves): Week[] {
+/**
+ * The fund's last `count` weekly returns: sums of the steps ending in each ISO week, weeks
+ * holding a gross error left out, the latest `count` of those kept (all when fewer). Found from
+ * the end, so the years before the window are never read; each week's steps are still summed
+ * from its first, as a pass from the start sums them.
+ */
+export function lastWeeklyReturns(series: SeriesSlice, returns: ResidualMoves, count: number): Week[] {
   const weeks: Week[] = [];
-  let currentWeek = NaN;
-  let gross = false;
-  for (let k = 0; k < returns.count; k++) {
-    const end = series.dates[returns.to[k]];
-    const week = isoWeekStart(end);
-    if (week !== currentWeek) {
-      if (gross) weeks.pop();
-      weeks.push({ start: series.dates[returns.from[k]], end, fund: 0 });
-      currentWeek = week;
-      gross = false;
+  for (let last = returns.count - 1; last >= 0 && weeks.length < count; ) {
+    const first = firstStepOfWeek(series, returns, last);
+    if (!holdsGrossError(returns, first, last)) {
+      let fund = 0;
+      for (let k = first; k <= last; k++) fund += returns.fund[k];
+      weeks.push({ start: series.dates[returns.from[first]], end: series.dates[returns.to[last]], fund });
     }
-    const current = weeks[weeks.length - 1];
-    current.end = end;
-    current.fund += returns.fund[k];
-    if (Math.abs(returns.z[k]) >= GROSS_Z && Math.abs(returns.residual[k]) > 0.05) gross = true;
+    last = first - 1;
   }
-  if (gross) weeks.pop();
-  return weeks;
+  return weeks.reverse();
+}
+
+/** The first of the steps that end in the same ISO week as step `last`. */
+function firstStepOfWeek(series: SeriesSlice, returns: ResidualMoves, last: number): number {
+  const week = isoWeekStart(series.dates[returns.to[last]]);
+  let first = last;
+  while (first > 0 && isoWeekStart(series.dates[returns.to[first - 1]]) === week) first--;
+  return first;
+}
+
+/** True when a step of `first`…`last` is a gross error: |z| ≥ GROSS_Z and a residual beyond 0.05. */
+function holdsGrossError(returns: ResidualMoves, first: number, last: number): boolean {
+  for (let k = first; k <= last; k++) if (Math.abs(returns.z[k]) >= GROSS_Z && Math.abs(returns.residual[k]) > 0.05) return true;
+  return false;
+}
+
+/** Starts judged: a whole number of quarters into the weeks. */
+function quartersIn(weeks: readonly Week[]): number {
+  return Math.ceil(weeks.length / QUARTER_WEEKS);
 }
 
 /**
- * R² of the fund's weekly returns against the benchmark's over weeks from…end, for every
- * start `from` that is a whole number of quarters (QUARTER_WEEKS) into the weeks, the only
- * starts the judges read (NaN at the others, and where fewer than `minWeeks` weeks the
- * benchmark prices exactly remain). One pass from the end with running sums.
+ * R² of the fund's weekly returns against the benchmark's over the weeks from each judged start
+ * (quarter q: weeks 13q…end) to the end, the only starts the judges read; NaN where fewer than
+ * `minWeeks` weeks the benchmark prices exactly remain.
  */
 function suffixFits(weeks: Week[], benchmark: Priced, minWeeks: number): Float64Array {
   const moves = new Float64Array(weeks.length);
   for (let i = 0; i < weeks.length; i++) moves[i] = weekMove(weeks[i], benchmark);
-  return suffixFitsOf(weeks, moves, minWeeks);
+  const fits = new Float64Array(quartersIn(weeks));
+  suffixFitsOf(weeks, moves, minWeeks, fits, 0);
+  return fits;
 }
 
-/** `suffixFits` with the benchmark's move over each week given: `moves[i]` over week i (NaN when it has not both dates). */
-function suffixFitsOf(weeks: Week[], moves: Float64Array, minWeeks: number): Float64Array {
-  const fits = new Float64Array(weeks.length).fill(NaN);
+/**
+ * `suffixFits` with the benchmark's move over each week given (`moves[i]` over week i, NaN when
+ * it has not both dates), written to `fits` from `at` on, one per quarter. One pass from the end
+ * with running sums.
+ */
+function suffixFitsOf(weeks: Week[], moves: Float64Array, minWeeks: number, fits: Float64Array, at: number): void {
+  fits.fill(NaN, at, at + quartersIn(weeks));
   let n = 0, sx = 0, sy = 0, sxx = 0, syy = 0, sxy = 0;
   for (let i = weeks.length - 1; i >= 0; i--) {
     const y = moves[i];
@@ -254,42 +277,46 @@ function suffixFitsOf(weeks: Week[], moves: Float64Array, minWeeks: number): Flo
     const cxy = sxy - (sx * sy) / n;
     const cxx = sxx - (sx * sx) / n;
     const cyy = syy - (sy * sy) / n;
-    fits[i] = cxx > 0 && cyy > 0 ? (cxy * cxy) / (cxx * cyy) : NaN;
+    fits[at + i / QUARTER_WEEKS] = cxx > 0 && cyy > 0 ? (cxy * cxy) / (cxx * cyy) : NaN;
+  }
+}
+
+/** `suffixFits` of every benchmark of the frame, in one array: benchmark b's fit from quarter q at `b × quarters + q` (exported for its test). */
+export class BenchmarkFits {
+  readonly r2: Float64Array;
+
+  constructor(readonly ids: readonly string[], readonly quarters: number) {
+    this.r2 = new Float64Array(ids.length * quarters);
+  }
+
+  /** Benchmark `b`'s fits, by quarter. */
+  of(b: number): Float64Array {
+    return this.r2.subarray(b * this.quarters, (b + 1) * this.quarters);
+  }
+}
+
+/**
+ * `suffixFits` of every benchmark of the frame. The benchmarks' moves over each week come from
+ * the tables' rows (`spansMoves`): funds of one calendar share their weeks, so each week's moves
+ * of every benchmark are computed once, not once per fund and benchmark.
+ */
+export function everyBenchmarkFits(weeks: Week[], tables: FrameTables, minWeeks: number): BenchmarkFits {
+  const fits = new BenchmarkFits(tables.frame.ids, quartersIn(weeks));
+  const rows = weeks.map((week) => spansMoves(tables, week.start, week.end));
+  const moves = new Float64Array(weeks.length);
+  for (let b = 0; b < fits.ids.length; b++) {
+    for (let i = 0; i < weeks.length; i++) moves[i] = rows[i][b];
+    suffixFitsOf(weeks, moves, minWeeks, fits.r2, b * fits.quarters);
   }
   return fits;
 }
 
-/**
- * Every other benchmark's R² per start (see `suffixFits`). The benchmarks' moves over each week
- * come from the tables' rows (`spansMoves`): funds of one calendar share their weeks, so each
- * week's moves of every benchmark are computed once, not once per fund and benchmark.
- */
-function alternativeFits(weeks: Week[], tables: FrameTables, assignedId: string, minWeeks: number): Alternative[] {
-  const benchmarks = tables.frame;
-  const rows = weeks.map((week) => spansMoves(tables, week.start, week.end));
-  const moves = new Float64Array(weeks.length);
-  const others: Alternative[] = [];
-  for (let b = 0; b < benchmarks.ids.length; b++) {
-    if (benchmarks.ids[b] === assignedId) continue;
-    for (let i = 0; i < weeks.length; i++) moves[i] = rows[i][b];
-    others.push({ id: benchmarks.ids[b], index: b, fits: suffixFitsOf(weeks, moves, minWeeks) });
-  }
-  return others;
-}
-
-interface Alternative {
-  id: string;
-  /** Position in the benchmark frame. */
-  index: number;
-  fits: Float64Array;
-}
-
-/** The other benchmark with the highest R² over the weeks from `from`. */
-function bestAt(others: readonly Alternative[], from: number): { id: string; index: number; r2: number } | undefined {
+/** The benchmark other than the assigned one with the highest R² from quarter `quarter`. */
+function bestOther(fits: BenchmarkFits, assignedId: string, quarter: number): { id: string; index: number; r2: number } | undefined {
   let best: { id: string; index: number; r2: number } | undefined;
-  for (const other of others) {
-    const r2 = other.fits[from];
-    if (Number.isFinite(r2) && (!best || r2 > best.r2)) best = { id: other.id, index: other.index, r2 };
+  for (let b = 0; b < fits.ids.length; b++) {
+    const r2 = fits.r2[b * fits.quarters + quarter];
+    if (fits.ids[b] !== assignedId && Number.isFinite(r2) && (!best || r2 > best.r2)) best = { id: fits.ids[b], index: b, r2 };
   }
   return best;
 }

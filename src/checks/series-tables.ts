@@ -120,10 +120,12 @@ export function spansMoves(tables: FrameTables, start: number, end: number): Flo
  * ln(values[q] / values[p]) of series `index` of `tables`' frame, computed as that very expression and
  * remembered with `p` for the last `q` asked: every fund of a calendar asks for the same weeks
  * of every benchmark, and most funds share their calendar. This serves one benchmark at a time
- * (the assigned one, all most index funds ever read); `spansMoves` serves the search over every
- * other benchmark. Reading the assigned benchmark from `spansMoves`' rows instead, to keep one
- * mechanism, cost more checks CPU at 1,000 series (2.35 s against 2.03 s, medians of 4 and 3
- * alternating runs, 2026-12-03): rows of every benchmark made for funds that need one.
+ * (an index fund's assigned one, all most index funds ever read); `spansMoves` serves the search
+ * over every benchmark, and an active fund, which reads every row anyway, takes its assigned
+ * benchmark's moves from the rows too. Reading an index fund's assigned benchmark from
+ * `spansMoves`' rows as well, to keep one mechanism, cost more checks CPU at 1,000 series (2.35 s
+ * against 2.03 s, medians of 4 and 3 alternating runs, 2026-12-03): rows of every benchmark made
+ * for funds that need one.
  */
 export function spanLogMove(tables: FrameTables, index: number, p: number, q: number): number {
   const spans = tables.spanMoves(index);
