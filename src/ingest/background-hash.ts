@@ -67,7 +67,17 @@ export class BackgroundHash {
 
   /** Blocks until every run added so far is hashed, so its bytes may be overwritten. */
   waitUntilHashed(): void {
-    this.waitFor(RUNS_HASHED, this.runsSent);
+    this.waitUntilRunsHashed(this.runsSent);
+  }
+
+  /** Runs added so far (a count to give `waitUntilRunsHashed` later). */
+  get runsAdded(): number {
+    return this.runsSent;
+  }
+
+  /** Blocks until the first `runs` runs added are hashed, so their bytes may be overwritten. */
+  waitUntilRunsHashed(runs: number): void {
+    this.waitFor(RUNS_HASHED, runs);
   }
 
   /** The hex SHA-256 of every byte added, in order; ends the hashing thread. */

@@ -1,11 +1,11 @@
 import { BooleanBuilder, DateBuilder, NumberBuilder, TextBuilder, type ColumnBuilder } from './column-builders.js';
 import { CsvRowScanner } from './csv-rows.js';
-import { sharedInt32Array } from './shared-columns.js';
+import { sharedFloat64Array, sharedInt32Array } from './shared-columns.js';
 import { outsideRange, rangeReason, shownColumnNames } from './columnar-ingest.js';
 import { resolveDateFormat, UNSETTLED } from './date-order.js';
 import { InputError, quoteInput } from './errors.js';
 import { cleanIdentifier, type IdentifierMode } from './identifiers.js';
-import { BACKGROUND_HASH_BYTES, FileWindow, WINDOW_BYTES, wholeWindow, type CsvWindow } from './csv-window.js';
+import { wholeWindow, type CsvWindow } from './csv-window.js';
 import { DEFAULT_READ_LIMITS, limitsForKind, type ReadLimits } from './limits.js';
 import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
 import type { RejectedRow } from './records.js';
@@ -54,29 +54,6 @@ interface ColumnPlan {
   readonly idCodes: Map<string, number> | null;
 }
 
-/** Reads one canonical CSV file through a window (csv-window.ts); the SHA-256 is of the bytes parsed. */
-export function readCsvFile(path: string, kind: FileKind, profile: FeedProfile, limits: ReadLimits = DEFAULT_READ_LIMITS): IngestResult {
-  return readCsvSource(path, kind, profile, limits).result;
-}
-
-/** `readCsvFile` with the SHA-256 of the bytes it parsed. */
-export function readCsvSource(
-  path: string,
-  kind: FileKind,
-  profile: FeedProfile,
-  limits: ReadLimits = DEFAULT_READ_LIMITS,
-  windowBytes = WINDOW_BYTES,
-  backgroundHashBytes = BACKGROUND_HASH_BYTES,
-): { result: IngestResult; sha256: string } {
-  const window = FileWindow.open(path, limits.maxInputBytes, windowBytes, backgroundHashBytes);
-  try {
-    const result = readCsvWindow(window, path, kind, profile, limits);
-    return { result, sha256: window.sha256() };
-  } finally {
-    window.close();
-  }
-}
-
 /**
  * Reads one canonical CSV file. Every data row is either accepted into the typed columns or
  * rejected with its line, its raw text and the reason; blank lines are not data rows.
@@ -91,24 +68,17 @@ export function readCsvBuffer(
   return readCsvWindow(wholeWindow(Buffer.from(input.buffer, input.byteOffset, input.byteLength)), fileName, kind, profile, allLimits);
 }
 
-function readCsvWindow(window: CsvWindow, fileName: string, kind: FileKind, profile: FeedProfile, allLimits: ReadLimits): IngestResult {
-  const limits = limitsForKind(kind, allLimits);
-  const quote = profile.quote.charCodeAt(0);
-  wholeFirstLine(window);
-  const begin = window.bytes[0] === 0xef && window.bytes[1] === 0xbb && window.bytes[2] === 0xbf ? 3 : 0;
-  const delimiter = chooseDelimiter(window.bytes, begin, profile, fileName);
-  const header = wholeHeader(window, begin, delimiter, quote, fileName, kind, limits.maxHeaderColumns);
-  const plans = planColumns(header.names, kind, profile, fileName);
-  const dateFormat = settledDateFormat(window, header, delimiter, quote, plans, profile, fileName);
-  const rules = { limits, identifiers: profile.identifiers ?? 'strict' };
-  const reader = new RowReader(window.bytes, fileName, plans, dateFormat, numberStyle(profile.decimal, profile.thousands), quote, rules);
-  reader.reserve(estimateRows(window.bytes, header.headerStart, window.totalBytes));
-  const fieldCount = header.names.length;
-  let scanner = new CsvRowScanner(window.bytes, header.headerStart, delimiter, quote, fieldCount + 1);
-  scanner.next(); // the header row itself
+/** Reads a file's rows through its window (csv-window.ts), on this thread. */
+export function readCsvWindow(window: CsvWindow, fileName: string, kind: FileKind, profile: FeedProfile, allLimits: ReadLimits): IngestResult {
+  const layout = settleLayout(window, fileName, kind, profile, allLimits);
+  const reader = rowReaderFor(layout, window.bytes);
+  reader.reserve(estimateRows(window.bytes, layout.headerStart, window.totalBytes));
+  const { delimiter, quote } = layout;
+  const fieldCount = layout.names.length;
+  let scanner = new CsvRowScanner(window.bytes, layout.firstRow, delimiter, quote, fieldCount + 1);
   const plainLane = reader.canTakePlainRows();
-  let position = scanner.nextPosition;
-  let line = scanner.nextLineNumber;
+  let position = layout.firstRow;
+  let line = layout.firstLine;
   for (;;) {
     if (plainLane) ({ position, line } = reader.takePlainRows(position, line, fieldCount, delimiter, plainEnd(window)));
     scanner.seek(position, line);
@@ -127,6 +97,150 @@ function readCsvWindow(window: CsvWindow, fileName: string, kind: FileKind, prof
     line = scanner.nextLineNumber;
   }
   return reader.finish(kind);
+}
+
+/**
+ * What the header and the first window settle for every row of a file: the delimiter, the
+ * header's names, the date order and where the first data row starts. It crosses to the parsing
+ * thread of a file read on two threads (csv-ring.ts), so it holds only plain data.
+ */
+export interface CsvLayout {
+  readonly fileName: string;
+  readonly kind: FileKind;
+  readonly profile: FeedProfile;
+  /** The limits of every kind, as the caller gave them (`limitsForKind` picks this kind's). */
+  readonly limits: ReadLimits;
+  readonly delimiter: number;
+  readonly quote: number;
+  readonly names: readonly string[];
+  readonly dateFormat: DateFormat;
+  readonly headerStart: number;
+  /** Where the first data row starts in the first window, and its line. */
+  readonly firstRow: number;
+  readonly firstLine: number;
+}
+
+/** Reads the header from the first window (growing it while the header needs) and settles the layout. */
+export function settleLayout(window: CsvWindow, fileName: string, kind: FileKind, profile: FeedProfile, allLimits: ReadLimits): CsvLayout {
+  const limits = limitsForKind(kind, allLimits);
+  const quote = profile.quote.charCodeAt(0);
+  wholeFirstLine(window);
+  const begin = window.bytes[0] === 0xef && window.bytes[1] === 0xbb && window.bytes[2] === 0xbf ? 3 : 0;
+  const delimiter = chooseDelimiter(window.bytes, begin, profile, fileName);
+  const header = wholeHeader(window, begin, delimiter, quote, fileName, kind, limits.maxHeaderColumns);
+  const plans = planColumns(header.names, kind, profile, fileName);
+  const dateFormat = settledDateFormat(window, header, delimiter, quote, plans, profile, fileName);
+  const scanner = new CsvRowScanner(window.bytes, header.headerStart, delimiter, quote, header.names.length + 1);
+  scanner.next(); // the header row itself
+  return {
+    fileName,
+    kind,
+    profile,
+    limits: allLimits,
+    delimiter,
+    quote,
+    names: header.names,
+    dateFormat,
+    headerStart: header.headerStart,
+    firstRow: scanner.nextPosition,
+    firstLine: scanner.nextLineNumber,
+  };
+}
+
+/** A row reader with fresh columns (and so a dictionary of its own) for rows of a file of this layout. */
+function rowReaderFor(layout: CsvLayout, bytes: Buffer): RowReader {
+  const { profile } = layout;
+  const plans = planColumns(layout.names, layout.kind, profile, layout.fileName);
+  const rules = { limits: limitsForKind(layout.kind, layout.limits), identifiers: profile.identifiers ?? 'strict' };
+  return new RowReader(bytes, layout.fileName, plans, layout.dateFormat, numberStyle(profile.decimal, profile.thousands), layout.quote, rules);
+}
+
+/**
+ * The rows of one window of a file read on two threads (csv-ring.ts), into columns of its own:
+ * codes of a dictionary of its own, lines counted from `startLine`, rejected rows in order.
+ * The window ends just after a line feed (or is the file's last), and a row starts at `start`.
+ * A row whose quoted field finds no closing quote before the window's end might go on in the next
+ * window, as a quoted field may span lines: then the window answers `spilled`, and its rows (and
+ * every later window's, which assumed a row starts where it starts) cannot be used.
+ */
+export function readWindowRows(layout: CsvLayout, bytes: Buffer, start: number, startLine: number, final: boolean, arrays?: WindowArrays): WindowRows {
+  const reader = rowReaderFor(layout, bytes);
+  if (arrays) reader.adopt(arrays);
+  reader.reserve(estimateRows(bytes, start, bytes.length));
+  const { delimiter, quote } = layout;
+  const fieldCount = layout.names.length;
+  const scanner = new CsvRowScanner(bytes, start, delimiter, quote, fieldCount + 1);
+  const plainLane = reader.canTakePlainRows();
+  let position = start;
+  let line = startLine;
+  for (;;) {
+    // The window ends just after a line feed, so every plain row in it is whole.
+    if (plainLane) ({ position, line } = reader.takePlainRows(position, line, fieldCount, delimiter, bytes.length));
+    scanner.seek(position, line);
+    if (!scanner.next()) break;
+    if (!final && scanner.quoteRanOut) return SPILLED;
+    if (!scanner.isBlank()) reader.take(scanner, fieldCount);
+    position = scanner.nextPosition;
+    line = scanner.nextLineNumber;
+  }
+  return reader.windowRows(line);
+}
+
+/**
+ * Arrays a window's rows are read into, kept with a slot of the ring and reused window after
+ * window (csv-ring.ts). Fresh memory costs a page fault per 4 KiB the first time it is written:
+ * fresh columns for every window of the NAV file cost about as much CPU as the second thread saved.
+ * On shared memory, so the worker's rows reach the main thread without a copy.
+ */
+export interface WindowArrays {
+  readonly lines: Int32Array;
+  /** In the order of `columnsOfLayout`. */
+  readonly columns: ReadonlyArray<Int32Array | Float64Array | Uint8Array>;
+}
+
+/**
+ * Arrays for the rows of any window of `windowBytes` bytes: an accepted row has every field, so
+ * it takes at least a byte per field (its delimiters and its line ending), the file's last row
+ * excepted. Only the pages the rows are written to take memory.
+ */
+export function windowArraysFor(layout: CsvLayout, windowBytes: number): WindowArrays {
+  const rows = Math.floor(windowBytes / Math.max(1, layout.names.length)) + 1;
+  const columns = columnsOfLayout(layout).map(({ builder }) => {
+    if (builder instanceof NumberBuilder) return sharedFloat64Array(rows);
+    if (builder instanceof BooleanBuilder) return new Uint8Array(new SharedArrayBuffer(rows));
+    return sharedInt32Array(rows);
+  });
+  return { lines: sharedInt32Array(rows), columns };
+}
+
+/** One column of a window's rows: the builder's arrays, of which the window's first `accepted` rows count. */
+export type WindowColumn = { readonly values: Int32Array | Float64Array | Uint8Array } | { readonly codes: Int32Array; readonly dictionary: readonly string[] };
+
+/** What one window's rows give; its lines are counted from the line it was read from. */
+export interface WindowRows {
+  readonly spilled: boolean;
+  readonly read: number;
+  readonly accepted: number;
+  readonly lines: Int32Array;
+  /** The line after the window's last (the window's lines are `startLine` up to it). */
+  readonly nextLine: number;
+  readonly rejected: readonly RejectedRow[];
+  /** In the order of `columnsOfLayout`. */
+  readonly columns: readonly WindowColumn[];
+}
+
+const SPILLED: WindowRows = { spilled: true, read: 0, accepted: 0, lines: new Int32Array(0), nextLine: 0, rejected: [], columns: [] };
+
+/** The canonical columns a file of this layout fills, by name, with an empty builder each, in the order of `WindowRows.columns`. */
+export function columnsOfLayout(layout: CsvLayout): Array<{ readonly name: string; readonly builder: ColumnBuilder }> {
+  return columnsOfPlans(planColumns(layout.names, layout.kind, layout.profile, layout.fileName));
+}
+
+function columnsOfPlans(plans: readonly ColumnPlan[]): Array<{ readonly name: string; readonly builder: ColumnBuilder }> {
+  return plans.flatMap((plan) => {
+    const column = { name: plan.spec.name, builder: plan.builder };
+    return plan.textCopy ? [column, { name: `${plan.spec.name}_text`, builder: plan.textCopy }] : [column];
+  });
 }
 
 /** Where plain rows may be read up to: the end of the input, or just after the window's last line feed. */
@@ -172,7 +286,7 @@ function settledDateFormat(
  * Rows to reserve room for, from the average line length of the first 64 KiB and the size of
  * the whole input, so the columns are allocated once instead of doubling twenty times.
  */
-function estimateRows(bytes: Uint8Array, begin: number, totalBytes: number): number {
+export function estimateRows(bytes: Uint8Array, begin: number, totalBytes: number): number {
   const sampleEnd = Math.min(bytes.length, begin + 65536);
   let lineFeeds = 0;
   for (let i = begin; i < sampleEnd; i++) if (bytes[i] === LF) lineFeeds++;
@@ -666,16 +780,34 @@ class RowReader {
     }
   }
 
+  /** Reads rows into these arrays (which are long enough, or grown like the reader's own). */
+  adopt(arrays: WindowArrays): void {
+    this.lines = arrays.lines;
+    columnsOfPlans(this.plans).forEach(({ builder }, k) => {
+      const array = arrays.columns[k];
+      if (builder instanceof TextBuilder) builder.codes = array as Int32Array;
+      else (builder as unknown as { values: typeof array }).values = array;
+    });
+  }
+
+  /** The rows read so far as one window's (`readWindowRows`), without finishing the columns. */
+  windowRows(nextLine: number): WindowRows {
+    const columns = columnsOfPlans(this.plans).map(({ builder }) => windowColumn(builder));
+    return { spilled: false, read: this.read, accepted: this.accepted, lines: this.lines, nextLine, rejected: this.rejected, columns };
+  }
+
   finish(kind: FileKind): IngestResult {
     const columns: Record<string, Column> = {};
-    for (const plan of this.plans) {
-      columns[plan.spec.name] = plan.builder.finish(this.accepted);
-      if (plan.textCopy) columns[`${plan.spec.name}_text`] = plan.textCopy.finish(this.accepted);
-    }
+    for (const { name, builder } of columnsOfPlans(this.plans)) columns[name] = builder.finish(this.accepted);
     const rows = { read: this.read, accepted: this.accepted, rejected: this.rejected.length };
     const table = { kind, length: this.accepted, lines: this.lines.subarray(0, this.accepted), columns };
     return { file: this.fileName, kind, table, rejected: this.rejected, rows };
   }
+}
+
+function windowColumn(builder: ColumnBuilder): WindowColumn {
+  if (builder instanceof TextBuilder) return { codes: builder.codes, dictionary: builder.dictionary };
+  return { values: (builder as DateBuilder | NumberBuilder | BooleanBuilder).values };
 }
 
 function isBlankField(bytes: Uint8Array, start: number, end: number): boolean {

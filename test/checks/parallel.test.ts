@@ -16,7 +16,7 @@ import { runChecksInParallel, seriesRanges } from '../../src/checks/parallel.js'
 import { DEMO_AS_OF, DEMO_PREVIOUS_AS_OF, demoFiles } from '../../src/demo/scenario.js';
 import { loadFeed } from '../../src/ingest/feed.js';
 import { FeedProfileSchema } from '../../src/ingest/profile.js';
-import { readCsvFile } from '../../src/ingest/csv-reader.js';
+import { readCsvFile } from '../../src/ingest/csv-source.js';
 import { writeArrowIpc } from '../../src/ingest/arrow-table.js';
 import { isSharedFrame, sharedFrame, type SeriesFrame } from '../../src/series/frame.js';
 

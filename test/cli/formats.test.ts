@@ -3,7 +3,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { demoFiles } from '../../src/demo/scenario.js';
 import { writeArrowIpc } from '../../src/ingest/arrow-table.js';
-import { readCsvFile } from '../../src/ingest/csv-reader.js';
+import { readCsvFile } from '../../src/ingest/csv-source.js';
 import { DEFAULT_PROFILE, FeedProfileSchema } from '../../src/ingest/profile.js';
 import { writeParquet } from '../../fixtures/parquet-writer.js';
 import { runCli, scratchDir, writeFiles } from './run-cli.js';

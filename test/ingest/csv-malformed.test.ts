@@ -2,7 +2,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { readCsvFile } from '../../src/ingest/csv-reader.js';
+import { readCsvFile } from '../../src/ingest/csv-source.js';
 import { ConfigError, InputError } from '../../src/ingest/errors.js';
 import { DEFAULT_PROFILE } from '../../src/ingest/profile.js';
 import { expectBalanced, FILE, navTuples, readText } from './helpers.js';

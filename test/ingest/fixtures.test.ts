@@ -1,6 +1,6 @@
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
-import { readCsvFile } from '../../src/ingest/csv-reader.js';
+import { readCsvFile } from '../../src/ingest/csv-source.js';
 import { ConfigError, InputError } from '../../src/ingest/errors.js';
 import { DEFAULT_PROFILE } from '../../src/ingest/profile.js';
 
