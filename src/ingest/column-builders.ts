@@ -6,7 +6,17 @@ import { NULL_BOOLEAN, NULL_DATE } from './table.js';
  * Growable typed-array builders, one per canonical column. A row is written at `row` and only
  * kept if the whole row is accepted, so a rejected row simply gets overwritten by the next one.
  */
+/** The typed array a builder writes its rows into. */
+export type BuilderArray = Int32Array | Float64Array | Uint8Array;
+
 export interface ColumnBuilder {
+  /**
+   * The array rows are written into (the codes of a text column). A reader of many windows
+   * (src/ingest/csv-ring.ts) hands each window's builders arrays it reuses, and reads them back.
+   */
+  array: BuilderArray;
+  /** An empty array of this builder's type for `rows` rows, on shared memory. */
+  emptyArray(rows: number): BuilderArray;
   ensureCapacity(rows: number): void;
   setMissing(row: number): void;
   finish(length: number): Column;
@@ -31,6 +41,15 @@ function grow<T extends Int32Array | Float64Array | Uint8Array>(array: T, rows: 
 /** Dates and numbers are series frame columns, so they live on shared memory (shared-columns.ts). */
 export class DateBuilder implements ColumnBuilder {
   values = sharedInt32Array(1024);
+  get array(): BuilderArray {
+    return this.values;
+  }
+  set array(array: BuilderArray) {
+    this.values = array as typeof this.values;
+  }
+  emptyArray(rows: number): BuilderArray {
+    return sharedInt32Array(rows);
+  }
   ensureCapacity(rows: number) {
     this.values = grow(this.values, rows, sharedInt32Array);
   }
@@ -44,6 +63,15 @@ export class DateBuilder implements ColumnBuilder {
 
 export class NumberBuilder implements ColumnBuilder {
   values = sharedFloat64Array(1024);
+  get array(): BuilderArray {
+    return this.values;
+  }
+  set array(array: BuilderArray) {
+    this.values = array as typeof this.values;
+  }
+  emptyArray(rows: number): BuilderArray {
+    return sharedFloat64Array(rows);
+  }
   ensureCapacity(rows: number) {
     this.values = grow(this.values, rows, sharedFloat64Array);
   }
@@ -57,6 +85,15 @@ export class NumberBuilder implements ColumnBuilder {
 
 export class BooleanBuilder implements ColumnBuilder {
   values = new Uint8Array(1024);
+  get array(): BuilderArray {
+    return this.values;
+  }
+  set array(array: BuilderArray) {
+    this.values = array as typeof this.values;
+  }
+  emptyArray(rows: number): BuilderArray {
+    return new Uint8Array(new SharedArrayBuffer(rows));
+  }
   ensureCapacity(rows: number) {
     this.values = grow(this.values, rows, (n) => new Uint8Array(n));
   }
@@ -75,6 +112,15 @@ export class TextBuilder implements ColumnBuilder {
   readonly dictionary: string[] = [];
   private readonly codeByText = new Map<string, number>();
 
+  get array(): BuilderArray {
+    return this.codes;
+  }
+  set array(array: BuilderArray) {
+    this.codes = array as typeof this.codes;
+  }
+  emptyArray(rows: number): BuilderArray {
+    return sharedInt32Array(rows);
+  }
   ensureCapacity(rows: number) {
     this.codes = grow(this.codes, rows, sharedInt32Array);
   }

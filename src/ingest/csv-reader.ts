@@ -1,6 +1,6 @@
 import { BooleanBuilder, DateBuilder, NumberBuilder, TextBuilder, type ColumnBuilder } from './column-builders.js';
 import { CsvRowScanner } from './csv-rows.js';
-import { sharedFloat64Array, sharedInt32Array } from './shared-columns.js';
+import { sharedInt32Array } from './shared-columns.js';
 import { outsideRange, rangeReason, shownColumnNames } from './columnar-ingest.js';
 import { resolveDateFormat, UNSETTLED } from './date-order.js';
 import { InputError, quoteInput } from './errors.js';
@@ -205,11 +205,7 @@ export interface WindowArrays {
  */
 export function windowArraysFor(layout: CsvLayout, windowBytes: number): WindowArrays {
   const rows = Math.floor(windowBytes / Math.max(1, layout.names.length)) + 1;
-  const columns = columnsOfLayout(layout).map(({ builder }) => {
-    if (builder instanceof NumberBuilder) return sharedFloat64Array(rows);
-    if (builder instanceof BooleanBuilder) return new Uint8Array(new SharedArrayBuffer(rows));
-    return sharedInt32Array(rows);
-  });
+  const columns = columnsOfLayout(layout).map(({ builder }) => builder.emptyArray(rows));
   return { lines: sharedInt32Array(rows), columns };
 }
 
@@ -783,11 +779,7 @@ class RowReader {
   /** Reads rows into these arrays (which are long enough, or grown like the reader's own). */
   adopt(arrays: WindowArrays): void {
     this.lines = arrays.lines;
-    columnsOfPlans(this.plans).forEach(({ builder }, k) => {
-      const array = arrays.columns[k];
-      if (builder instanceof TextBuilder) builder.codes = array as Int32Array;
-      else (builder as unknown as { values: typeof array }).values = array;
-    });
+    columnsOfPlans(this.plans).forEach(({ builder }, k) => (builder.array = arrays.columns[k]));
   }
 
   /** The rows read so far as one window's (`readWindowRows`), without finishing the columns. */
@@ -807,7 +799,7 @@ class RowReader {
 
 function windowColumn(builder: ColumnBuilder): WindowColumn {
   if (builder instanceof TextBuilder) return { codes: builder.codes, dictionary: builder.dictionary };
-  return { values: (builder as DateBuilder | NumberBuilder | BooleanBuilder).values };
+  return { values: builder.array };
 }
 
 function isBlankField(bytes: Uint8Array, start: number, end: number): boolean {

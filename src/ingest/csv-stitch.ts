@@ -5,13 +5,6 @@ import type { RejectedRow } from './records.js';
 import { sharedInt32Array } from './shared-columns.js';
 import type { Column, IngestResult } from './table.js';
 
-/**
- * Joins the rows of a file's windows, each read with columns of its own (`readWindowRows`), in
- * file order into the table the one-thread reader gives: values copied after the rows before
- * them; each window's text codes renumbered into one dictionary in order of first use (the order
- * the one-thread reader's columns finish in, so the dictionary is the same, entry for entry);
- * lines moved on by the lines of the windows before; rejected rows appended in order.
- */
 /** The memory of the columns being filled, for a `Prefaulter` on another thread. */
 export interface ColumnsMemory {
   readonly buffers: readonly SharedArrayBuffer[];
@@ -21,6 +14,13 @@ export interface ColumnsMemory {
   readonly rows: number;
 }
 
+/**
+ * Joins the rows of a file's windows, each read with columns of its own (`readWindowRows`), in
+ * file order into the table the one-thread reader gives: values copied after the rows before
+ * them; each window's text codes renumbered into one dictionary in order of first use (the order
+ * the one-thread reader's columns finish in, so the dictionary is the same, entry for entry);
+ * lines moved on by the lines of the windows before; rejected rows appended in order.
+ */
 export class WindowStitcher {
   private readonly columns: Array<{ readonly name: string; readonly builder: ColumnBuilder }>;
   /** On shared memory, as the one-thread reader's. */
@@ -60,7 +60,7 @@ export class WindowStitcher {
 
   /** The memory of the columns as they are now (the shared ones; a column that grows moves to new memory). */
   memory(): ColumnsMemory {
-    const arrays = [this.lines, ...this.columns.map(({ builder }) => arrayOf(builder))].filter((array) => array.buffer instanceof SharedArrayBuffer);
+    const arrays = [this.lines, ...this.columns.map(({ builder }) => builder.array)].filter((array) => array.buffer instanceof SharedArrayBuffer);
     return { buffers: arrays.map((array) => array.buffer as SharedArrayBuffer), rowBytes: arrays.map((array) => array.BYTES_PER_ELEMENT), rows: this.lines.length };
   }
 
@@ -83,10 +83,6 @@ export class WindowStitcher {
   }
 }
 
-function arrayOf(builder: ColumnBuilder): Int32Array | Float64Array | Uint8Array {
-  return builder instanceof TextBuilder ? builder.codes : (builder as unknown as { values: Int32Array | Float64Array | Uint8Array }).values;
-}
-
 /** Copies a window's column after the rows before it; text codes go through the one dictionary. */
 function appendColumn(target: ColumnBuilder, part: WindowColumn, at: number, rows: number): void {
   if (target instanceof TextBuilder) {
@@ -106,5 +102,5 @@ function appendColumn(target: ColumnBuilder, part: WindowColumn, at: number, row
     return;
   }
   const { values } = part as Extract<WindowColumn, { values: unknown }>;
-  (target as unknown as { values: typeof values }).values.set(values.subarray(0, rows), at);
+  target.array.set(values.subarray(0, rows), at);
 }

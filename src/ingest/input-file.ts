@@ -101,10 +101,10 @@ export function tooLarge(path: string, what: string, maxBytes: number): InputErr
   );
 }
 
-/** Reads up to `maxBytes`; one byte more means the file is over the limit, whatever its size said. */
 /** Bytes read per call when each run is told as it lands, so the hashing keeps pace with the read. */
 const RUN_BYTES = 8 << 20;
 
+/** Reads up to `maxBytes`; one byte more means the file is over the limit, whatever its size said. */
 function readAtMost(
   fd: number,
   path: string,

@@ -8,7 +8,7 @@ import { parseIsoDate } from '../../src/calendar/days.js';
 import { ConfigError, InputError, NavassayError } from '../../src/ingest/errors.js';
 import { loadOptionsOf } from '../../src/job/daily-job.js';
 import { loadDay, type Day } from '../../src/job/day.js';
-import { snapshotStage, snapshotStageInBackground } from '../../src/job/stages/snapshot.js';
+import { snapshotStage, startSnapshotInBackground } from '../../src/job/stages/snapshot.js';
 import { readManifest } from '../../src/store/index.js';
 import { describeThrown, rebuildThrown } from '../../src/threads/thrown.js';
 
@@ -39,7 +39,7 @@ describe('the snapshot stage on a worker thread', () => {
   it('stores the same files and manifest as on this thread, and the same notices', async () => {
     const day = await demoDay();
     // minRows 0: the demo is small, so without it the write would stay on this thread.
-    const onWorker = await snapshotStageInBackground(day, { store: join(work, 'worker-store'), feed: 'demo' }, { minRows: 0 });
+    const onWorker = await startSnapshotInBackground(day, { store: join(work, 'worker-store'), feed: 'demo' }, { minRows: 0 }).stored;
     const onThisThread = snapshotStage(day, { store: join(work, 'plain-store'), feed: 'demo' });
     expect(onWorker.ref.dir).toBe(join(work, 'worker-store', 'demo', '2026-11-30'));
     expect(snapshotContent(onWorker.ref.dir)).toEqual(snapshotContent(onThisThread.ref.dir));
@@ -53,8 +53,8 @@ describe('the snapshot stage on a worker thread', () => {
   it('keeps a stored snapshot of the same files without starting a write, as on this thread', async () => {
     const day = await demoDay();
     const place = { store: join(work, 'store'), feed: 'demo' };
-    const first = await snapshotStageInBackground(day, place, { minRows: 0 });
-    const again = await snapshotStageInBackground(day, place, { minRows: 0 });
+    const first = await startSnapshotInBackground(day, place, { minRows: 0 }).stored;
+    const again = await startSnapshotInBackground(day, place, { minRows: 0 }).stored;
     expect(again.ref.manifest.created_at).toBe(first.ref.manifest.created_at);
     expect(again.notices).toEqual([`the snapshot of 2026-11-30 stored at ${first.ref.manifest.created_at} holds the same files; it was kept.`]);
   });
@@ -70,7 +70,7 @@ describe('the snapshot stage on a worker thread', () => {
     } catch (error) {
       plain = error;
     }
-    const fromWorker = await snapshotStageInBackground(day, place, { minRows: 0 }).catch((error: unknown) => error);
+    const fromWorker = await startSnapshotInBackground(day, place, { minRows: 0 }).stored.catch((error: unknown) => error);
     expect(plain).toBeInstanceOf(ConfigError);
     expect(fromWorker).toBeInstanceOf(ConfigError);
     expect((fromWorker as ConfigError).exitCode).toBe(2);

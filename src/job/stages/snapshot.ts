@@ -26,16 +26,6 @@ export function snapshotStage(day: Day, place: SnapshotPlace): StoredSnapshot {
   return plan.kept ?? { ref: writeSnapshot(place.store, plan.input), notices: plan.notices };
 }
 
-/**
- * The snapshot stage with the write on a worker thread (src/store/background-write.ts): what
- * to keep is decided here at once, and the promise settles when the snapshot is on the disk,
- * while this thread goes on with the day's figures. Same snapshot, notices and errors as
- * `snapshotStage`.
- */
-export async function snapshotStageInBackground(day: Day, place: SnapshotPlace, options: BackgroundOptions = {}): Promise<StoredSnapshot> {
-  return startSnapshotInBackground(day, place, options).stored;
-}
-
 /** A snapshot being written on a worker thread, with what its notices say already known. */
 export interface SnapshotUnderWay {
   /** The stage's notices, the same as `stored`'s: they depend on the store as found, not on the write. */
@@ -45,8 +35,10 @@ export interface SnapshotUnderWay {
 }
 
 /**
- * Starts the snapshot's write on a worker thread and answers at once with its notices, so the
- * day's reports can be written while the snapshot is (src/job/daily-job.ts).
+ * The snapshot stage with the write on a worker thread (src/store/background-write.ts): what to
+ * keep is decided here at once, with the notices, and `stored` settles when the snapshot is on
+ * the disk, while this thread goes on with reconciliation, tickets and reports
+ * (src/job/daily-job.ts). Same snapshot, notices and errors as `snapshotStage`.
  */
 export function startSnapshotInBackground(day: Day, place: SnapshotPlace, options: BackgroundOptions = {}): SnapshotUnderWay {
   const plan = planSnapshot(day, place);
