@@ -1,7 +1,7 @@
 import type { FeedCheck } from '../src/checks/check.js';
 import type { Finding } from '../src/findings.js';
-import type { SeriesSlice } from '../src/series/frame.js';
-import { eachSeries, findSeries } from '../src/series/frame.js';
+import type { DatedSlice } from '../src/series/frame.js';
+import { eachDatedSeries, findDatedSeries } from '../src/series/frame.js';
 import { capped, consecutiveRuns, isoDate, makeFinding } from '../src/checks/support.js';
 
 /**
@@ -18,9 +18,9 @@ export const droppedRows: FeedCheck<Record<string, never>> = {
   run(context) {
     if (!context.previous) return [];
     const findings: Finding[] = [];
-    for (const before of eachSeries(context.previous)) {
+    for (const before of eachDatedSeries(context.previous)) {
       if (before.dates.length === 0) continue;
-      const today = findSeries(context.nav, before.id);
+      const today = findDatedSeries(context.nav, before.id);
       if (!today || today.dates.length === 0) findings.push(vanished(before));
       else findings.push(...lostDates(before, today));
     }
@@ -28,7 +28,7 @@ export const droppedRows: FeedCheck<Record<string, never>> = {
   },
 };
 
-function vanished(before: SeriesSlice): Finding {
+function vanished(before: DatedSlice): Finding {
   const first = before.dates[0];
   const last = before.dates[before.dates.length - 1];
   return makeFinding({
@@ -43,7 +43,7 @@ function vanished(before: SeriesSlice): Finding {
   });
 }
 
-function lostDates(before: SeriesSlice, today: SeriesSlice): Finding[] {
+function lostDates(before: DatedSlice, today: DatedSlice): Finding[] {
   const lost: Array<{ position: number; day: number; value: number }> = [];
   let t = 0;
   for (let i = 0; i < before.dates.length; i++) {

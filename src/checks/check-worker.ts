@@ -5,13 +5,14 @@
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { BusinessCalendars } from '../calendar/business-calendar.js';
-import type { SeriesFrame } from '../series/frame.js';
-import type { FrameData, WorkerAnswer, WorkerInput } from './parallel.js';
+import type { DatedFrame } from '../series/frame.js';
+import type { DatedFrameData, WorkerAnswer, WorkerInput } from './parallel.js';
 import { claimRange, seriesChecker } from './series-runner.js';
 import { SettingsResolver } from './settings-resolver.js';
 
 const job = workerData as WorkerInput;
-const frame = (data: FrameData): SeriesFrame => ({ ...data, indexById: new Map(data.ids.map((id, i) => [id, i])) });
+/** The frame of its data, the map from id to series rebuilt: a whole frame from FrameData, a dated one from DatedFrameData. */
+const frame = <Data extends DatedFrameData>(data: Data): Data & Pick<DatedFrame, 'indexById'> => ({ ...data, indexById: new Map(data.ids.map((id, i) => [id, i])) });
 const input = {
   nav: frame(job.nav),
   benchmarks: job.benchmarks && frame(job.benchmarks),

@@ -1,7 +1,7 @@
 import type { BusinessCalendars } from '../calendar/business-calendar.js';
 import type { Finding, Severity } from '../findings.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
-import type { SeriesFrame, SeriesSlice } from '../series/frame.js';
+import type { DatedFrame, DatedSlice, SeriesFrame, SeriesSlice } from '../series/frame.js';
 import type { MoveAnalysis } from './move-analysis.js';
 import type { FrameTables } from './series-tables.js';
 
@@ -28,8 +28,8 @@ export interface SeriesContext {
   readonly benchmarkTables?: FrameTables;
   /** Corporate actions of this series, ascending by ex-date. */
   readonly actions: readonly CorporateActionRecord[];
-  /** This series in the previous snapshot, when one was given. */
-  readonly previous: SeriesSlice | undefined;
+  /** This series in the previous snapshot, when one was given (dates and values: its lines are not kept). */
+  readonly previous: DatedSlice | undefined;
   /**
    * The latest NAV date anywhere in the feed on or before the as-of (epoch day), when known:
    * what "up to date" means for this feed, whether it is checked the evening of the valuation
@@ -60,7 +60,8 @@ export interface FeedContext {
   readonly nav: SeriesFrame;
   readonly benchmarks: SeriesFrame | undefined;
   readonly master: readonly SeriesMasterRecord[] | undefined;
-  readonly previous: SeriesFrame | undefined;
+  /** The previous snapshot's NAVs (dates and values: its lines are not kept). */
+  readonly previous: DatedFrame | undefined;
   /** Rows that could not be read, from every input file. */
   readonly rejected: readonly import('../ingest/records.js').RejectedRow[];
   /** The vendor's risk figures, when a vendor file was given. */

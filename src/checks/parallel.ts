@@ -17,18 +17,22 @@ import { availableParallelism } from 'node:os';
 import { answerOfSiblingWorker, MIN_ROWS_FOR_A_WORKER } from '../threads/module-worker.js';
 import type { Finding } from '../findings.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
-import { sharedFrame, type SeriesFrame } from '../series/frame.js';
+import { sharedFrame, type DatedFrame, type SeriesFrame } from '../series/frame.js';
 import type { CalendarDescription } from '../calendar/business-calendar.js';
 import { compareFindings, latestDateUpTo, runChecks, runFeedChecks, seriesChecker, type CheckInput } from './run.js';
 import { claimRange } from './series-runner.js';
 import { parseCheckSettings, SettingsResolver, type CheckSettings } from './settings.js';
 
-/** A frame on shared memory, which a worker receives without its `indexById` map. */
-export interface FrameData {
+/** A dated frame on shared memory, which a worker receives without its `indexById` map. */
+export interface DatedFrameData {
   readonly ids: readonly string[];
   readonly offsets: Int32Array;
   readonly dates: Int32Array;
   readonly values: Float64Array;
+}
+
+/** A frame on shared memory, which a worker receives without its `indexById` map. */
+export interface FrameData extends DatedFrameData {
   readonly lines: Int32Array;
 }
 
@@ -37,7 +41,7 @@ export interface WorkerInput {
   /** The whole feed; the worker checks only the series of the ranges it claims. */
   readonly nav: FrameData;
   readonly benchmarks?: FrameData;
-  readonly previous?: FrameData;
+  readonly previous?: DatedFrameData;
   readonly master: SeriesMasterRecord[];
   readonly actions: CorporateActionRecord[];
   readonly calendars: CalendarDescription;
@@ -88,7 +92,7 @@ export async function runChecksInParallel(input: CheckInput, settings: CheckSett
   const job: WorkerInput = {
     nav: frameData(sharedFrame(input.nav)),
     benchmarks: input.benchmarks && frameData(sharedFrame(input.benchmarks)),
-    previous: input.previous && frameData(sharedFrame(input.previous)),
+    previous: input.previous && datedFrameData(sharedFrame(input.previous)),
     master: [...(input.master ?? [])],
     actions: [...(input.actions ?? [])],
     calendars: input.calendars.describe(),
@@ -152,8 +156,12 @@ export function seriesRanges(frame: SeriesFrame, threads: number): Array<[number
 
 /** The frame's arrays without its map, which the worker rebuilds from the ids. */
 function frameData(frame: SeriesFrame): FrameData {
-  const { ids, offsets, dates, values, lines } = frame;
-  return { ids, offsets, dates, values, lines };
+  return { ...datedFrameData(frame), lines: frame.lines };
+}
+
+function datedFrameData(frame: DatedFrame): DatedFrameData {
+  const { ids, offsets, dates, values } = frame;
+  return { ids, offsets, dates, values };
 }
 
 function runWorker(job: WorkerInput): Promise<WorkerAnswer> {

@@ -5,7 +5,7 @@
 import type { BusinessCalendars } from '../calendar/business-calendar.js';
 import { severityRank, type Finding } from '../findings.js';
 import type { CorporateActionRecord, RejectedRow, SeriesMasterRecord, VendorFigureRecord } from '../ingest/records.js';
-import type { SeriesFrame } from '../series/frame.js';
+import type { DatedFrame, SeriesFrame } from '../series/frame.js';
 import type { FeedCheck, FeedContext } from './check.js';
 import { CHECKS } from './registry.js';
 import { runSeriesChecks } from './series-runner.js';
@@ -18,7 +18,7 @@ export interface CheckInput {
   readonly benchmarks?: SeriesFrame;
   readonly master?: readonly SeriesMasterRecord[];
   readonly actions?: readonly CorporateActionRecord[];
-  readonly previous?: SeriesFrame;
+  readonly previous?: DatedFrame;
   readonly rejected: readonly RejectedRow[];
   readonly vendor?: readonly VendorFigureRecord[];
   readonly calendars: BusinessCalendars;

@@ -6,7 +6,7 @@
  */
 import type { Finding } from '../findings.js';
 import type { CorporateActionRecord } from '../ingest/records.js';
-import { findSeries, seriesAt } from '../series/frame.js';
+import { findDatedSeries, findSeries, seriesAt } from '../series/frame.js';
 import type { SeriesCheck, SeriesContext } from './check.js';
 import { analyseMoves, type ClaimingParams } from './move-analysis.js';
 import { CHECKS } from './registry.js';
@@ -49,7 +49,7 @@ export function seriesChecker(input: CheckInput, resolver: SettingsResolver, fee
         benchmarks: input.benchmarks,
         benchmarkTables,
         actions: actionsById.get(series.id) ?? [],
-        previous: input.previous ? findSeries(input.previous, series.id) : undefined,
+        previous: input.previous ? findDatedSeries(input.previous, series.id) : undefined,
         feedLatest,
       };
       const resolved = seriesChecks.map((check) => resolver.resolve(check, master?.category, series.id));

@@ -5,7 +5,7 @@
 import { formatIsoDate } from '../calendar/days.js';
 import { findingKey, type Finding, type Severity } from '../findings.js';
 import type { SeriesContext } from './check.js';
-import type { SeriesSlice } from '../series/frame.js';
+import type { DatedSlice } from '../series/frame.js';
 import { indexOfSorted } from '../numeric/search.js';
 import { bracketedMedian, kthSmallest, medianInPlace } from './selection.js';
 
@@ -41,7 +41,7 @@ export function calendarOf(context: Pick<SeriesContext, 'master'>): string | und
 }
 
 /** Index of the first row of each distinct date (duplicates beyond the first are skipped). */
-export function firstRowOfEachDate(series: SeriesSlice, upTo = Infinity): number[] {
+export function firstRowOfEachDate(series: DatedSlice, upTo = Infinity): number[] {
   const rows: number[] = [];
   for (let i = 0; i < series.dates.length; i++) {
     if (series.dates[i] > upTo) break;

@@ -3,7 +3,7 @@ import { loadFeed, loadPreviousNav, type FeedPaths, type LoadedFeed, type LoadOp
 import type { FeedProfile } from '../ingest/profile.js';
 import { MetricCalculator, type MetricInputs } from '../metrics/compute.js';
 import { adjustForCorporateActions } from '../series/adjust.js';
-import type { SeriesFrame } from '../series/frame.js';
+import { datedFrameOf, type DatedFrame } from '../series/frame.js';
 import { previousNav, previousNavInBackground, type PreviousNav as StoredPreviousNav } from '../store/previous-nav.js';
 
 /**
@@ -16,8 +16,8 @@ export interface Day {
   readonly asOf: number;
   /** The files as read, with `sources` (SHA-256 of the bytes parsed). */
   readonly feed: LoadedFeed;
-  /** The previous snapshot's NAVs, for restated and dropped rows; absent on a feed's first day. */
-  readonly previous?: SeriesFrame;
+  /** The previous snapshot's NAVs (dates and values), for restated and dropped rows; absent on a feed's first day. */
+  readonly previous?: DatedFrame;
   /** Earlier stored snapshots that could not be read and were passed over in finding the previous one. */
   readonly skippedSnapshots: readonly SkippedSnapshot[];
   /** What risk figures are computed from (NAVs adjusted for corporate actions); absent without benchmarks and master. */
@@ -82,7 +82,7 @@ function figureSource(feed: LoadedFeed, constantRate: number | undefined): Figur
 }
 
 interface PreviousNav {
-  readonly nav?: SeriesFrame;
+  readonly nav?: DatedFrame;
   readonly skipped: readonly SkippedSnapshot[];
 }
 
@@ -96,7 +96,8 @@ async function loadPrevious(source: PreviousSource, asOf: number, load: LoadOpti
     case 'none':
       return { skipped: [] };
     case 'file':
-      return { nav: await loadPreviousNav(source.path, source.profile, load?.limits), skipped: [] };
+      // Compared by date and value only: the file's lines are let go.
+      return { nav: datedFrameOf(await loadPreviousNav(source.path, source.profile, load?.limits)), skipped: [] };
     case 'store':
       return reportSkipped(previousNav(source.store, source.feed, formatIsoDate(asOf)));
   }

@@ -8,7 +8,7 @@ import { loadRunConfig } from '../config/run-config.js';
 import { ConfigError } from '../ingest/errors.js';
 import { runDailyJob, type DailyRun } from '../job/daily-job.js';
 import { figureInputs } from '../job/day.js';
-import type { SeriesFrame } from '../series/frame.js';
+import type { DatedFrame } from '../series/frame.js';
 import { epochDayOf, type DateInput } from './dates.js';
 
 /**
@@ -19,7 +19,7 @@ import { epochDayOf, type DateInput } from './dates.js';
 export interface CheckFeedOptions {
   readonly asOf: DateInput;
   /** The previous snapshot's NAVs (see `loadPreviousNav`), for restated and dropped rows. */
-  readonly previous?: SeriesFrame;
+  readonly previous?: DatedFrame;
   /** Check parameters per run, category and series, as the run configuration's `checks:`. */
   readonly settings?: CheckSettings;
 }

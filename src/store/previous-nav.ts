@@ -2,7 +2,7 @@ import { join } from 'node:path';
 import { DataType, DateUnit, tableFromIPC, type Data, type Table } from 'apache-arrow';
 import { arrowToCanonical } from '../ingest/arrow-table.js';
 import { toSeriesFrame } from '../ingest/convert.js';
-import { buildSeriesFrame, type SeriesFrame } from '../series/frame.js';
+import { buildSeriesFrame, datedFrameOf, type DatedFrame, type SeriesFrame } from '../series/frame.js';
 import { MIN_ROWS_FOR_A_WORKER, onWorkerWhenLarge } from '../threads/module-worker.js';
 import type { SnapshotFile } from './manifest.js';
 import { readNavFrameInPart } from './stored-nav-frame.js';
@@ -13,16 +13,17 @@ import { latestEarlierThatLoads, readStoredArrow, scanSnapshots, type Unreadable
  * the NAV table of the latest earlier snapshot whose NAV table reads. Only that table is read;
  * a snapshot whose manifest or NAV table is damaged is passed over and returned with its reason.
  *
- * The frame's columns are on shared memory, so the check workers read them without a copy. In
- * the common case (the form `run` stores: no missing value, ids in ascending order) only the
- * dates, values and lines are read from the file, each at its place: at 10,000 series 400 MB of
- * the 500 MB file, whose series codes (100 MB) the frame does not need once its runs are found.
+ * Today's feed is compared with it by date and value, so its frame keeps no lines. The frame's
+ * columns are on shared memory, so the check workers read them without a copy. In the common
+ * case (the form `run` stores: no missing value, ids in ascending order) only the dates and
+ * values are read from the file, each at its place: at 10,000 series 300 MB of the 500 MB file,
+ * whose series codes (100 MB) the frame does not need once its runs are found.
  * Any other table is read whole into shared memory and framed as views of its bytes (one
  * record batch, no missing value) or decoded as any Arrow table.
  */
 export interface PreviousNav {
   readonly asOf?: string;
-  readonly nav?: SeriesFrame;
+  readonly nav?: DatedFrame;
   readonly skipped: UnreadableSnapshot[];
 }
 
@@ -38,8 +39,8 @@ export function previousNav(storeDir: string, feed: string, asOfExclusive: strin
  * A stored NAV table as a series frame, checked against the SHA-256 of its manifest: read in part
  * when it is in the form `run` stores (src/store/stored-nav-frame.ts), else read whole.
  */
-export function readStoredNavFrame(dir: string, file: SnapshotFile): SeriesFrame {
-  return readNavFrameInPart(join(dir, file.stored_file), file.stored_sha256) ?? readWholeNavFrame(dir, file);
+export function readStoredNavFrame(dir: string, file: SnapshotFile): DatedFrame {
+  return readNavFrameInPart(join(dir, file.stored_file), file.stored_sha256) ?? datedFrameOf(readWholeNavFrame(dir, file));
 }
 
 /** The whole file in shared memory, framed as views of its bytes when it can be, else decoded. */

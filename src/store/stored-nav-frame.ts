@@ -3,17 +3,18 @@ import { DataType, DateUnit, Precision, type Field } from 'apache-arrow';
 import { Footer, type FileBlock } from 'apache-arrow/ipc/metadata/file';
 import { Message } from 'apache-arrow/ipc/metadata/message';
 import { sharedFloat64Array, sharedInt32Array } from '../ingest/shared-columns.js';
-import { frameOfRuns, rankOfEveryCode, type SeriesFrame } from '../series/frame.js';
+import { datedFrameOfRuns, rankOfEveryCode, type DatedFrame } from '../series/frame.js';
 import { sha256OfOpenFile } from './durable-files.js';
 import { alteredStoredFile, unreadableStoredFile } from './snapshot-store.js';
 
 /**
  * A stored NAV table read in part: the file is checked against its SHA-256 through a small reused
- * buffer, then only the dates, values and lines of its record batches are read into shared
- * memory, each buffer at its place in the file (the Arrow footer and each batch's metadata give
- * the places), and the series codes pass through the small buffer, where the series' runs of
- * rows are found. At 10,000 series the frame holds 400 MB instead of the whole 500 MB file, and
- * no view of the file keeps it alive.
+ * buffer, then only the dates and values of its record batches are read into shared memory, each
+ * buffer at its place in the file (the Arrow footer and each batch's metadata give the places),
+ * and the series codes pass through the small buffer, where the series' runs of rows are found.
+ * The rows' lines are not read: today's feed is compared with the previous snapshot by date and
+ * value, and evidence cites today's lines. At 10,000 series the frame holds 300 MB instead of the
+ * whole 500 MB file, and no view of the file keeps it alive.
  *
  * Only the form `run` stores is read this way: a table whose `series_id` is a dictionary of
  * Utf8 with Int32 codes, `date` Date32, `nav` Float64 and `line` Int32, none with a missing
@@ -23,7 +24,7 @@ import { alteredStoredFile, unreadableStoredFile } from './snapshot-store.js';
  * whole file as before. The frame is the whole-file decode's, value for value
  * (test/store/stored-nav-frame.test.ts).
  */
-export function readNavFrameInPart(path: string, sha256: string): SeriesFrame | null {
+export function readNavFrameInPart(path: string, sha256: string): DatedFrame | null {
   let fd: number;
   try {
     fd = openSync(path, 'r');
@@ -37,7 +38,7 @@ export function readNavFrameInPart(path: string, sha256: string): SeriesFrame | 
     if (sha256OfOpenFile(fd, scratch) !== sha256) throw alteredStoredFile(path);
     const layout = layoutOrNull(fd, size);
     if (!layout) return null;
-    const columns: NavColumns = { dates: sharedInt32Array(layout.rows), values: sharedFloat64Array(layout.rows), lines: sharedInt32Array(layout.rows) };
+    const columns: NavColumns = { dates: sharedInt32Array(layout.rows), values: sharedFloat64Array(layout.rows) };
     const runs = new SeriesRuns(layout.dictionary);
     readColumns(fd, layout, columns, runs, scratch, path);
     return runs.frame({ dictionary: layout.dictionary, ...columns });
@@ -59,7 +60,6 @@ interface ColumnRange {
 interface NavColumns {
   readonly dates: Int32Array;
   readonly values: Float64Array;
-  readonly lines: Int32Array;
 }
 
 interface NavLayout {
@@ -228,9 +228,13 @@ function fill(fd: number, target: Uint8Array, position: number): number {
 }
 
 /** The SHA-256 (hex) of the whole file, read through `scratch`; a file that cannot be read is a damaged snapshot. */
-/** The dates, values and lines of every range into their columns, and the codes through `scratch` into `runs`. */
+/**
+ * The dates and values of every range into their columns, and the codes through `scratch` into
+ * `runs`. The lines' ranges are passed over (the stored form has them; the frame does not keep them).
+ */
 function readColumns(fd: number, layout: NavLayout, columns: NavColumns, runs: SeriesRuns, scratch: Uint8Array, path: string): void {
   for (const range of layout.ranges) {
+    if (range.column === 'lines') continue;
     if (range.column === 'codes') {
       // The scratch's length is a multiple of 4: each chunk holds whole codes.
       for (let done = 0; done < range.bytes; done += scratch.length) {
@@ -291,13 +295,13 @@ class SeriesRuns {
   }
 
   /** The frame, or null when the codes were out of order or some series' dates descend. */
-  frame(input: { dictionary: readonly string[]; dates: Int32Array; values: Float64Array; lines: Int32Array }): SeriesFrame | null {
+  frame(input: { dictionary: readonly string[]; dates: Int32Array; values: Float64Array }): DatedFrame | null {
     if (!this.inOrder) return null;
     const starts = [...this.starts, input.dates.length];
     const { dates } = input;
     for (let run = 0; run < this.runCodes.length; run++) {
       for (let row = starts[run] + 1; row < starts[run + 1]; row++) if (dates[row] < dates[row - 1]) return null;
     }
-    return frameOfRuns(this.runCodes, starts, input);
+    return datedFrameOfRuns(this.runCodes, starts, input);
   }
 }

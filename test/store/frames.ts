@@ -1,11 +1,14 @@
-import type { SeriesFrame } from '../../src/series/frame.js';
+import type { DatedFrame, SeriesFrame } from '../../src/series/frame.js';
 
-/** A frame's contents as plain arrays, so two frames compare with `toEqual` whatever memory holds them. */
-export const plainFrame = (frame: SeriesFrame) => ({
+/**
+ * A frame's contents as plain arrays, so two frames compare with `toEqual` whatever memory holds
+ * them; a dated frame (no lines) has no `lines` member.
+ */
+export const plainFrame = (frame: DatedFrame | SeriesFrame) => ({
   ids: [...frame.ids],
   offsets: [...frame.offsets],
   dates: [...frame.dates],
   values: [...frame.values],
-  lines: [...frame.lines],
+  ...('lines' in frame ? { lines: [...frame.lines] } : {}),
   indexById: [...frame.indexById],
 });

@@ -7,6 +7,7 @@ import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { arrowIpcToCanonical, canonicalToArrow, canonicalToArrowIpc } from '../../src/ingest/arrow-table.js';
 import { toSeriesFrame } from '../../src/ingest/convert.js';
 import type { CanonicalTable } from '../../src/ingest/table.js';
+import { datedFrameOf } from '../../src/series/frame.js';
 import { InputError } from '../../src/ingest/errors.js';
 import { sha256Bytes } from '../../src/store/durable-files.js';
 import { readStoredNavFrame } from '../../src/store/previous-nav.js';
@@ -58,8 +59,8 @@ function fileOf(bytes: Uint8Array): { dir: string; file: SnapshotFile } {
   return { dir, file };
 }
 
-/** The frame as the whole file decodes through the general Arrow reader: the oracle. */
-const decodedFrame = (bytes: Uint8Array) => toSeriesFrame(arrowIpcToCanonical('nav', bytes), 'nav');
+/** The frame as the whole file decodes through the general Arrow reader, without the lines the previous NAVs do not keep: the oracle. */
+const decodedFrame = (bytes: Uint8Array) => datedFrameOf(toSeriesFrame(arrowIpcToCanonical('nav', bytes), 'nav'));
 
 
 describe('the stored NAV table read in part', () => {
