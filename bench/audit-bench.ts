@@ -25,6 +25,7 @@ import { fileURLToPath } from 'node:url';
 import type { ChildReport } from './audit-child.js';
 import { AS_OF, LARGEST_BENCH_INPUT, STANDARD_SIZE, standardUniverse, type StandardUniverse } from './standard-universe.js';
 import { formatIsoDate } from '../src/calendar/days.js';
+import { environmentWithHugePages } from '../src/cli/huge-pages.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 /** bench/.cache at the repository root, whether this runs from bench/ (tsx) or dist/bench/ (built). */
@@ -58,6 +59,8 @@ const withArrow = !args.includes('--no-arrow');
 const withDayTwo = !args.includes('--no-day-two');
 const extra = args.flatMap((a, i) => (a === '--child-arg' ? [args[i + 1]] : []));
 const nodeArgs = args.flatMap((a, i) => (a === '--node-arg' ? [args[i + 1]] : []));
+/** The child runs as the executable would start it: with huge pages asked for (src/cli/huge-pages.ts). */
+const childEnvironment = environmentWithHugePages(process.env, process.platform) ?? process.env;
 
 const median = (values: number[]) => {
   const sorted = [...values].sort((a, b) => a - b);
@@ -170,7 +173,7 @@ function measure(scenario: Scenario, universe: StandardUniverse): Run[] {
     if (scenario.previous) linkPrevious(scenario.previous, join(dir, 'store', 'bench', scenario.previous.asOf));
     const t0 = process.hrtime.bigint();
     const loader = child.endsWith('.ts') ? ['--import', 'tsx'] : [];
-    const out = spawnSync(process.execPath, [...loader, ...nodeArgs, child, scenario.config, ...extra], { encoding: 'utf8', maxBuffer: 1 << 26, cwd: repositoryRoot });
+    const out = spawnSync(process.execPath, [...loader, ...nodeArgs, child, scenario.config, ...extra], { encoding: 'utf8', maxBuffer: 1 << 26, cwd: repositoryRoot, env: childEnvironment });
     const wall = Number(process.hrtime.bigint() - t0) / 1e9;
     if (out.status !== 0) throw new Error(`audit child failed on ${universe.size.series} series (${scenario.label}): ${out.stderr}`);
     const lines = out.stdout.trim().split('\n');

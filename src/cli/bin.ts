@@ -1,24 +1,34 @@
 #!/usr/bin/env node
-import { main } from './main.js';
+import { environmentWithHugePages, runAgainIn } from './huge-pages.js';
 
 /**
  * The executable. It never calls process.exit: that would end the process while standard output,
  * when it is a pipe, still holds unwritten data (a scheduler or `jq` would get a truncated
  * answer). It sets the exit status and lets Node end once both streams have drained.
+ *
+ * On Linux it first starts itself again with huge pages asked for (huge-pages.ts), and only that
+ * second process loads the program.
  */
 const INTERNAL_ERROR = 70;
 
-for (const stream of [process.stdout, process.stderr]) stream.on('error', onStreamError);
+const withHugePages = environmentWithHugePages(process.env, process.platform);
+if (withHugePages === null) runHere();
+else runAgainIn(withHugePages, runHere);
 
-main(process.argv.slice(2)).then(
-  (status) => {
-    process.exitCode = status;
-  },
-  (error: unknown) => {
-    process.exitCode = INTERNAL_ERROR;
-    process.stderr.write(`navassay: internal error, please report it with the command you ran: ${(error as Error).stack ?? String(error)}\n`);
-  },
-);
+function runHere(): void {
+  for (const stream of [process.stdout, process.stderr]) stream.on('error', onStreamError);
+  import('./main.js')
+    .then(({ main }) => main(process.argv.slice(2)))
+    .then(
+      (status) => {
+        process.exitCode = status;
+      },
+      (error: unknown) => {
+        process.exitCode = INTERNAL_ERROR;
+        process.stderr.write(`navassay: internal error, please report it with the command you ran: ${(error as Error).stack ?? String(error)}\n`);
+      },
+    );
+}
 
 /**
  * A reader that closes the pipe early (`navassay … | head -1`) has read what it wanted: that is a

@@ -1,0 +1,16 @@
+import { environmentWithHugePages, runAgainIn } from '../../src/cli/huge-pages.js';
+
+/**
+ * A stand-in for the executable (huge-pages.test.ts): starts itself again as bin.ts does, and the
+ * process that runs prints its tunables and ends as its argument says (an exit status, or a signal).
+ */
+const ending = process.argv[2] ?? '0';
+const withHugePages = environmentWithHugePages(process.env, process.platform);
+if (withHugePages === null) runHere();
+else runAgainIn(withHugePages, runHere);
+
+function runHere(): void {
+  process.stdout.write(`tunables=${process.env.GLIBC_TUNABLES ?? ''}\n`);
+  if (ending.startsWith('SIG')) process.kill(process.pid, ending as NodeJS.Signals);
+  else process.exitCode = Number(ending);
+}
