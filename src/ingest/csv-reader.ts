@@ -199,14 +199,50 @@ export interface WindowArrays {
 }
 
 /**
- * Arrays for the rows of any window of `windowBytes` bytes: an accepted row has every field, so
- * it takes at least a byte per field (its delimiters and its line ending), the file's last row
- * excepted. Only the pages the rows are written to take memory.
+ * Rows to give each slot's arrays for windows of `windowBytes` bytes: the rows of the first window
+ * (`firstWindow`, the file's first bytes as published, its rows from `layout.firstRow`) scaled to a
+ * whole window, with a quarter to spare, and never more than a window can hold (an accepted row
+ * has every field, so it takes at least a byte per field, the file's last row excepted).
+ * Sized for the most a window could hold, the NAV file's arrays were ten times longer than its
+ * windows fill; with transparent huge pages (src/cli/huge-pages.ts) memory is given 2 MiB at a time,
+ * so the part past the rows cost memory too. A window of shorter lines grows its arrays
+ * (`readWindowIntoSlot`).
  */
-export function windowArraysFor(layout: CsvLayout, windowBytes: number): WindowArrays {
-  const rows = Math.floor(windowBytes / Math.max(1, layout.names.length)) + 1;
+export function windowRowsFor(layout: CsvLayout, firstWindow: Uint8Array, windowBytes: number): number {
+  const most = Math.floor(windowBytes / Math.max(1, layout.names.length)) + 1;
+  const rowBytes = firstWindow.length - layout.firstRow;
+  let lineFeeds = 0;
+  for (let at = layout.firstRow; at < firstWindow.length; at++) if (firstWindow[at] === LF) lineFeeds++;
+  if (lineFeeds === 0) return most;
+  const averageLine = rowBytes / lineFeeds;
+  return Math.min(most, Math.ceil((windowBytes / averageLine) * 1.25) + 1024);
+}
+
+/** Arrays for `rows` rows of a window, on shared memory. Only the pages the rows are written to take memory. */
+export function windowArraysFor(layout: CsvLayout, rows: number): WindowArrays {
   const columns = columnsOfLayout(layout).map(({ builder }) => builder.emptyArray(rows));
   return { lines: sharedInt32Array(rows), columns };
+}
+
+/**
+ * Reads a window's rows (`readWindowRows`) into the arrays of its slot, `slots[slot]`. A window of
+ * more rows than they hold grows them as the one-thread reader grows its own, and the slot keeps
+ * the grown arrays for its next windows (read by this thread), so fresh memory is taken once.
+ * The arrays a thread keeps for a slot are only written by the windows of that slot, each read
+ * after the one before it was joined.
+ */
+export function readWindowIntoSlot(
+  layout: CsvLayout,
+  bytes: Buffer,
+  start: number,
+  startLine: number,
+  final: boolean,
+  slots: WindowArrays[],
+  slot: number,
+): WindowRows {
+  const rows = readWindowRows(layout, bytes, start, startLine, final, slots[slot]);
+  if (!rows.spilled) slots[slot] = { lines: rows.lines, columns: rows.columns.map((column) => ('codes' in column ? column.codes : column.values)) };
+  return rows;
 }
 
 /** One column of a window's rows: the builder's arrays, of which the window's first `accepted` rows count. */

@@ -3,7 +3,7 @@ import { MessageChannel, receiveMessageOnPort, type Worker } from 'node:worker_t
 import { siblingModuleWorker } from '../threads/module-worker.js';
 import { rebuildThrown } from '../threads/thrown.js';
 import { BackgroundHash } from './background-hash.js';
-import { estimateRows, settleLayout, windowArraysFor, type CsvLayout, type WindowArrays, type WindowRows } from './csv-reader.js';
+import { estimateRows, settleLayout, windowArraysFor, windowRowsFor, type CsvLayout, type WindowArrays, type WindowRows } from './csv-reader.js';
 import { WindowStitcher } from './csv-stitch.js';
 import { openInputFile, tooLarge } from './input-file.js';
 import type { ReadLimits } from './limits.js';
@@ -110,7 +110,8 @@ class TwoThreadRead {
     const filled = this.fillNextSlot();
     const layout = this.layoutOfFirstWindow(filled, kind, profile, limits);
     this.publish(filled, layout.firstRow);
-    const arrays = this.ring.slots.map((slot) => windowArraysFor(layout, slot.length));
+    const rowsPerSlot = windowRowsFor(layout, this.ring.window(0).bytes, this.ring.slots[0].length);
+    const arrays = this.ring.slots.map(() => windowArraysFor(layout, rowsPerSlot));
     const stitcher = new WindowStitcher(layout, estimateRows(this.ring.slots[0], layout.headerStart, this.size));
     const job = { layout, ring: this.ring.shared, arrays, columns: stitcher.memory(), port: this.channel.port2 };
     this.worker.postMessage(job, [this.channel.port2]);
@@ -156,7 +157,7 @@ class TwoThreadRead {
    * Until every window is joined: join the finished windows in order, keep the ring full, parse the
    * next window no one has taken, and wait for the worker only when there is nothing else to do.
    */
-  private parseAndJoin(layout: CsvLayout, arrays: readonly WindowArrays[], stitcher: WindowStitcher): void {
+  private parseAndJoin(layout: CsvLayout, arrays: WindowArrays[], stitcher: WindowStitcher): void {
     const parsed = new Map<number, WindowRows>();
     let joined = 0;
     for (;;) {

@@ -1,5 +1,5 @@
 import type { ThrownElsewhere } from '../threads/thrown.js';
-import { readWindowRows, type CsvLayout, type WindowArrays, type WindowRows } from './csv-reader.js';
+import { readWindowIntoSlot, type CsvLayout, type WindowArrays, type WindowRows } from './csv-reader.js';
 
 /**
  * The ring of read windows a large CSV file is parsed through on two threads (csv-ring.ts): a few
@@ -127,11 +127,12 @@ export class WindowRing {
 }
 
 /**
- * Parses one window of the ring into the arrays of its slot (`arrays[slot]`), which its previous
- * window no longer needs (it was joined before this one was read): the first window goes on from
- * the header's line, every other one counts from line 1.
+ * Parses one window of the ring into the arrays of its slot (`arrays[slot]`, this thread's, which
+ * keeps them when the window grows them), which its previous window no longer needs (it was joined
+ * before this one was read): the first window goes on from the header's line, every other one
+ * counts from line 1.
  */
-export function parseRingWindow(layout: CsvLayout, ring: WindowRing, window: number, arrays: readonly WindowArrays[]): WindowRows {
+export function parseRingWindow(layout: CsvLayout, ring: WindowRing, window: number, arrays: WindowArrays[]): WindowRows {
   const { bytes, start, final } = ring.window(window);
-  return readWindowRows(layout, bytes, start, window === 0 ? layout.firstLine : 1, final, arrays[window % arrays.length]);
+  return readWindowIntoSlot(layout, bytes, start, window === 0 ? layout.firstLine : 1, final, arrays, window % arrays.length);
 }
