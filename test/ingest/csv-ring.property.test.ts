@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, describe, expect, it } from 'vitest';
-import { readCsvBuffer, readWindowRows, settleLayout, windowArraysFor, estimateRows, type WindowRows } from '../../src/ingest/csv-reader.js';
+import { readCsvBuffer, readWindowIntoSlot, settleLayout, windowArraysFor, windowRowsFor, estimateRows, type WindowRows } from '../../src/ingest/csv-reader.js';
 import { readCsvOnTwoThreads } from '../../src/ingest/csv-ring.js';
 import { readCsvSource } from '../../src/ingest/csv-source.js';
 import { WindowStitcher } from '../../src/ingest/csv-stitch.js';
@@ -85,10 +85,19 @@ function lineFeedEnds(bytes: Buffer, from: number): number[] {
  * windows end at the chosen line feeds; at each step either a window in the ring (at most `slots`
  * windows past the last joined one) is parsed, on the "main thread" or on the "worker" (its rows
  * then cross as a message does, by structured clone), or the next parsed window is joined. Each
- * window is parsed into the arrays of its slot, as in the ring. Answers null where the ring gives
- * the file back to the one-thread reader.
+ * window is parsed into the arrays of its slot, as in the ring, each "thread" keeping its own
+ * arrays per slot (grown when a window holds more rows than `slotRows`, or sized as the ring sizes
+ * them when it is null). Answers null where the ring gives the file back to the one-thread reader.
  */
-function readThroughWindows(bytes: Buffer, kind: FileKind, feedProfile: FeedProfile, cuts: number[], slots: number, choose: (n: number) => number): IngestResult | null {
+function readThroughWindows(
+  bytes: Buffer,
+  kind: FileKind,
+  feedProfile: FeedProfile,
+  cuts: number[],
+  slots: number,
+  slotRows: number | null,
+  choose: (n: number) => number,
+): IngestResult | null {
   // The ring settles the layout from its first slot, which holds the first window and the start
   // of the next (the bytes after its last line feed): here up to the second cut.
   const slotEnd = cuts[1] ?? bytes.length;
@@ -103,7 +112,8 @@ function readThroughWindows(bytes: Buffer, kind: FileKind, feedProfile: FeedProf
   const ends = [...cuts, bytes.length];
   if (layout.firstRow > ends[0]) return null;
   const longest = Math.max(...ends.map((end, k) => end - starts[k]));
-  const arrays = Array.from({ length: slots }, () => windowArraysFor(layout, longest));
+  const rows = slotRows ?? windowRowsFor(layout, bytes.subarray(0, ends[0]), longest);
+  const arraysOfThread = [0, 1].map(() => Array.from({ length: slots }, () => windowArraysFor(layout, rows)));
   const stitcher = new WindowStitcher(layout, estimateRows(bytes, layout.headerStart, bytes.length));
   const parsed = new Map<number, WindowRows>();
   let joined = 0;
@@ -115,8 +125,10 @@ function readThroughWindows(bytes: Buffer, kind: FileKind, feedProfile: FeedProf
     if (pick < open.length) {
       const w = open[pick];
       const window = Buffer.from(bytes.subarray(starts[w], ends[w]));
-      const rows = readWindowRows(layout, window, w === 0 ? layout.firstRow : 0, w === 0 ? layout.firstLine : 1, w === ends.length - 1, arrays[w % slots]);
-      parsed.set(w, choose(2) === 0 ? rows : structuredClone(rows));
+      const onWorker = choose(2) === 1;
+      const start = w === 0 ? layout.firstRow : 0;
+      const rows = readWindowIntoSlot(layout, window, start, w === 0 ? layout.firstLine : 1, w === ends.length - 1, arraysOfThread[onWorker ? 1 : 0], w % slots);
+      parsed.set(w, onWorker ? structuredClone(rows) : rows);
       continue;
     }
     const rows = parsed.get(joined)!;
@@ -135,15 +147,17 @@ function giveUp(): never {
 describe('a CSV file parsed window by window on two threads gives what the one-thread reader gives', () => {
   it('for any cuts at line feeds, any assignment of windows to threads and any order of parsing', () => {
     let joinedRuns = 0;
+    // The slots' arrays: sized as the ring sizes them, or for a few rows (windows of more rows grow them).
+    const slotRows = fc.option(fc.integer({ min: 1, max: 6 }), { nil: null });
     fc.assert(
-      fc.property(feedFile, profiles, fc.array(fc.boolean(), { minLength: 1, maxLength: 48 }), fc.integer({ min: 1, max: 4 }), fc.infiniteStream(fc.nat()), ({ text, kind }, feedProfile, cutAt, slots, stream) => {
+      fc.property(feedFile, profiles, fc.array(fc.boolean(), { minLength: 1, maxLength: 48 }), fc.integer({ min: 1, max: 4 }), slotRows, fc.infiniteStream(fc.nat()), ({ text, kind }, feedProfile, cutAt, slots, rows, stream) => {
         const bytes = Buffer.from(text, 'utf8');
         // The window ends: any subset of the line feeds (all of them for the files of up to 48 lines).
         const cuts = lineFeedEnds(bytes, 0).filter((_, k) => cutAt[k % cutAt.length]);
         const choices = stream[Symbol.iterator]();
         const choose = (n: number) => (choices.next().value as number) % n;
         const whole = outcome(() => readCsvBuffer(bytes, 'feed.csv', kind, feedProfile, ANY_DATE_LIMITS));
-        const windowed = outcome(() => readThroughWindows(bytes, kind, feedProfile, cuts.filter((cut) => cut < bytes.length), slots, choose));
+        const windowed = outcome(() => readThroughWindows(bytes, kind, feedProfile, cuts.filter((cut) => cut < bytes.length), slots, rows, choose));
         if ('value' in windowed && windowed.value !== null) {
           joinedRuns++;
           expect(windowed.value).toStrictEqual((whole as { value: IngestResult }).value);
@@ -156,6 +170,21 @@ describe('a CSV file parsed window by window on two threads gives what the one-t
     );
     // Most files are joined from windows, not given back (the comparison above is not vacuous).
     expect(joinedRuns).toBeGreaterThan(1500);
+  });
+});
+
+describe('the rows a slot of the ring is sized for', () => {
+  const layout = settleLayout({ bytes: Buffer.from('series_id,date,nav\n'), final: true, totalBytes: 19, moveOn: giveUp, takeAll: giveUp }, 'feed.csv', 'nav', profile(), ANY_DATE_LIMITS);
+  const lines = (count: number, line: string) => Buffer.from('series_id,date,nav\n' + `${line}\n`.repeat(count));
+
+  it('are the first window\'s rows scaled to a whole window, with a quarter and 1,024 rows to spare', () => {
+    // 1,000 lines of 30 bytes (29 and the line feed) in the first window; windows of 3 MB.
+    expect(windowRowsFor(layout, lines(1000, 'NVA00001,2026-11-27,101.25000'), 3_000_000)).toBe(Math.ceil((3_000_000 / 30) * 1.25) + 1024);
+  });
+
+  it('are never more than a window can hold, a byte per field, nor the most when the first window has no line end', () => {
+    expect(windowRowsFor(layout, lines(1000, ',,'), 3_000)).toBe(1001);
+    expect(windowRowsFor(layout, Buffer.from('series_id,date,nav\nNVA1,2026-11-27,1'), 3_000)).toBe(1001);
   });
 });
 
@@ -200,6 +229,28 @@ describe('reading a file on two threads (a worker and the main thread, through t
     expect(whole.rows).toEqual({ read: 3001, accepted: 3000, rejected: 1 });
     expect(whole.rejected[0].line).toBe(1502);
     expect(whole.table.lines[2999]).toBe(3002);
+  });
+
+  it('grows the arrays of windows fuller of rows than the first, and keeps the grown ones for the slot', () => {
+    // The first 64 KiB window holds 300 lines of some 220 bytes, so the slots are sized for some
+    // 1,400 rows; the windows after it hold some 4,000 lines of 16 bytes.
+    const longId = (k: number) => `NVA${String(k).padStart(4, '0')}${'X'.repeat(200)}`;
+    const long = Array.from({ length: 300 }, (_, k) => `${longId(k % 7)},2026-11-${String(1 + (k % 28)).padStart(2, '0')},${k}.25`);
+    const short = Array.from({ length: 30_000 }, (_, k) => `N${k % 9},2026-10-${String(1 + (k % 28)).padStart(2, '0')},${k % 97}`);
+    const text = ['series_id,date,nav', ...long, ...short.slice(0, 20_000), 'N1,2026-02-30,1', ...short.slice(20_000)].join('\n') + '\n';
+    const path = join(dir, 'short-lines.csv');
+    writeFileSync(path, text);
+    const feedProfile = profile({ date_format: 'iso' });
+    const layout = settleLayout({ bytes: Buffer.from(text).subarray(0, 65536), final: false, totalBytes: text.length, moveOn: giveUp, takeAll: giveUp }, path, 'nav', feedProfile, ANY_DATE_LIMITS);
+    const sized = windowRowsFor(layout, Buffer.from(text).subarray(0, 65536), 65536);
+    expect(sized).toBeGreaterThan(1200);
+    expect(sized).toBeLessThan(1600);
+    const read = readCsvOnTwoThreads(path, 'nav', feedProfile, ANY_DATE_LIMITS, 65536, 0);
+    expect(read).not.toBeNull();
+    const whole = readCsvBuffer(Buffer.from(text), path, 'nav', feedProfile, ANY_DATE_LIMITS);
+    expect(read!.result).toStrictEqual(whole);
+    expect(whole.rows).toEqual({ read: 30_301, accepted: 30_300, rejected: 1 });
+    expect(whole.rejected[0].line).toBe(20_302);
   });
 
   it('gives a file whose quoted field runs over a window end back to the one-thread reader, with the same answer', () => {
