@@ -21,16 +21,16 @@ const PIECE_CHARACTERS = 1 << 16;
  * Text written a piece at a time into one reused byte buffer, for a file of many short cells
  * (figures.csv: 360,000 lines of seven cells). Lines built as template strings were trees of
  * small strings joined again into a piece: garbage of several times the text, and a tree that a
- * collection caught half built was copied and kept. Here each ASCII cell's characters go straight
- * into the buffer, and a full piece is read back as one flat string (Latin-1, a plain copy),
- * which the file writer encodes again. A cell holding any other character is kept as the string
- * it is, beside the bytes before it, so the pieces join to exactly the text written (a lone
- * surrogate included).
+ * collection caught half built was copied and kept. Here each cell's characters go straight into
+ * the buffer, one byte each, and a full piece is read back as one flat string (Latin-1, a plain
+ * copy), which the file writer encodes. A cell holding a character beyond Latin-1 is kept as the
+ * string it is, beside the bytes before it, so the pieces join to exactly the text written (a
+ * lone surrogate included).
  */
 export class TextPieceBuilder {
   private bytes = Buffer.allocUnsafe(PIECE_BYTES + MARGIN_BYTES);
   private used = 0;
-  /** The piece's text before its bytes, when it holds cells that are not ASCII. */
+  /** The piece's text before its bytes, when it holds cells beyond Latin-1. */
   private before: string[] = [];
   private beforeLength = 0;
 
@@ -47,7 +47,7 @@ export class TextPieceBuilder {
     let at = this.used;
     for (let i = 0; i < length; i++) {
       const code = text.charCodeAt(i);
-      if (code >= 0x80) {
+      if (code > 0xff) {
         this.keepAsString(text);
         return;
       }
@@ -56,7 +56,7 @@ export class TextPieceBuilder {
     this.used = at;
   }
 
-  /** Writes one ASCII character (a comma, a line feed) by its code. */
+  /** Writes one Latin-1 character (a comma, a line feed) by its code. */
   code(code: number): void {
     if (this.used === this.bytes.length) this.grow(1);
     this.bytes[this.used++] = code;
@@ -72,7 +72,7 @@ export class TextPieceBuilder {
     return piece;
   }
 
-  /** A text beyond ASCII: the bytes so far become a string, and the text follows them as it is. */
+  /** A text beyond Latin-1: the bytes so far become a string, and the text follows them as it is. */
   private keepAsString(text: string): void {
     this.before.push(this.bytes.toString('latin1', 0, this.used), text);
     this.beforeLength += this.used + text.length;
