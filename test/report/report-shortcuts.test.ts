@@ -11,6 +11,7 @@ import type { SeriesMasterRecord } from '../../src/ingest/records.js';
 import { markSuspectFigures } from '../../src/reconcile/suspect-data.js';
 import { FIGURES_SHOWN_AT_MOST, summarizeFigures } from '../../src/report/daily/daily-report.js';
 import { needingALook } from '../../src/report/daily/reconcile-rows.js';
+import { breachesFirst } from '../../src/report/daily/daily-html.js';
 import { figuresCsv } from '../../src/report/daily/write-daily.js';
 import { csvCell, csvLine } from '../../src/report/safe-text.js';
 import { linesInPieces, TextPieceBuilder } from '../../src/report/text-pieces.js';
@@ -87,6 +88,17 @@ describe('report shortcuts give what the plain code gave', () => {
       fc.property(results, fc.oneof(fc.nat(320), fc.constant(Infinity)), (rows: ReconciliationResultLike[], atMost) => {
         const plain = rows.filter((r) => r.status !== 'match').sort((a, b) => rank(a.status) - rank(b.status));
         expect(needingALook(rows, atMost)).toEqual(plain.slice(0, atMost));
+      }),
+    );
+  });
+
+  it('the results the tolerance chart plots, breaches first, are those of a filter and a stable sort', () => {
+    const row = fc.record({ series_id: fc.string({ maxLength: 2 }), status, vendor: fc.oneof(fc.double(), fc.constant(null)) });
+    fc.assert(
+      fc.property(fc.array(row, { maxLength: 120 }), fc.nat(50), (rows, count) => {
+        const plottable = (r: { vendor: number | null }) => typeof r.vendor === 'number';
+        const plain = rows.filter(plottable).sort((a, b) => Number(b.status === 'breach') - Number(a.status === 'breach'));
+        expect(breachesFirst(rows, plottable, count)).toEqual(plain.slice(0, count));
       }),
     );
   });
