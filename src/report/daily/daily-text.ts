@@ -1,8 +1,7 @@
 import { needingALook } from './reconcile-rows.js';
 import { SEVERITIES } from '../../findings.js';
-import type { ReconciliationResultLike } from '../../tickets/ticket.js';
-import { csvCell, csvLine, markdownText, memoizedCsvCell } from '../safe-text.js';
-import { TextPieceBuilder } from '../text-pieces.js';
+import { csvCell, csvLine, markdownText } from '../safe-text.js';
+import { linesInPieces } from '../text-pieces.js';
 import { cellText } from '../view.js';
 import { figureGrid, figureNote, findingsByCheck, headline, ticketDates, ticketsNeedingPerson, type DailyReport } from './daily-report.js';
 
@@ -55,50 +54,12 @@ export function renderDailyCsv(report: DailyReport): string {
   return [...dailyCsvLines(report)].join('\n') + '\n';
 }
 
-/**
- * The same text as `renderDailyCsv`, in pieces for a file: the reconciliation's lines (one per
- * vendor figure, 360,000 at 10,000 series) written cell by cell into reused bytes.
- */
-export function* dailyCsvInPieces(report: DailyReport): Generator<string> {
-  const out = new TextPieceBuilder();
-  for (const line of dailyCsvLinesBeforeReconciliation(report)) {
-    out.text(line);
-    out.code(LINE_FEED);
-    if (out.full) yield out.take();
-  }
-  const cell = memoizedCsvCell();
-  const textCell = (text: string | null | undefined) => (text === undefined || text === null ? '' : cell(text));
-  for (const r of report.reconciliation?.results ?? []) {
-    // The cells of reconciliationLine.
-    out.text('reconciliation,');
-    out.text(textCell(r.status));
-    out.text(',,');
-    out.text(textCell(r.metric));
-    out.code(COMMA);
-    out.text(textCell(r.series_id));
-    out.text(',,,');
-    out.text(textCell(r.window));
-    out.code(COMMA);
-    out.text(textCell(r.reason));
-    out.code(COMMA);
-    out.text(csvCell(r.vendor ?? null));
-    out.code(COMMA);
-    out.code(LINE_FEED);
-    if (out.full) yield out.take();
-  }
-  const last = out.take();
-  if (last.length > 0) yield last;
+/** The same text as `renderDailyCsv`, in pieces for a file. */
+export function dailyCsvInPieces(report: DailyReport): Iterable<string> {
+  return linesInPieces(dailyCsvLines(report));
 }
-
-const COMMA = 0x2c;
-const LINE_FEED = 0x0a;
 
 function* dailyCsvLines(report: DailyReport): Generator<string> {
-  yield* dailyCsvLinesBeforeReconciliation(report);
-  for (const r of report.reconciliation?.results ?? []) yield reconciliationLine(r);
-}
-
-function* dailyCsvLinesBeforeReconciliation(report: DailyReport): Generator<string> {
   yield csvLine(DAILY_CSV_COLUMNS);
   for (const r of report.tickets.records) yield csvLine(['ticket', r.silenced ? 'acknowledged' : r.state, r.severity, r.check, r.series_ids.join(' '), r.start, r.end, r.title, r.action, null, r.key]);
   for (const p of report.patterns) yield csvLine(['pattern', null, p.severity, p.check, null, p.start, p.end, p.message, ((p.evidence.series_ids as string[]) ?? []).join(' '), null, p.key]);
@@ -107,9 +68,8 @@ function* dailyCsvLinesBeforeReconciliation(report: DailyReport): Generator<stri
     if (x.value !== null && x.flagged_by.length === 0) continue;
     yield csvLine(['figure', x.value === null ? 'not_computable' : 'flagged', null, x.metric, x.series_id, null, null, x.window, figureNote(x), x.value, null]);
   }
-}
-
-/** One line per vendor figure: csvLine's cells without an array per line. */
-function reconciliationLine(r: ReconciliationResultLike): string {
-  return `reconciliation,${csvCell(r.status)},,${csvCell(r.metric ?? null)},${csvCell(r.series_id)},,,${csvCell(r.window ?? null)},${csvCell(r.reason ?? null)},${csvCell(r.vendor ?? null)},`;
+  // One line per vendor figure (360,000 at 10,000 series): csvLine's cells without an array per line.
+  for (const r of report.reconciliation?.results ?? []) {
+    yield `reconciliation,${csvCell(r.status)},,${csvCell(r.metric ?? null)},${csvCell(r.series_id)},,,${csvCell(r.window ?? null)},${csvCell(r.reason ?? null)},${csvCell(r.vendor ?? null)},`;
+  }
 }
