@@ -1,11 +1,11 @@
 import { formatIsoDate } from '../calendar/days.js';
 import type { SeriesMasterRecord } from '../ingest/records.js';
 import { findSeries, type SeriesFrame, type SeriesSlice } from '../series/frame.js';
-import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
+import { figureOrReason, METRIC_IDS, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { failure, success, type Outcome } from '../outcome.js';
 import { sampleWindow, type BenchmarkSource, type FundSample, type RiskFreeSource, type SampleParts, type WindowRequest, type WindowSample } from './sampling.js';
-import { log1pAll, windowStatistics, type WindowStatistics } from './statistics.js';
+import { log1pAll, sum, sumOfLog1p, windowStatistics, type WindowStatistics } from './statistics.js';
 import { parseWindow, windowMonths, type WindowMonths } from './windows.js';
 
 /** The data metrics are computed from. */
@@ -75,19 +75,29 @@ export function computeMetrics(request: ComputeMetricsRequest, calculator = new 
   return { as_of: formatIsoDate(request.asOf), methodology: describeMethodology(methodology), metrics: rows };
 }
 
-/** A figure as a row of the answer: the figure's fields after the row's, `reason` only when there is one. */
+/**
+ * A figure as a row of the answer: the figure's fields after the row's, `reason` only when there
+ * is one. Built straight from the figure (not from a MetricValue): one object per row.
+ */
 function metricRow(series_id: string, window: string, metric: MetricId, stats: Outcome<WindowStatistics>, methodology: Methodology): MetricRow {
-  const { value, observations, reason } = figureOf(metric, stats, methodology);
-  return reason === undefined ? { series_id, window, metric, value, observations } : { series_id, window, metric, value, observations, reason };
+  if (!stats.ok) return { series_id, window, metric, value: null, observations: 0, reason: stats.reason };
+  const observations = observationsOf(metric, stats.value, methodology);
+  const figure = figureOrReason(metric, stats.value, methodology);
+  return typeof figure === 'number'
+    ? { series_id, window, metric, value: figure, observations }
+    : { series_id, window, metric, value: null, observations, reason: figure.reason };
 }
 
 /** A metric from a window's statistics (or the window's own reason), as the answer reports it. */
 function figureOf(metric: MetricId, stats: Outcome<WindowStatistics>, methodology: Methodology): MetricValue {
   if (!stats.ok) return { value: null, observations: 0, reason: stats.reason };
-  const observations = metric === 'max_drawdown' ? drawdownObservations(stats.value, methodology) : stats.value.n;
-  const outcome = metricFromStatistics(metric, stats.value, methodology);
-  if (!outcome.ok) return { value: null, observations, reason: outcome.reason };
-  return { value: outcome.value, observations };
+  const observations = observationsOf(metric, stats.value, methodology);
+  const figure = figureOrReason(metric, stats.value, methodology);
+  return typeof figure === 'number' ? { value: figure, observations } : { value: null, observations, reason: figure.reason };
+}
+
+function observationsOf(metric: MetricId, stats: WindowStatistics, methodology: Methodology): number {
+  return metric === 'max_drawdown' ? drawdownObservations(stats, methodology) : stats.n;
 }
 
 /** The values max_drawdown runs over: every NAV observation, or the n + 1 sample points. */
@@ -174,7 +184,13 @@ export class MetricCalculator {
       const window = this.windowRequest({ ...request, methodology });
       const sample = window.ok ? sampleWindow(window.value, this.partsFor(window.value, reuse)) : window;
       const logOf = (returns: Float64Array) => this.sources.logOf(returns) ?? (reuse ? reuse.logOf(returns) : log1pAll(returns));
-      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, logOf) } : sample;
+      // A window sampled once (every window of the metrics stage) reads Σ ln(1 + r) of its fund
+      // returns and never their logarithms: summed as they are taken, no array is made for them.
+      const growthOf = (returns: Float64Array) => {
+        const logs = this.sources.logOf(returns) ?? (reuse ? reuse.logOf(returns) : undefined);
+        return logs === undefined ? sumOfLog1p(returns) : sum(logs);
+      };
+      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, logOf, growthOf) } : sample;
       byAsOf.set(request.asOf, stats);
     }
     return stats;
@@ -373,9 +389,10 @@ class SourceParts {
   }
 
   private part(kept: KeptPart[], days: Int32Array, compute: () => Outcome<Float64Array>): Outcome<Float64Array> {
-    const at = kept.findIndex((entry) => sameDays(entry.days, days));
+    const at = keptIndex(kept, days);
     if (at >= 0) {
       const entry = kept[at];
+      entry.lastAskedWith = days;
       if (at > 0) {
         kept.splice(at, 1);
         kept.unshift(entry);
@@ -383,7 +400,7 @@ class SourceParts {
       return entry.part;
     }
     const part = compute();
-    kept.unshift({ days, part });
+    kept.unshift({ days, part, lastAskedWith: days });
     if (part.ok) this.logs.set(part.value, null);
     const dropped = kept.length > PARTS_KEPT_PER_KEY ? kept.pop() : undefined;
     if (dropped?.part.ok) this.logs.delete(dropped.part.value);
@@ -409,6 +426,18 @@ function keptUnder<K>(map: Map<K, KeptPart[]>, key: K): KeptPart[] {
 interface KeptPart {
   readonly days: Int32Array;
   readonly part: Outcome<Float64Array>;
+  /**
+   * The days array this part was last found for: the convention search asks with one series'
+   * days array again and again, and a daily window's days are over a thousand to compare.
+   */
+  lastAskedWith: Int32Array;
+}
+
+/** The kept part computed on these days, or −1. */
+function keptIndex(kept: readonly KeptPart[], days: Int32Array): number {
+  for (let at = 0; at < kept.length; at++) if (kept[at].lastAskedWith === days) return at;
+  for (let at = 0; at < kept.length; at++) if (sameDays(kept[at].days, days)) return at;
+  return -1;
 }
 
 /** Parts kept per key: room for a few calendars (the standard universe has two). */

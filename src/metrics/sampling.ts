@@ -175,15 +175,20 @@ export function coverWindow(series: Observations, span: WindowMonths, cutoff: nu
     return { ok: false, reason: `no ${what} observations on or before the as-of day` };
   }
   const indices = monthEndIndices(series.dates, span, cutoff);
-  const missing: number[] = [];
-  indices.forEach((index, k) => index < 0 && missing.push(span.startMonth + k));
-  if (missing.length > 0) return { ok: false, reason: missingMonthsReason(series, span, missing, what) };
+  if (indices.includes(-1)) return { ok: false, reason: missingMonthsReason(series, span, missingMonths(indices, span), what) };
   return positiveAt(series, indices, what);
+}
+
+function missingMonths(indices: Int32Array, span: WindowMonths): number[] {
+  const missing: number[] = [];
+  for (let k = 0; k < indices.length; k++) if (indices[k] < 0) missing.push(span.startMonth + k);
+  return missing;
 }
 
 /** The sample points, or the reason one of their values cannot start or end a return. */
 function positiveAt(series: Observations, points: Int32Array, what: string): Outcome<Int32Array> {
-  for (const index of points) {
+  for (let k = 0; k < points.length; k++) {
+    const index = points[k];
     const value = series.values[index];
     if (!(value > 0 && value < Infinity)) {
       return { ok: false, reason: `${what} ${value} on ${formatIsoDate(series.dates[index])} is not a positive number` };
@@ -222,12 +227,19 @@ export function samplePoints(dates: Int32Array, monthEnds: Int32Array, frequency
   if (frequency === 'monthly') return monthEnds;
   const first = monthEnds[0];
   const last = monthEnds[monthEnds.length - 1];
-  const points: number[] = [first];
+  // At most one point per observation: written into an array of that size, then cut to the count.
+  const points = new Int32Array(Math.max(last - first, 0) + 1);
+  let count = 0;
+  points[count++] = first;
+  // Each observation's period is computed once, as the next one's is compared with it.
+  let period = first + 1 < last ? periodKey(dates[first + 1], frequency) : 0;
   for (let i = first + 1; i < last; i++) {
-    if (periodKey(dates[i + 1], frequency) !== periodKey(dates[i], frequency)) points.push(i);
+    const next = periodKey(dates[i + 1], frequency);
+    if (next !== period) points[count++] = i;
+    period = next;
   }
-  if (last > first) points.push(last);
-  return Int32Array.from(points);
+  if (last > first) points[count++] = last;
+  return count === points.length ? points : points.slice(0, count);
 }
 
 function gatherDays(dates: Int32Array, points: Int32Array): Int32Array {
