@@ -4,7 +4,7 @@ import { findSeries, type SeriesFrame, type SeriesSlice } from '../series/frame.
 import { figureOrReason, METRIC_IDS, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { failure, success, type Outcome } from '../outcome.js';
-import { sampleWindow, type BenchmarkSource, type FundSample, type RiskFreeSource, type SampleParts, type WindowRequest, type WindowSample } from './sampling.js';
+import { laterMonthlyStart, sampleWindow, type BenchmarkSource, type FundSample, type Observations, type RiskFreeSource, type SampleParts, type WindowRequest, type WindowSample } from './sampling.js';
 import { log1pAll, sum, sumOfLog1p, windowStatistics, type WindowStatistics } from './statistics.js';
 import { parseWindow, windowMonths, type WindowMonths } from './windows.js';
 
@@ -66,13 +66,25 @@ export function computeMetrics(request: ComputeMetricsRequest, calculator = new 
   const methodology = calculator.effectiveMethodology(request.methodology);
   const metrics = request.metrics ?? METRIC_IDS;
   const rows: MetricRow[] = [];
+  const longestFirst = longestFirstOrder(request.windows);
+  const stats: Outcome<WindowStatistics>[] = new Array(request.windows.length);
   for (const seriesId of calculator.seriesIds()) {
-    for (const window of request.windows) {
-      const stats = calculator.statistics({ seriesId, asOf: request.asOf, window, methodology });
-      for (const metric of metrics) rows.push(metricRow(seriesId, window, metric, stats, methodology));
-    }
+    // The longest window first, so the shorter ones are cut from its sample (LatestMonthlyFundSample).
+    for (const at of longestFirst) stats[at] = calculator.statistics({ seriesId, asOf: request.asOf, window: request.windows[at], methodology });
+    request.windows.forEach((window, at) => {
+      for (const metric of metrics) rows.push(metricRow(seriesId, window, metric, stats[at], methodology));
+    });
   }
   return { as_of: formatIsoDate(request.asOf), methodology: describeMethodology(methodology), metrics: rows };
+}
+
+/**
+ * Positions of the windows, longest first (ties and unknown labels in their given order, unknown
+ * labels first, so the first unknown label still throws first).
+ */
+function longestFirstOrder(windows: readonly string[]): number[] {
+  const months = windows.map((window) => parseWindow(window) ?? Infinity);
+  return windows.map((_, at) => at).sort((a, b) => months[b] - months[a] || a - b);
 }
 
 /**
@@ -124,6 +136,7 @@ export class MetricCalculator {
   private latestSeries: LatestSeriesStatistics | null = null;
   private readonly parts = new LatestSeriesParts();
   private readonly sources = new SourceParts();
+  private readonly monthlyFunds = new LatestMonthlyFundSample();
   private readonly spans = new Map<string, Map<number, Map<number, WindowMonths>>>();
   /** The latest fund's slice, and every benchmark's and rate's asked for (a frame holds few of them). */
   private readonly funds: Slices;
@@ -250,8 +263,9 @@ export class MetricCalculator {
    * sampled before, the benchmark's and the rate's across series (SourceParts).
    */
   private partsFor(window: SharedPartsRequest, reuse: SeriesReuse | null): SampleParts {
+    const fund = (compute: () => Outcome<FundSample>) => this.monthlyFunds.sample(window, compute);
     return {
-      fund: reuse ? reuse.fund : (compute) => compute(),
+      fund: reuse ? (compute) => reuse.fund(() => fund(compute)) : fund,
       benchmark: this.sources.benchmarkKeeper(window),
       riskFree: this.sources.riskFreeKeeper(window),
     };
@@ -448,6 +462,27 @@ function sameDays(a: Int32Array, b: Int32Array): boolean {
   if (a.length !== b.length) return false;
   for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
   return true;
+}
+
+/**
+ * The latest fund's longest monthly sample for one as-of and window end, from which its shorter
+ * windows ending in the same month are cut (sampling.ts, laterMonthlyStart): the metrics stage's
+ * 1y and 3y windows are the last months of its 5y window, which it therefore samples first.
+ */
+class LatestMonthlyFundSample {
+  private kept: { readonly fund: Observations; readonly asOf: number; readonly span: WindowMonths; readonly sample: FundSample } | null = null;
+
+  sample(window: SharedPartsRequest, compute: () => Outcome<FundSample>): Outcome<FundSample> {
+    if (window.frequency !== 'monthly') return compute();
+    const kept = this.kept;
+    const sameEnd = kept !== null && kept.fund === window.fund && kept.asOf === window.asOf && kept.span.endMonth === window.span.endMonth;
+    if (sameEnd && kept.span.startMonth <= window.span.startMonth) {
+      return { ok: true, value: laterMonthlyStart(window.fund, kept.sample, window.span.startMonth - kept.span.startMonth) };
+    }
+    const sampled = compute();
+    if (sampled.ok) this.kept = { fund: window.fund, asOf: window.asOf, span: window.span, sample: sampled.value };
+    return sampled;
+  }
 }
 
 /** What a window sampled again for the latest series reuses: its fund part, and logarithms once computed. */

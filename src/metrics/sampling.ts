@@ -55,8 +55,13 @@ export interface WindowSample {
 /** A weekly or daily period without a rate may take the latest one observed this many days before its end. */
 export const RATE_LOOKBACK_DAYS = 31;
 
-/** The fund's part of a window's sample: it depends on the fund, the window and the frequency only. */
-export type FundSample = Pick<WindowSample, 'fund' | 'navPath' | 'pointDays'>;
+/**
+ * The fund's part of a window's sample: it depends on the fund, the window and the frequency
+ * only. `points` are the sample points' indices in the fund's observations.
+ */
+export interface FundSample extends Pick<WindowSample, 'fund' | 'navPath' | 'pointDays'> {
+  readonly points: Int32Array;
+}
 
 /**
  * Where a caller may keep the three parts of a window's sample between calls. The convention
@@ -113,7 +118,26 @@ function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'fre
       fund: returnsAt(fund.values, points),
       navPath: fund.values.subarray(points[0], points[points.length - 1] + 1),
       pointDays: gatherDays(fund.dates, points),
+      points,
     },
+  };
+}
+
+/**
+ * The monthly sample of a window that ends in the same month as `longer`'s and starts `months`
+ * months later, cut from it. A month's month-end value is found from its own month alone
+ * (monthEndIndices), so the shorter window's points are the longer one's last points, all
+ * positive, and its returns, days and NAV path are the longer one's last ones: the same numbers
+ * sampleFund would compute, without computing them. Monthly only: at other frequencies the first
+ * point (a month-end value) need not be one of the longer window's points.
+ */
+export function laterMonthlyStart(fund: Observations, longer: FundSample, months: number): FundSample {
+  const points = longer.points.subarray(months);
+  return {
+    fund: longer.fund.subarray(months),
+    navPath: fund.values.subarray(points[0], points[points.length - 1] + 1),
+    pointDays: longer.pointDays.subarray(months),
+    points,
   };
 }
 
