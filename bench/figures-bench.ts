@@ -27,7 +27,11 @@ const loaded = await loadDay({ paths: config.paths, asOf, load: loadOptionsOf(co
 const check = await checkStage(loaded, config.checks, { threads: 2 });
 const figureRequest = { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology };
 
+/** With BENCH_MARKS set, each part's start is printed, to read with --trace-gc. */
+const marks = process.env.BENCH_MARKS !== undefined;
+
 function timed<T>(work: () => T): { result: T; wall: number; cpu: number } {
+  if (marks) console.log(`--- ${work.toString().slice(6, 40)}`);
   const t0 = process.hrtime.bigint();
   const cpu0 = process.cpuUsage();
   const result = work();

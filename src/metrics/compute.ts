@@ -470,7 +470,7 @@ function sameDays(a: Int32Array, b: Int32Array): boolean {
  * 1y and 3y windows are the last months of its 5y window, which it therefore samples first.
  */
 class LatestMonthlyFundSample {
-  private kept: { readonly fund: Observations; readonly asOf: number; readonly span: WindowMonths; readonly sample: FundSample } | null = null;
+  private kept: { readonly fund: Observations; readonly asOf: number; readonly span: WindowMonths; readonly sample: FundSample & { readonly points: Int32Array } } | null = null;
 
   sample(window: SharedPartsRequest, compute: () => Outcome<FundSample>): Outcome<FundSample> {
     if (window.frequency !== 'monthly') return compute();
@@ -480,7 +480,9 @@ class LatestMonthlyFundSample {
       return { ok: true, value: laterMonthlyStart(window.fund, kept.sample, window.span.startMonth - kept.span.startMonth) };
     }
     const sampled = compute();
-    if (sampled.ok) this.kept = { fund: window.fund, asOf: window.asOf, span: window.span, sample: sampled.value };
+    if (sampled.ok && sampled.value.points !== null) {
+      this.kept = { fund: window.fund, asOf: window.asOf, span: window.span, sample: { ...sampled.value, points: sampled.value.points } };
+    }
     return sampled;
   }
 }

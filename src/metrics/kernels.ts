@@ -27,6 +27,18 @@ export function isMetricId(text: string): text is MetricId {
   return (METRIC_IDS as readonly string[]).includes(text);
 }
 
+const METRIC_ID_OF = new Map<string, MetricId>(METRIC_IDS.map((id) => [id, id]));
+
+/**
+ * The metric id a text names, as the one string this module holds, or null. Reconciliation reads
+ * its metrics from the vendor's file: each figure's text is then looked up by object keys again
+ * and again (formulas, tolerances, affected metrics), which is quicker for the constant string
+ * than for text read from a file.
+ */
+export function metricIdOf(text: string): MetricId | null {
+  return METRIC_ID_OF.get(text) ?? null;
+}
+
 /** A figure, or the reason it cannot be computed. */
 export type MetricOutcome = Outcome<number>;
 

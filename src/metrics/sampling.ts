@@ -57,10 +57,11 @@ export const RATE_LOOKBACK_DAYS = 31;
 
 /**
  * The fund's part of a window's sample: it depends on the fund, the window and the frequency
- * only. `points` are the sample points' indices in the fund's observations.
+ * only. `points` are the sample points' indices in the fund's observations (null when they are
+ * every index from the first to the last).
  */
 export interface FundSample extends Pick<WindowSample, 'fund' | 'navPath' | 'pointDays'> {
-  readonly points: Int32Array;
+  readonly points: Int32Array | null;
 }
 
 /**
@@ -107,9 +108,15 @@ function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'fre
   const { fund, span, asOf, frequency } = request;
   const fundMonthEnds = coverWindow(fund, span, asOf, 'NAV');
   if (!fundMonthEnds.ok) return fundMonthEnds;
-  const candidates = samplePoints(fund.dates, fundMonthEnds.value, frequency);
+  const monthEnds = fundMonthEnds.value;
+  if (frequency !== 'monthly') {
+    const periods = periodsOf(fund, frequency);
+    const sameDays = periods.contiguousSample(monthEnds[0], monthEnds[monthEnds.length - 1]);
+    if (sameDays !== null) return { ok: true, value: sameDays };
+  }
+  const candidates = frequency === 'monthly' ? monthEnds : periodsOf(fund, frequency).samplePoints(monthEnds[0], monthEnds[monthEnds.length - 1]);
   // Monthly, the points are the month-end values coverWindow has already found positive.
-  const sampled = candidates === fundMonthEnds.value ? fundMonthEnds : positiveAt(fund, candidates, 'NAV');
+  const sampled = candidates === monthEnds ? fundMonthEnds : positiveAt(fund, candidates, 'NAV');
   if (!sampled.ok) return sampled;
   const points = sampled.value;
   return {
@@ -131,7 +138,7 @@ function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'fre
  * sampleFund would compute, without computing them. Monthly only: at other frequencies the first
  * point (a month-end value) need not be one of the longer window's points.
  */
-export function laterMonthlyStart(fund: Observations, longer: FundSample, months: number): FundSample {
+export function laterMonthlyStart(fund: Observations, longer: FundSample & { readonly points: Int32Array }, months: number): FundSample {
   const points = longer.points.subarray(months);
   return {
     fund: longer.fund.subarray(months),
@@ -264,6 +271,90 @@ export function samplePoints(dates: Int32Array, monthEnds: Int32Array, frequency
   }
   if (last > first) points[count++] = last;
   return count === points.length ? points : points.slice(0, count);
+}
+
+/**
+ * A fund's periods at one frequency, found once per fund (its observations object) and read by
+ * every window sampled at that frequency: the convention search samples a breach's fund daily
+ * and weekly under four window ends, each over up to five years of days.
+ */
+export class FundPeriods {
+  /** Indices i whose next observation lies in another period: each period's last observation but the series' last. */
+  private readonly ends: Int32Array;
+  private dailyReturns: Float64Array | null = null;
+  private notPositive: Int32Array | null = null;
+
+  constructor(
+    private readonly fund: Observations,
+    frequency: Frequency,
+  ) {
+    const { dates } = fund;
+    const ends = new Int32Array(Math.max(dates.length - 1, 0));
+    let count = 0;
+    let period = dates.length > 0 ? periodKey(dates[0], frequency) : 0;
+    for (let i = 0; i + 1 < dates.length; i++) {
+      const next = periodKey(dates[i + 1], frequency);
+      if (next !== period) ends[count++] = i;
+      period = next;
+    }
+    this.ends = ends.subarray(0, count);
+  }
+
+  /** samplePoints(dates, [first, …, last], frequency), read from the periods' ends. */
+  samplePoints(first: number, last: number): Int32Array {
+    const from = firstAbove(this.ends, first);
+    const to = Math.max(from, firstAbove(this.ends, last - 1));
+    const points = new Int32Array(1 + (to - from) + (last > first ? 1 : 0));
+    points[0] = first;
+    points.set(this.ends.subarray(from, to), 1);
+    if (last > first) points[points.length - 1] = last;
+    return points;
+  }
+
+  /**
+   * The sample when its points are every observation from `first` to `last` (daily, on a series
+   * without two observations on one day) and each is a positive number: its returns, days and
+   * path are views of the fund's, its returns those of consecutive observations, computed once
+   * per fund. Null otherwise, and the window is sampled as usual.
+   */
+  contiguousSample(first: number, last: number): FundSample | null {
+    if (last <= first) return null;
+    const from = firstAbove(this.ends, first);
+    if (firstAbove(this.ends, last - 1) - from !== last - first - 1) return null;
+    const notPositive = (this.notPositive ??= notPositiveIndices(this.fund.values));
+    const firstNotPositive = firstAbove(notPositive, first - 1);
+    if (firstNotPositive < notPositive.length && notPositive[firstNotPositive] <= last) return null;
+    const returns = (this.dailyReturns ??= consecutiveReturns(this.fund.values));
+    return {
+      fund: returns.subarray(first + 1, last + 1),
+      navPath: this.fund.values.subarray(first, last + 1),
+      pointDays: this.fund.dates.subarray(first, last + 1),
+      points: null,
+    };
+  }
+}
+
+/** Each fund's periods, made on first use and dropped with the fund's observations object. */
+const fundPeriods = { weekly: new WeakMap<Observations, FundPeriods>(), daily: new WeakMap<Observations, FundPeriods>() };
+
+function periodsOf(fund: Observations, frequency: 'weekly' | 'daily'): FundPeriods {
+  let periods = fundPeriods[frequency].get(fund);
+  if (periods === undefined) fundPeriods[frequency].set(fund, (periods = new FundPeriods(fund, frequency)));
+  return periods;
+}
+
+/** values[i] / values[i − 1] − 1 at every i ≥ 1, as returnsAt computes it (index 0 unused). */
+function consecutiveReturns(values: Float64Array): Float64Array {
+  const returns = new Float64Array(values.length);
+  for (let i = 1; i < values.length; i++) returns[i] = values[i] / values[i - 1] - 1;
+  return returns;
+}
+
+/** Indices of the values that are not a positive finite number (positiveAt refuses them). */
+function notPositiveIndices(values: Float64Array): Int32Array {
+  const indices: number[] = [];
+  for (let i = 0; i < values.length; i++) if (!(values[i] > 0 && values[i] < Infinity)) indices.push(i);
+  return Int32Array.from(indices);
 }
 
 function gatherDays(dates: Int32Array, points: Int32Array): Int32Array {

@@ -2,7 +2,7 @@ import { formatIsoDate } from '../calendar/days.js';
 import type { Finding, Severity } from '../findings.js';
 import type { SeriesMasterRecord, VendorFigureRecord } from '../ingest/records.js';
 import { MetricCalculator, type MetricInputs } from '../metrics/compute.js';
-import { isMetricId, type MetricId } from '../metrics/kernels.js';
+import { metricIdOf, type MetricId } from '../metrics/kernels.js';
 import { describeMethodology, type Methodology } from '../metrics/methodology.js';
 import { parseWindow } from '../metrics/windows.js';
 import { DataExplainer, type DataExplanation } from './data-explanations.js';
@@ -180,11 +180,11 @@ function reconcileFigure(figure: VendorFigureRecord, context: FigureContext): Re
     vendor: figure.value,
   };
   const evidence = { as_written: figure.raw_value, unit: figure.unit, line: figure.line, printed_half_unit };
-  if (!isMetricId(figure.metric) || !context.isWindow(figure.window)) {
-    const reason = isMetricId(figure.metric) ? `unknown window "${figure.window}"` : `unknown metric "${figure.metric}"`;
+  const metric = metricIdOf(figure.metric);
+  if (metric === null || !context.isWindow(figure.window)) {
+    const reason = metric !== null ? `unknown window "${figure.window}"` : `unknown metric "${figure.metric}"`;
     return notComputable(base, evidence, 0, reason, false);
   }
-  const metric = figure.metric;
   const tolerance = context.tolerances.resolve(metric, context.master.get(figure.series_id)?.category, figure.series_id);
   const request = { seriesId: figure.series_id, asOf: figure.as_of, window: figure.window, metric, methodology: context.methodology };
   const outcome = context.calculator.metric(request);
