@@ -104,7 +104,7 @@ export function sampleWindow(request: WindowRequest, parts: SampleParts = COMPUT
   };
 }
 
-function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'frequency'>): Outcome<FundSample> {
+export function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'frequency'>): Outcome<FundSample> {
   const { fund, span, asOf, frequency } = request;
   const fundMonthEnds = coverWindow(fund, span, asOf, 'NAV');
   if (!fundMonthEnds.ok) return fundMonthEnds;
