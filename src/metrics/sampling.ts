@@ -334,7 +334,10 @@ export class FundPeriods {
   }
 }
 
-/** Each fund's periods, made on first use and dropped with the fund's observations object. */
+/**
+ * Each fund's periods, made on first use and dropped with the fund's observations object (the
+ * calculator makes one per series it reads; observations are never written after they are sampled).
+ */
 const fundPeriods = { weekly: new WeakMap<Observations, FundPeriods>(), daily: new WeakMap<Observations, FundPeriods>() };
 
 function periodsOf(fund: Observations, frequency: 'weekly' | 'daily'): FundPeriods {
