@@ -11,6 +11,7 @@
  * on a shared machine the CPU figure is the steadier one.
  */
 import { lastMonthEndOnOrBefore } from '../src/calendar/days.js';
+import { checkWorkersAhead } from '../src/checks/check-workers.js';
 import { defaultThreads } from '../src/checks/parallel.js';
 import { loadRunConfig } from '../src/config/run-config.js';
 import { beside, loadOptionsOf } from '../src/job/daily-job.js';
@@ -64,7 +65,9 @@ async function stage<T>(name: string, work: () => T | Promise<T>): Promise<T> {
   return result;
 }
 
-// The stages of the daily job (src/job/daily-job.ts), each timed on its own.
+// The stages of the daily job (src/job/daily-job.ts), each timed on its own. As in the daily
+// job, a large feed's check workers start with the reading (their start-up is in the ingest row).
+const workers = checkWorkersAhead(config.paths.nav, threads);
 const day = await stage('ingest', () => loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: { kind: 'store', store: config.store, feed: config.feed } }));
 // As in the daily job, this thread computes the risk figures while the check workers run: the
 // 'checks' row holds both, `background.figures` the figures' share; the 'metrics' row is the
@@ -72,12 +75,13 @@ const day = await stage('ingest', () => loadDay({ paths: config.paths, asOf, loa
 const figureRequest = { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology };
 let figures: ReturnType<typeof computeFigures> = null;
 const check = await stage('checks', async () => {
-  const checking = checkStage(day, config.checks, { threads });
+  const checking = checkStage(day, config.checks, { threads, workers });
   const figuresStarted = process.hrtime.bigint();
   figures = await beside(checking, () => computeFigures(day, figureRequest));
   background.figures = Number(process.hrtime.bigint() - figuresStarted) / 1e9;
   return checking;
 });
+workers.release();
 // Then the snapshot is written on its own thread to the end of the reports; the 'store' row is
 // the wait that is left after them, `background.store` the whole write.
 const storeStarted = process.hrtime.bigint();

@@ -23,7 +23,8 @@ export const vendorInconsistent: FeedCheck<VendorParams> = {
   defaults: { min_ratio_for_sign: 0.1 },
   run(context, params) {
     const figures = context.vendor ?? [];
-    return [...impossibleValues(figures), ...conflictingCopies(figures), ...contradictorySigns(figures, params.min_ratio_for_sign)];
+    const groups = figureGroups(figures);
+    return [...impossibleValues(figures), ...conflictingCopies(figures, groups), ...contradictorySigns(figures, groups, params.min_ratio_for_sign)];
   },
 };
 
@@ -58,16 +59,79 @@ function impossibleValues(figures: readonly VendorFigureRecord[]) {
   });
 }
 
-function conflictingCopies(figures: readonly VendorFigureRecord[]) {
-  const byKey = new Map<string, VendorFigureRecord[]>();
-  for (const figure of figures) {
-    const key = [figure.series_id, figure.as_of, figure.window, figure.metric].join('|');
-    const copies = byKey.get(key);
-    if (copies) copies.push(figure);
-    else byKey.set(key, [figure]);
+/**
+ * The positions of the vendor's figures gathered by series, as-of date and window (a group), each
+ * group in the file's order and the groups in the order of their first figure. Keyed through
+ * nested maps on the series id (a string of the reader's dictionary, hashed once), the as-of day
+ * and the window, so that no key, object or list is made per figure: the standard universe has
+ * 180,000 figures in 30,000 groups, and fresh memory is dear (docs/performance.md). A vendor's
+ * file lists a group's figures together, so the last group is tried first.
+ */
+function figureGroups(figures: readonly VendorFigureRecord[]): number[][] {
+  const groups: number[][] = [];
+  const bySeries = new Map<string, Map<number, Map<string, number[]>>>();
+  let last: VendorFigureRecord | undefined;
+  let group: number[] = [];
+  for (let position = 0; position < figures.length; position++) {
+    const figure = figures[position];
+    if (!last || figure.series_id !== last.series_id || figure.as_of !== last.as_of || figure.window !== last.window) {
+      group = groupOf(bySeries, figure, groups);
+      last = figure;
+    }
+    group.push(position);
   }
-  return [...byKey.values()]
-    .filter(holdsDifferentValues)
+  return groups;
+}
+
+/** The group of the figure's series, as-of date and window; a new one is added to `groups`. */
+function groupOf(bySeries: Map<string, Map<number, Map<string, number[]>>>, figure: VendorFigureRecord, groups: number[][]): number[] {
+  let byDate = bySeries.get(figure.series_id);
+  if (!byDate) bySeries.set(figure.series_id, (byDate = new Map()));
+  let byWindow = byDate.get(figure.as_of);
+  if (!byWindow) byDate.set(figure.as_of, (byWindow = new Map()));
+  let group = byWindow.get(figure.window);
+  if (!group) {
+    byWindow.set(figure.window, (group = []));
+    groups.push(group);
+  }
+  return group;
+}
+
+/** Groups this small are searched pair by pair for a repeated metric; larger ones through a set. */
+const PAIRWISE_GROUP = 16;
+
+/** True when some metric appears twice in the group (most groups hold each metric once). */
+function repeatsAMetric(figures: readonly VendorFigureRecord[], group: readonly number[]): boolean {
+  if (group.length > PAIRWISE_GROUP) return new Set(group.map((position) => figures[position].metric)).size < group.length;
+  for (let i = 1; i < group.length; i++) {
+    const metric = figures[group[i]].metric;
+    for (let j = 0; j < i; j++) if (figures[group[j]].metric === metric) return true;
+  }
+  return false;
+}
+
+/** The positions of a group's figures by metric: each list in the file's order, the lists in the order of their first figure. */
+function copiesByMetric(figures: readonly VendorFigureRecord[], group: readonly number[]): number[][] {
+  const byMetric = new Map<string, number[]>();
+  for (const position of group) {
+    const metric = figures[position].metric;
+    const copies = byMetric.get(metric);
+    if (copies) copies.push(position);
+    else byMetric.set(metric, [position]);
+  }
+  return [...byMetric.values()];
+}
+
+/** The same figure (series, as-of, window, metric) sent with different values, in the order of its first copy. */
+function conflictingCopies(figures: readonly VendorFigureRecord[], groups: readonly number[][]) {
+  const conflicts: number[][] = [];
+  for (const group of groups) {
+    if (group.length < 2 || !repeatsAMetric(figures, group)) continue;
+    for (const positions of copiesByMetric(figures, group)) if (holdsDifferentValues(positions.map((position) => figures[position]))) conflicts.push(positions);
+  }
+  return conflicts
+    .sort((a, b) => a[0] - b[0])
+    .map((positions) => positions.map((position) => figures[position]))
     .map((copies) => {
       const [first] = copies;
       return makeFinding({
@@ -96,21 +160,20 @@ function holdsDifferentValues(copies: readonly VendorFigureRecord[]): boolean {
   return false;
 }
 
+/** The first figure of `metric` in a group. */
+function firstOf(figures: readonly VendorFigureRecord[], group: readonly number[], metric: string): VendorFigureRecord | undefined {
+  for (const position of group) if (figures[position].metric === metric) return figures[position];
+  return undefined;
+}
+
 /** Treynor's sign must be Sharpe's times beta's, for one series, window and as-of. */
-function contradictorySigns(figures: readonly VendorFigureRecord[], minRatio: number) {
-  const groups = new Map<string, Map<string, VendorFigureRecord>>();
-  for (const figure of figures) {
-    const key = [figure.series_id, figure.as_of, figure.window].join('|');
-    const group = groups.get(key) ?? new Map<string, VendorFigureRecord>();
-    if (!group.has(figure.metric)) group.set(figure.metric, figure);
-    groups.set(key, group);
-  }
+function contradictorySigns(figures: readonly VendorFigureRecord[], groups: readonly number[][], minRatio: number) {
   const findings = [];
-  for (const group of groups.values()) {
-    const sharpe = group.get('sharpe');
+  for (const group of groups) {
+    const sharpe = firstOf(figures, group, 'sharpe');
     if (!sharpe || Math.abs(sharpe.value) < minRatio) continue;
-    const beta = group.get('beta');
-    const treynor = group.get('treynor');
+    const beta = firstOf(figures, group, 'beta');
+    const treynor = firstOf(figures, group, 'treynor');
     if (!beta || !treynor || Math.abs(beta.value) < minRatio || treynor.value === 0) continue;
     if (Math.sign(treynor.value) === Math.sign(sharpe.value) * Math.sign(beta.value)) continue;
     {

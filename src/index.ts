@@ -19,4 +19,4 @@ export type { MetricId } from './metrics/kernels.js';
 export type { CheckSettings } from './checks/settings.js';
 export type { Finding, FindingSummary, Severity } from './findings.js';
 export type { RejectedRow, RowAccounting } from './ingest/records.js';
-export type { SeriesFrame } from './series/frame.js';
+export type { DatedFrame, SeriesFrame } from './series/frame.js';

@@ -14,12 +14,14 @@
  * the same order, whichever thread checked which range (test/checks/parallel.test.ts).
  */
 import { availableParallelism } from 'node:os';
-import { answerOfSiblingWorker, MIN_ROWS_FOR_A_WORKER } from '../threads/module-worker.js';
+import type { Worker } from 'node:worker_threads';
+import { answerOfWorker, MIN_ROWS_FOR_A_WORKER } from '../threads/module-worker.js';
 import type { Finding } from '../findings.js';
 import type { CorporateActionRecord, SeriesMasterRecord } from '../ingest/records.js';
 import { sharedFrame, type DatedFrame, type SeriesFrame } from '../series/frame.js';
 import type { CalendarDescription } from '../calendar/business-calendar.js';
 import { compareFindings, latestDateUpTo, runChecks, runFeedChecks, seriesChecker, type CheckInput } from './run.js';
+import { CheckWorkers } from './check-workers.js';
 import { claimRange } from './series-runner.js';
 import { parseCheckSettings, SettingsResolver, type CheckSettings } from './settings.js';
 
@@ -70,6 +72,8 @@ export interface ParallelOptions {
   readonly threads?: number;
   /** Feeds with fewer NAV rows take the plain path (tests lower it to exercise the workers). */
   readonly minRows?: number;
+  /** Workers started ahead (src/checks/check-workers.ts), taken before any fresh one is started; the caller releases those left. */
+  readonly workers?: CheckWorkers;
 }
 
 /** One thread per available core, at most MAX_DEFAULT_THREADS. */
@@ -104,7 +108,7 @@ export async function runChecksInParallel(input: CheckInput, settings: CheckSett
   };
   // This thread is one of the `threads`: it starts the others, then runs the feed-level checks
   // while they start and check, then claims ranges too whenever it is idle.
-  const workers = Array.from({ length: threads - 1 }, () => runWorker(job));
+  const workers = (options.workers ?? new CheckWorkers(0)).take(threads - 1).map((worker) => runWorker(worker, job));
   const resolver = new SettingsResolver(parsed);
   const feedFindings = runFeedChecks(input, resolver);
   const own = checkRangesWhenIdle(seriesChecker(input, resolver, feedLatest), ranges, claims);
@@ -164,7 +168,9 @@ function datedFrameData(frame: DatedFrame): DatedFrameData {
   return { ids, offsets, dates, values };
 }
 
-function runWorker(job: WorkerInput): Promise<WorkerAnswer> {
+function runWorker(worker: Worker, job: WorkerInput): Promise<WorkerAnswer> {
+  const answer = answerOfWorker<WorkerAnswer>(worker, 'a check worker');
   // The frames' arrays are on shared memory: the worker sees the same rows, nothing is copied.
-  return answerOfSiblingWorker(import.meta.url, 'check-worker', job, 'a check worker');
+  worker.postMessage(job);
+  return answer;
 }

@@ -1,6 +1,5 @@
 import { createHash } from 'node:crypto';
 import { extname } from 'node:path';
-import { readArrowBuffer } from './arrow-reader.js';
 import { BackgroundHash } from './background-hash.js';
 import { decodeArrowUnderWatchdog } from './arrow-watchdog.js';
 import { readCsvBuffer } from './csv-reader.js';
@@ -9,7 +8,6 @@ import { BACKGROUND_HASH_BYTES } from './csv-window.js';
 import { cutInput, InputError, NavassayError } from './errors.js';
 import { readInputFile } from './input-file.js';
 import { DEFAULT_READ_LIMITS, type ReadLimits } from './limits.js';
-import { readParquetBuffer } from './parquet-reader.js';
 import type { FeedProfile } from './profile.js';
 import type { FileKind } from './schema.js';
 import type { IngestResult } from './table.js';
@@ -95,18 +93,33 @@ export async function readFeedFile(
 
 async function parseFeedBytes(bytes: Buffer, path: string, kind: FileKind, profile: FeedProfile, limits: ReadLimits): Promise<IngestResult> {
   const format = formatOf(path);
+  const parse = await parserOf(format);
   try {
-    switch (format) {
-      case 'csv':
-        return readCsvBuffer(bytes, path, kind, profile, limits);
-      case 'arrow':
-        await decodeArrowUnderWatchdog(bytes, path, limits.decodeTimeoutMs);
-        return readArrowBuffer(bytes, path, kind, profile, limits);
-      case 'parquet':
-        return await readParquetBuffer(bytes, path, kind, profile, limits);
-    }
+    return await parse(bytes, path, kind, profile, limits);
   } catch (error) {
     throw asInputError(error, path, format);
+  }
+}
+
+type Parser = (bytes: Buffer, path: string, kind: FileKind, profile: FeedProfile, limits: ReadLimits) => IngestResult | Promise<IngestResult>;
+
+/**
+ * The parser of a format. The Arrow and Parquet readers, and the libraries under them (a third
+ * of a second of every start-up), are loaded when a file of theirs comes, not by a run of CSV files.
+ */
+async function parserOf(format: FileFormat): Promise<Parser> {
+  switch (format) {
+    case 'csv':
+      return readCsvBuffer;
+    case 'arrow': {
+      const { readArrowBuffer } = await import('./arrow-reader.js');
+      return async (bytes, path, kind, profile, limits) => {
+        await decodeArrowUnderWatchdog(bytes, path, limits.decodeTimeoutMs);
+        return readArrowBuffer(bytes, path, kind, profile, limits);
+      };
+    }
+    case 'parquet':
+      return (await import('./parquet-reader.js')).readParquetBuffer;
   }
 }
 

@@ -1,4 +1,6 @@
 import { lastMonthEndOnOrBefore } from '../calendar/days.js';
+import { checkWorkersAhead } from '../checks/check-workers.js';
+import { defaultThreads } from '../checks/parallel.js';
 import type { RunConfig } from '../config/run-config.js';
 import type { LoadOptions } from '../ingest/feed.js';
 import { readLimits } from '../ingest/limits.js';
@@ -46,15 +48,24 @@ export type StageListener = (text: string) => void;
 
 export async function runDailyJob(config: RunConfig, asOf: number, onStage: StageListener = () => {}): Promise<DailyRun> {
   onStage('reading the feed …');
-  const day = await loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: previousSourceOf(config) });
-  const series = day.feed.nav.ids.length;
-  onStage(`checking ${series} series, ${day.feed.rows.accepted} rows, and computing their risk figures …`);
-  const checking = checkStage(day, config.checks, { threads: config.threads });
-  // Risk figures stand at the last month-end on or before the as-of date.
-  const figureRequest = { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology };
-  // The figures need no finding (only their marks do): this thread computes them while the check workers run, then takes its share of the series checks (src/checks/parallel.ts).
-  const figures = await beside(checking, () => computeFigures(day, figureRequest));
-  const check = await checking;
+  const threads = config.threads ?? defaultThreads();
+  // A large feed's check workers start with the reading, so their start-up is not paid inside the checks.
+  const workers = checkWorkersAhead(config.paths.nav, threads);
+  const { day, figures, check } = await (async () => {
+    try {
+      const day = await loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: previousSourceOf(config) });
+      const series = day.feed.nav.ids.length;
+      onStage(`checking ${series} series, ${day.feed.rows.accepted} rows, and computing their risk figures …`);
+      const checking = checkStage(day, config.checks, { threads, workers });
+      // Risk figures stand at the last month-end on or before the as-of date.
+      const figureRequest = { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology };
+      // The figures need no finding (only their marks do): this thread computes them while the check workers run, then takes its share of the series checks (src/checks/parallel.ts).
+      const figures = await beside(checking, () => computeFigures(day, figureRequest));
+      return { day, figures, check: await checking };
+    } finally {
+      workers.release();
+    }
+  })();
   // The snapshot is written on another thread while this one marks the figures, reconciles,
   // carries the tickets and writes the reports; its notices are known before it is written.
   const storing = startSnapshotInBackground(day, { store: config.store, feed: config.feed, previous: config.previous });

@@ -1,11 +1,11 @@
 import { formatIsoDate } from '../calendar/days.js';
 import type { SeriesMasterRecord } from '../ingest/records.js';
 import { findSeries, type SeriesFrame, type SeriesSlice } from '../series/frame.js';
-import { METRIC_IDS, metricFromStatistics, type MetricId } from './kernels.js';
+import { figureOrReason, METRIC_IDS, type MetricId } from './kernels.js';
 import { describeMethodology, perPeriodRate, ratePeriodsOf, type Methodology } from './methodology.js';
 import { failure, success, type Outcome } from '../outcome.js';
-import { sampleWindow, type BenchmarkSource, type FundSample, type RiskFreeSource, type SampleParts, type WindowRequest, type WindowSample } from './sampling.js';
-import { log1pAll, windowStatistics, type WindowStatistics } from './statistics.js';
+import { laterMonthlyStart, sampleWindow, type BenchmarkSource, type FundSample, type Observations, type RiskFreeSource, type SampleParts, type WindowRequest, type WindowSample } from './sampling.js';
+import { log1pAll, sum, sumOfLog1p, windowStatistics, type WindowStatistics } from './statistics.js';
 import { parseWindow, windowMonths, type WindowMonths } from './windows.js';
 
 /** The data metrics are computed from. */
@@ -66,28 +66,50 @@ export function computeMetrics(request: ComputeMetricsRequest, calculator = new 
   const methodology = calculator.effectiveMethodology(request.methodology);
   const metrics = request.metrics ?? METRIC_IDS;
   const rows: MetricRow[] = [];
+  const longestFirst = longestFirstOrder(request.windows);
+  const stats: Outcome<WindowStatistics>[] = new Array(request.windows.length);
   for (const seriesId of calculator.seriesIds()) {
-    for (const window of request.windows) {
-      const stats = calculator.statistics({ seriesId, asOf: request.asOf, window, methodology });
-      for (const metric of metrics) rows.push(metricRow(seriesId, window, metric, stats, methodology));
-    }
+    // The longest window first, so the shorter ones are cut from its sample (LatestMonthlyFundSample).
+    for (const at of longestFirst) stats[at] = calculator.statistics({ seriesId, asOf: request.asOf, window: request.windows[at], methodology });
+    request.windows.forEach((window, at) => {
+      for (const metric of metrics) rows.push(metricRow(seriesId, window, metric, stats[at], methodology));
+    });
   }
   return { as_of: formatIsoDate(request.asOf), methodology: describeMethodology(methodology), metrics: rows };
 }
 
-/** A figure as a row of the answer: the figure's fields after the row's, `reason` only when there is one. */
+/**
+ * Positions of the windows, longest first (ties and unknown labels in their given order, unknown
+ * labels first, so the first unknown label still throws first).
+ */
+function longestFirstOrder(windows: readonly string[]): number[] {
+  const months = windows.map((window) => parseWindow(window) ?? Infinity);
+  return windows.map((_, at) => at).sort((a, b) => months[b] - months[a] || a - b);
+}
+
+/**
+ * A figure as a row of the answer: the figure's fields after the row's, `reason` only when there
+ * is one. Built straight from the figure (not from a MetricValue): one object per row.
+ */
 function metricRow(series_id: string, window: string, metric: MetricId, stats: Outcome<WindowStatistics>, methodology: Methodology): MetricRow {
-  const { value, observations, reason } = figureOf(metric, stats, methodology);
-  return reason === undefined ? { series_id, window, metric, value, observations } : { series_id, window, metric, value, observations, reason };
+  if (!stats.ok) return { series_id, window, metric, value: null, observations: 0, reason: stats.reason };
+  const observations = observationsOf(metric, stats.value, methodology);
+  const figure = figureOrReason(metric, stats.value, methodology);
+  return typeof figure === 'number'
+    ? { series_id, window, metric, value: figure, observations }
+    : { series_id, window, metric, value: null, observations, reason: figure.reason };
 }
 
 /** A metric from a window's statistics (or the window's own reason), as the answer reports it. */
 function figureOf(metric: MetricId, stats: Outcome<WindowStatistics>, methodology: Methodology): MetricValue {
   if (!stats.ok) return { value: null, observations: 0, reason: stats.reason };
-  const observations = metric === 'max_drawdown' ? drawdownObservations(stats.value, methodology) : stats.value.n;
-  const outcome = metricFromStatistics(metric, stats.value, methodology);
-  if (!outcome.ok) return { value: null, observations, reason: outcome.reason };
-  return { value: outcome.value, observations };
+  const observations = observationsOf(metric, stats.value, methodology);
+  const figure = figureOrReason(metric, stats.value, methodology);
+  return typeof figure === 'number' ? { value: figure, observations } : { value: null, observations, reason: figure.reason };
+}
+
+function observationsOf(metric: MetricId, stats: WindowStatistics, methodology: Methodology): number {
+  return metric === 'max_drawdown' ? drawdownObservations(stats, methodology) : stats.n;
 }
 
 /** The values max_drawdown runs over: every NAV observation, or the n + 1 sample points. */
@@ -114,6 +136,7 @@ export class MetricCalculator {
   private latestSeries: LatestSeriesStatistics | null = null;
   private readonly parts = new LatestSeriesParts();
   private readonly sources = new SourceParts();
+  private readonly monthlyFunds = new LatestMonthlyFundSample();
   private readonly spans = new Map<string, Map<number, Map<number, WindowMonths>>>();
   /** The latest fund's slice, and every benchmark's and rate's asked for (a frame holds few of them). */
   private readonly funds: Slices;
@@ -174,7 +197,13 @@ export class MetricCalculator {
       const window = this.windowRequest({ ...request, methodology });
       const sample = window.ok ? sampleWindow(window.value, this.partsFor(window.value, reuse)) : window;
       const logOf = (returns: Float64Array) => this.sources.logOf(returns) ?? (reuse ? reuse.logOf(returns) : log1pAll(returns));
-      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, logOf) } : sample;
+      // A window sampled once (every window of the metrics stage) reads Σ ln(1 + r) of its fund
+      // returns and never their logarithms: summed as they are taken, no array is made for them.
+      const growthOf = (returns: Float64Array) => {
+        const logs = this.sources.logOf(returns) ?? (reuse ? reuse.logOf(returns) : undefined);
+        return logs === undefined ? sumOfLog1p(returns) : sum(logs);
+      };
+      stats = sample.ok ? { ok: true, value: windowStatistics(sample.value, logOf, growthOf) } : sample;
       byAsOf.set(request.asOf, stats);
     }
     return stats;
@@ -234,8 +263,9 @@ export class MetricCalculator {
    * sampled before, the benchmark's and the rate's across series (SourceParts).
    */
   private partsFor(window: SharedPartsRequest, reuse: SeriesReuse | null): SampleParts {
+    const fund = (compute: () => Outcome<FundSample>) => this.monthlyFunds.sample(window, compute);
     return {
-      fund: reuse ? reuse.fund : (compute) => compute(),
+      fund: reuse ? (compute) => reuse.fund(() => fund(compute)) : fund,
       benchmark: this.sources.benchmarkKeeper(window),
       riskFree: this.sources.riskFreeKeeper(window),
     };
@@ -373,9 +403,10 @@ class SourceParts {
   }
 
   private part(kept: KeptPart[], days: Int32Array, compute: () => Outcome<Float64Array>): Outcome<Float64Array> {
-    const at = kept.findIndex((entry) => sameDays(entry.days, days));
+    const at = keptIndex(kept, days);
     if (at >= 0) {
       const entry = kept[at];
+      entry.lastAskedWith = days;
       if (at > 0) {
         kept.splice(at, 1);
         kept.unshift(entry);
@@ -383,7 +414,7 @@ class SourceParts {
       return entry.part;
     }
     const part = compute();
-    kept.unshift({ days, part });
+    kept.unshift({ days, part, lastAskedWith: days });
     if (part.ok) this.logs.set(part.value, null);
     const dropped = kept.length > PARTS_KEPT_PER_KEY ? kept.pop() : undefined;
     if (dropped?.part.ok) this.logs.delete(dropped.part.value);
@@ -409,6 +440,18 @@ function keptUnder<K>(map: Map<K, KeptPart[]>, key: K): KeptPart[] {
 interface KeptPart {
   readonly days: Int32Array;
   readonly part: Outcome<Float64Array>;
+  /**
+   * The days array this part was last found for: the convention search asks with one series'
+   * days array again and again, and a daily window's days are over a thousand to compare.
+   */
+  lastAskedWith: Int32Array;
+}
+
+/** The kept part computed on these days, or −1. */
+function keptIndex(kept: readonly KeptPart[], days: Int32Array): number {
+  for (let at = 0; at < kept.length; at++) if (kept[at].lastAskedWith === days) return at;
+  for (let at = 0; at < kept.length; at++) if (sameDays(kept[at].days, days)) return at;
+  return -1;
 }
 
 /** Parts kept per key: room for a few calendars (the standard universe has two). */
@@ -419,6 +462,29 @@ function sameDays(a: Int32Array, b: Int32Array): boolean {
   if (a.length !== b.length) return false;
   for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
   return true;
+}
+
+/**
+ * The latest fund's longest monthly sample for one as-of and window end, from which its shorter
+ * windows ending in the same month are cut (sampling.ts, laterMonthlyStart): the metrics stage's
+ * 1y and 3y windows are the last months of its 5y window, which it therefore samples first.
+ */
+class LatestMonthlyFundSample {
+  private kept: { readonly fund: Observations; readonly asOf: number; readonly span: WindowMonths; readonly sample: FundSample & { readonly points: Int32Array } } | null = null;
+
+  sample(window: SharedPartsRequest, compute: () => Outcome<FundSample>): Outcome<FundSample> {
+    if (window.frequency !== 'monthly') return compute();
+    const kept = this.kept;
+    const sameEnd = kept !== null && kept.fund === window.fund && kept.asOf === window.asOf && kept.span.endMonth === window.span.endMonth;
+    if (sameEnd && kept.span.startMonth <= window.span.startMonth) {
+      return { ok: true, value: laterMonthlyStart(window.fund, kept.sample, window.span.startMonth - kept.span.startMonth) };
+    }
+    const sampled = compute();
+    if (sampled.ok && sampled.value.points !== null) {
+      this.kept = { fund: window.fund, asOf: window.asOf, span: window.span, sample: { ...sampled.value, points: sampled.value.points } };
+    }
+    return sampled;
+  }
 }
 
 /** What a window sampled again for the latest series reuses: its fund part, and logarithms once computed. */

@@ -27,6 +27,18 @@ export function isMetricId(text: string): text is MetricId {
   return (METRIC_IDS as readonly string[]).includes(text);
 }
 
+const METRIC_ID_OF = new Map<string, MetricId>(METRIC_IDS.map((id) => [id, id]));
+
+/**
+ * The metric id a text names, as the one string this module holds, or null. Reconciliation reads
+ * its metrics from the vendor's file: each figure's text is then looked up by object keys again
+ * and again (formulas, tolerances, affected metrics), which is quicker for the constant string
+ * than for text read from a file.
+ */
+export function metricIdOf(text: string): MetricId | null {
+  return METRIC_ID_OF.get(text) ?? null;
+}
+
 /** A figure, or the reason it cannot be computed. */
 export type MetricOutcome = Outcome<number>;
 
@@ -44,18 +56,41 @@ function refuse(reason: string): never {
 }
 
 export function metricFromStatistics(metric: MetricId, stats: WindowStatistics, methodology: Methodology): MetricOutcome {
-  if (needsBenchmark(metric) && stats.benchmarkReason !== null) return failure(stats.benchmarkReason);
-  if (needsRiskFree(metric, methodology) && stats.riskFreeReason !== null) {
-    return failure(stats.riskFreeReason);
+  const figure = figureOrReason(metric, stats, methodology);
+  return typeof figure === 'number' ? success(figure) : failure(figure.reason);
+}
+
+/** Why a figure cannot be computed: what `figureOrReason` gives instead of a number. */
+export interface Refusal {
+  readonly reason: string;
+}
+
+/**
+ * metricFromStatistics without the outcome around it: the figure, or why there is none. The
+ * metrics stage and reconciliation ask for hundreds of thousands of figures, and an outcome
+ * object and a closure for each cost more than most formulas.
+ */
+export function figureOrReason(metric: MetricId, stats: WindowStatistics, methodology: Methodology): number | Refusal {
+  if (needsBenchmark(metric) && stats.benchmarkReason !== null) return { reason: stats.benchmarkReason };
+  if (needsRiskFree(metric, methodology) && stats.riskFreeReason !== null) return { reason: stats.riskFreeReason };
+  try {
+    const value = FORMULAS[metric](stats, methodology);
+    return Number.isFinite(value) ? value : { reason: notFiniteReason(value) };
+  } catch (error) {
+    if (error instanceof NotComputable) return error;
+    throw error;
   }
-  return guarded(() => FORMULAS[metric](stats, methodology));
+}
+
+function notFiniteReason(value: number): string {
+  return `the result is not a finite number (${value})`;
 }
 
 /** Runs a formula, turning a refusal or a non-finite answer into a reason. */
 export function guarded(formula: () => number): MetricOutcome {
   try {
     const value = formula();
-    return Number.isFinite(value) ? success(value) : failure(`the result is not a finite number (${value})`);
+    return Number.isFinite(value) ? success(value) : failure(notFiniteReason(value));
   } catch (error) {
     if (error instanceof NotComputable) return failure(error.reason);
     throw error;

@@ -55,8 +55,14 @@ export interface WindowSample {
 /** A weekly or daily period without a rate may take the latest one observed this many days before its end. */
 export const RATE_LOOKBACK_DAYS = 31;
 
-/** The fund's part of a window's sample: it depends on the fund, the window and the frequency only. */
-export type FundSample = Pick<WindowSample, 'fund' | 'navPath' | 'pointDays'>;
+/**
+ * The fund's part of a window's sample: it depends on the fund, the window and the frequency
+ * only. `points` are the sample points' indices in the fund's observations (null when they are
+ * every index from the first to the last).
+ */
+export interface FundSample extends Pick<WindowSample, 'fund' | 'navPath' | 'pointDays'> {
+  readonly points: Int32Array | null;
+}
 
 /**
  * Where a caller may keep the three parts of a window's sample between calls. The convention
@@ -98,13 +104,19 @@ export function sampleWindow(request: WindowRequest, parts: SampleParts = COMPUT
   };
 }
 
-function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'frequency'>): Outcome<FundSample> {
+export function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'frequency'>): Outcome<FundSample> {
   const { fund, span, asOf, frequency } = request;
   const fundMonthEnds = coverWindow(fund, span, asOf, 'NAV');
   if (!fundMonthEnds.ok) return fundMonthEnds;
-  const candidates = samplePoints(fund.dates, fundMonthEnds.value, frequency);
+  const monthEnds = fundMonthEnds.value;
+  if (frequency !== 'monthly') {
+    const periods = periodsOf(fund, frequency);
+    const sameDays = periods.contiguousSample(monthEnds[0], monthEnds[monthEnds.length - 1]);
+    if (sameDays !== null) return { ok: true, value: sameDays };
+  }
+  const candidates = frequency === 'monthly' ? monthEnds : periodsOf(fund, frequency).samplePoints(monthEnds[0], monthEnds[monthEnds.length - 1]);
   // Monthly, the points are the month-end values coverWindow has already found positive.
-  const sampled = candidates === fundMonthEnds.value ? fundMonthEnds : positiveAt(fund, candidates, 'NAV');
+  const sampled = candidates === monthEnds ? fundMonthEnds : positiveAt(fund, candidates, 'NAV');
   if (!sampled.ok) return sampled;
   const points = sampled.value;
   return {
@@ -113,7 +125,26 @@ function sampleFund(request: Pick<WindowRequest, 'fund' | 'span' | 'asOf' | 'fre
       fund: returnsAt(fund.values, points),
       navPath: fund.values.subarray(points[0], points[points.length - 1] + 1),
       pointDays: gatherDays(fund.dates, points),
+      points,
     },
+  };
+}
+
+/**
+ * The monthly sample of a window that ends in the same month as `longer`'s and starts `months`
+ * months later, cut from it. A month's month-end value is found from its own month alone
+ * (monthEndIndices), so the shorter window's points are the longer one's last points, all
+ * positive, and its returns, days and NAV path are the longer one's last ones: the same numbers
+ * sampleFund would compute, without computing them. Monthly only: at other frequencies the first
+ * point (a month-end value) need not be one of the longer window's points.
+ */
+export function laterMonthlyStart(fund: Observations, longer: FundSample & { readonly points: Int32Array }, months: number): FundSample {
+  const points = longer.points.subarray(months);
+  return {
+    fund: longer.fund.subarray(months),
+    navPath: fund.values.subarray(points[0], points[points.length - 1] + 1),
+    pointDays: longer.pointDays.subarray(months),
+    points,
   };
 }
 
@@ -175,15 +206,20 @@ export function coverWindow(series: Observations, span: WindowMonths, cutoff: nu
     return { ok: false, reason: `no ${what} observations on or before the as-of day` };
   }
   const indices = monthEndIndices(series.dates, span, cutoff);
-  const missing: number[] = [];
-  indices.forEach((index, k) => index < 0 && missing.push(span.startMonth + k));
-  if (missing.length > 0) return { ok: false, reason: missingMonthsReason(series, span, missing, what) };
+  if (indices.includes(-1)) return { ok: false, reason: missingMonthsReason(series, span, missingMonths(indices, span), what) };
   return positiveAt(series, indices, what);
+}
+
+function missingMonths(indices: Int32Array, span: WindowMonths): number[] {
+  const missing: number[] = [];
+  for (let k = 0; k < indices.length; k++) if (indices[k] < 0) missing.push(span.startMonth + k);
+  return missing;
 }
 
 /** The sample points, or the reason one of their values cannot start or end a return. */
 function positiveAt(series: Observations, points: Int32Array, what: string): Outcome<Int32Array> {
-  for (const index of points) {
+  for (let k = 0; k < points.length; k++) {
+    const index = points[k];
     const value = series.values[index];
     if (!(value > 0 && value < Infinity)) {
       return { ok: false, reason: `${what} ${value} on ${formatIsoDate(series.dates[index])} is not a positive number` };
@@ -222,12 +258,106 @@ export function samplePoints(dates: Int32Array, monthEnds: Int32Array, frequency
   if (frequency === 'monthly') return monthEnds;
   const first = monthEnds[0];
   const last = monthEnds[monthEnds.length - 1];
-  const points: number[] = [first];
+  // At most one point per observation: written into an array of that size, then cut to the count.
+  const points = new Int32Array(Math.max(last - first, 0) + 1);
+  let count = 0;
+  points[count++] = first;
+  // Each observation's period is computed once, as the next one's is compared with it.
+  let period = first + 1 < last ? periodKey(dates[first + 1], frequency) : 0;
   for (let i = first + 1; i < last; i++) {
-    if (periodKey(dates[i + 1], frequency) !== periodKey(dates[i], frequency)) points.push(i);
+    const next = periodKey(dates[i + 1], frequency);
+    if (next !== period) points[count++] = i;
+    period = next;
   }
-  if (last > first) points.push(last);
-  return Int32Array.from(points);
+  if (last > first) points[count++] = last;
+  return count === points.length ? points : points.slice(0, count);
+}
+
+/**
+ * A fund's periods at one frequency, found once per fund (its observations object) and read by
+ * every window sampled at that frequency: the convention search samples a breach's fund daily
+ * and weekly under four window ends, each over up to five years of days.
+ */
+export class FundPeriods {
+  /** Indices i whose next observation lies in another period: each period's last observation but the series' last. */
+  private readonly ends: Int32Array;
+  private dailyReturns: Float64Array | null = null;
+  private notPositive: Int32Array | null = null;
+
+  constructor(
+    private readonly fund: Observations,
+    frequency: Frequency,
+  ) {
+    const { dates } = fund;
+    const ends = new Int32Array(Math.max(dates.length - 1, 0));
+    let count = 0;
+    let period = dates.length > 0 ? periodKey(dates[0], frequency) : 0;
+    for (let i = 0; i + 1 < dates.length; i++) {
+      const next = periodKey(dates[i + 1], frequency);
+      if (next !== period) ends[count++] = i;
+      period = next;
+    }
+    this.ends = ends.subarray(0, count);
+  }
+
+  /** samplePoints(dates, [first, …, last], frequency), read from the periods' ends. */
+  samplePoints(first: number, last: number): Int32Array {
+    const from = firstAbove(this.ends, first);
+    const to = Math.max(from, firstAbove(this.ends, last - 1));
+    const points = new Int32Array(1 + (to - from) + (last > first ? 1 : 0));
+    points[0] = first;
+    points.set(this.ends.subarray(from, to), 1);
+    if (last > first) points[points.length - 1] = last;
+    return points;
+  }
+
+  /**
+   * The sample when its points are every observation from `first` to `last` (daily, on a series
+   * without two observations on one day) and each is a positive number: its returns, days and
+   * path are views of the fund's, its returns those of consecutive observations, computed once
+   * per fund. Null otherwise, and the window is sampled as usual.
+   */
+  contiguousSample(first: number, last: number): FundSample | null {
+    if (last <= first) return null;
+    const from = firstAbove(this.ends, first);
+    if (firstAbove(this.ends, last - 1) - from !== last - first - 1) return null;
+    const notPositive = (this.notPositive ??= notPositiveIndices(this.fund.values));
+    const firstNotPositive = firstAbove(notPositive, first - 1);
+    if (firstNotPositive < notPositive.length && notPositive[firstNotPositive] <= last) return null;
+    const returns = (this.dailyReturns ??= consecutiveReturns(this.fund.values));
+    return {
+      fund: returns.subarray(first + 1, last + 1),
+      navPath: this.fund.values.subarray(first, last + 1),
+      pointDays: this.fund.dates.subarray(first, last + 1),
+      points: null,
+    };
+  }
+}
+
+/**
+ * Each fund's periods, made on first use and dropped with the fund's observations object (the
+ * calculator makes one per series it reads; observations are never written after they are sampled).
+ */
+const fundPeriods = { weekly: new WeakMap<Observations, FundPeriods>(), daily: new WeakMap<Observations, FundPeriods>() };
+
+function periodsOf(fund: Observations, frequency: 'weekly' | 'daily'): FundPeriods {
+  let periods = fundPeriods[frequency].get(fund);
+  if (periods === undefined) fundPeriods[frequency].set(fund, (periods = new FundPeriods(fund, frequency)));
+  return periods;
+}
+
+/** values[i] / values[i − 1] − 1 at every i ≥ 1, as returnsAt computes it (index 0 unused). */
+function consecutiveReturns(values: Float64Array): Float64Array {
+  const returns = new Float64Array(values.length);
+  for (let i = 1; i < values.length; i++) returns[i] = values[i] / values[i - 1] - 1;
+  return returns;
+}
+
+/** Indices of the values that are not a positive finite number (positiveAt refuses them). */
+function notPositiveIndices(values: Float64Array): Int32Array {
+  const indices: number[] = [];
+  for (let i = 0; i < values.length; i++) if (!(values[i] > 0 && values[i] < Infinity)) indices.push(i);
+  return Int32Array.from(indices);
 }
 
 function gatherDays(dates: Int32Array, points: Int32Array): Int32Array {

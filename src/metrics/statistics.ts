@@ -54,8 +54,12 @@ export interface WindowStatistics {
  * `logOf` gives ln(1 + r) of a returns array: log1pAll, or a memo of it when the caller hands the
  * same arrays to many windows (src/metrics/compute.ts, for the convention search's variants).
  */
-export function windowStatistics(sample: WindowSample, logOf: (returns: Float64Array) => Float64Array = log1pAll): WindowStatistics {
-  return new LazyWindowStatistics(sample, logOf);
+export function windowStatistics(
+  sample: WindowSample,
+  logOf: (returns: Float64Array) => Float64Array = log1pAll,
+  growthOf: (returns: Float64Array) => number = (returns) => sum(logOf(returns)),
+): WindowStatistics {
+  return new LazyWindowStatistics(sample, logOf, growthOf);
 }
 
 /**
@@ -86,6 +90,8 @@ class LazyWindowStatistics implements WindowStatistics {
   constructor(
     private readonly sample: WindowSample,
     private readonly logOf: (returns: Float64Array) => Float64Array,
+    /** Σ ln(1 + r) of a returns array: the sum of `logOf`'s answer, to the last bit. */
+    private readonly growthOf: (returns: Float64Array) => number,
   ) {
     this.n = sample.fund.length;
     this.fund = sample.fund;
@@ -109,9 +115,9 @@ class LazyWindowStatistics implements WindowStatistics {
 
   get growth(): WindowStatistics['growth'] {
     return (this.builtGrowth ??= {
-      fund: sum(this.logOf(this.fund)),
-      benchmark: sum(this.logOf(this.benchmark)),
-      riskFree: sum(this.logOf(this.riskFree)),
+      fund: this.growthOf(this.fund),
+      benchmark: this.growthOf(this.benchmark),
+      riskFree: this.growthOf(this.riskFree),
     });
   }
 
@@ -254,7 +260,17 @@ export function log1pAll(values: Float64Array): Float64Array {
   return logs;
 }
 
-function sum(values: Float64Array): number {
+/**
+ * Σ ln(1 + r) in index order without keeping the logarithms: the same additions of the same
+ * numbers as sum(log1pAll(values)), so the same sum to the last bit, with no array made.
+ */
+export function sumOfLog1p(values: Float64Array): number {
+  let total = 0;
+  for (let i = 0; i < values.length; i++) total += Math.log1p(values[i]);
+  return total;
+}
+
+export function sum(values: Float64Array): number {
   let total = 0;
   for (let i = 0; i < values.length; i++) total += values[i];
   return total;

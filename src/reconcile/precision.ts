@@ -9,9 +9,18 @@ import type { VendorFigureRecord } from '../ingest/records.js';
 export function halfUnitOfPrinted(figure: Pick<VendorFigureRecord, 'raw_value' | 'unit'>): number {
   const text = figure.raw_value.trim();
   const inPercent = figure.unit === 'percent' || text.includes('%');
-  // 5 / 10^(d + 1) rather than 10^−d / 2, so that four decimals give 0.00005 exactly as printed.
-  return 5 / 10 ** (printedDecimals(text) + 1 + (inPercent ? 2 : 0));
+  return halfUnitOf(printedDecimals(text) + 1 + (inPercent ? 2 : 0));
 }
+
+/**
+ * 5 / 10^places: 5 / 10^(d + 1) rather than 10^−d / 2, so that four decimals give 0.00005
+ * exactly as printed. The common places are computed once, by the same expression.
+ */
+function halfUnitOf(places: number): number {
+  return places >= 0 && places < HALF_UNITS.length ? HALF_UNITS[places] : 5 / 10 ** places;
+}
+
+const HALF_UNITS: readonly number[] = Array.from({ length: 24 }, (_, places) => 5 / 10 ** places);
 
 /** Digits after the decimal separator (a point or a comma), less the exponent when there is one. */
 export function printedDecimals(text: string): number {

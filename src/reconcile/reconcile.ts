@@ -2,7 +2,7 @@ import { formatIsoDate } from '../calendar/days.js';
 import type { Finding, Severity } from '../findings.js';
 import type { SeriesMasterRecord, VendorFigureRecord } from '../ingest/records.js';
 import { MetricCalculator, type MetricInputs } from '../metrics/compute.js';
-import { isMetricId, type MetricId } from '../metrics/kernels.js';
+import { metricIdOf, type MetricId } from '../metrics/kernels.js';
 import { describeMethodology, type Methodology } from '../metrics/methodology.js';
 import { parseWindow } from '../metrics/windows.js';
 import { DataExplainer, type DataExplanation } from './data-explanations.js';
@@ -101,6 +101,7 @@ export function reconcile(inputs: ReconcileInputs, settings: ReconcileSettings):
     benchmarks: benchmarkIds(inputs.data),
     spanOf: memoized((asOf: number, window: string) => windowDaySpan(asOf, window, methodology.window_end)),
     isoDateOf: latestOf(formatIsoDate),
+    isWindow: rememberedOf((label: string) => parseWindow(label) !== null),
   };
   const figures = inputs.vendor.filter(
     (figure) => (settings.asOf === undefined || figure.as_of === settings.asOf) && (settings.through === undefined || figure.as_of <= settings.through),
@@ -135,6 +136,18 @@ interface FigureContext {
   readonly spanOf: (asOf: number, window: string) => DaySpan | null;
   /** The as-of day written out (a day's vendor figures share one as-of). */
   readonly isoDateOf: (day: number) => string;
+  /** Whether a label is a window (a vendor file holds few labels, each read by a regular expression). */
+  readonly isWindow: (label: string) => boolean;
+}
+
+/** A function of one text that remembers each answer. */
+function rememberedOf<T>(compute: (text: string) => T): (text: string) => T {
+  const answers = new Map<string, T>();
+  return (text) => {
+    let answer = answers.get(text);
+    if (answer === undefined && !answers.has(text)) answers.set(text, (answer = compute(text)));
+    return answer as T;
+  };
 }
 
 /** A function of one number that remembers its latest answer. */
@@ -167,11 +180,11 @@ function reconcileFigure(figure: VendorFigureRecord, context: FigureContext): Re
     vendor: figure.value,
   };
   const evidence = { as_written: figure.raw_value, unit: figure.unit, line: figure.line, printed_half_unit };
-  if (!isMetricId(figure.metric) || parseWindow(figure.window) === null) {
-    const reason = isMetricId(figure.metric) ? `unknown window "${figure.window}"` : `unknown metric "${figure.metric}"`;
+  const metric = metricIdOf(figure.metric);
+  if (metric === null || !context.isWindow(figure.window)) {
+    const reason = metric !== null ? `unknown window "${figure.window}"` : `unknown metric "${figure.metric}"`;
     return notComputable(base, evidence, 0, reason, false);
   }
-  const metric = figure.metric;
   const tolerance = context.tolerances.resolve(metric, context.master.get(figure.series_id)?.category, figure.series_id);
   const request = { seriesId: figure.series_id, asOf: figure.as_of, window: figure.window, metric, methodology: context.methodology };
   const outcome = context.calculator.metric(request);

@@ -33,6 +33,19 @@ function startsFormula(code: number): boolean {
   return code === 0x3d || code === 0x2b || code === 0x2d || code === 0x40 || code === 0x09 || code === 0x0d;
 }
 
+/**
+ * `csvCell` of texts, each worked out once: a file of many lines repeats its ids, windows and
+ * metric names. For one file's writing (the memory grows with its distinct texts).
+ */
+export function memoizedCsvCell(): (text: string) => string {
+  const cells = new Map<string, string>();
+  return (text) => {
+    let cell = cells.get(text);
+    if (cell === undefined) cells.set(text, (cell = csvCell(text)));
+    return cell;
+  };
+}
+
 export function csvLine(values: ReadonlyArray<string | number | boolean | null | undefined>): string {
   return values.map(csvCell).join(',');
 }

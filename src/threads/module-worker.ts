@@ -27,8 +27,15 @@ export function siblingModuleWorker(callerUrl: string, name: string, options: Om
  * the error of a worker that stops without answering.
  */
 export function answerOfSiblingWorker<T>(callerUrl: string, name: string, workerData: unknown, what: string): Promise<T> {
+  return answerOfWorker(siblingModuleWorker(callerUrl, name, { workerData }), what);
+}
+
+/**
+ * The first message `worker` posts: the whole job of a worker that does one thing and stops.
+ * `what` names it in the error of a worker that stops without answering.
+ */
+export function answerOfWorker<T>(worker: Worker, what: string): Promise<T> {
   return new Promise((resolve, reject) => {
-    const worker = siblingModuleWorker(callerUrl, name, { workerData });
     let answered = false;
     worker.once('message', (answer: T) => {
       answered = true;

@@ -6,13 +6,14 @@
  */
 import { writeFiles } from '../cli/run-cli.js';
 import { describe, expect, it } from 'vitest';
-import { mkdtempSync } from 'node:fs';
+import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { generateUniverse } from '../../fixtures/universe/generate.js';
 import { generateAltUniverse } from '../../fixtures/universe-alt/generate.js';
 import { runChecks } from '../../src/checks/run.js';
 import { runChecksInParallel, seriesRanges } from '../../src/checks/parallel.js';
+import { CheckWorkers, checkWorkersAhead, NAV_BYTES_FOR_WORKERS_AHEAD } from '../../src/checks/check-workers.js';
 import { DEMO_AS_OF, DEMO_PREVIOUS_AS_OF, demoFiles } from '../../src/demo/scenario.js';
 import { loadFeed } from '../../src/ingest/feed.js';
 import { FeedProfileSchema } from '../../src/ingest/profile.js';
@@ -57,6 +58,45 @@ describe('checks on worker threads', () => {
     }
     expect(await checking).toEqual(plain);
     expect(await runChecksInParallel(universe, {}, { threads: 5, minRows: 0 })).toEqual(plain);
+  });
+
+  it('find the same with workers started ahead of the checks, fewer or more of them than needed', async () => {
+    const universe = generateUniverse({ seed: 2006, funds: 40 });
+    const plain = runChecks(universe);
+    for (const [ahead, threads] of [
+      [1, 2],
+      [1, 3],
+      [2, 2],
+    ]) {
+      const workers = new CheckWorkers(ahead);
+      // Started ahead, they wait for their job while this thread is busy elsewhere (the reading).
+      await new Promise((resolve) => setTimeout(resolve, 50));
+      expect(await runChecksInParallel(universe, {}, { threads, minRows: 0, workers })).toEqual(plain);
+      // The workers started ahead were taken first; whatever no job took is ended.
+      expect(waiting(workers)).toBe(Math.max(0, ahead - (threads - 1)));
+      workers.release();
+      expect(waiting(workers)).toBe(0);
+    }
+  });
+
+  it('start workers ahead only for a NAV file large enough to need them, and only with more than one thread', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'navassay-ahead-'));
+    const small = join(dir, 'small.csv');
+    const large = join(dir, 'large.csv');
+    writeFileSync(small, 'series_id,date,nav\n');
+    writeFileSync(large, Buffer.alloc(NAV_BYTES_FOR_WORKERS_AHEAD));
+    for (const [path, threads, expected] of [
+      [small, 2, 0],
+      [large, 1, 0],
+      [large, 2, 1],
+      [large, 4, 3],
+      [join(dir, 'absent.csv'), 2, 0],
+      [undefined, 2, 0],
+    ] as const) {
+      const workers = checkWorkersAhead(path, threads);
+      expect(waiting(workers)).toBe(expected);
+      workers.release();
+    }
   });
 
   it('apply per-category and per-series settings in the workers as on one thread', async () => {
@@ -117,6 +157,11 @@ describe('checks on worker threads', () => {
     }
   });
 });
+
+/** How many workers started ahead still wait for a job. */
+function waiting(workers: CheckWorkers): number {
+  return (workers as unknown as { waiting: unknown[] }).waiting.length;
+}
 
 /** The frame's rows in ordinary arrays, as a library caller might hand them in. */
 function ordinaryFrame(frame: SeriesFrame): SeriesFrame {

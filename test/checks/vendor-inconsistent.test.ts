@@ -97,3 +97,57 @@ describe('vendor_inconsistent, conflicting copies', () => {
     );
   });
 });
+
+/**
+ * The check's grouping as first written, one string key per figure: the plain form the grouped
+ * scan (by series, as-of and window, without a key per figure) must match finding for finding.
+ */
+function plainConflictsAndSigns(figures: readonly VendorFigureRecord[], minRatio: number): string[] {
+  const byKey = new Map<string, VendorFigureRecord[]>();
+  for (const f of figures) {
+    const key = [f.series_id, f.as_of, f.window, f.metric].join('|');
+    byKey.set(key, [...(byKey.get(key) ?? []), f]);
+  }
+  const conflicts = [...byKey.values()].filter((copies) => new Set(copies.map((c) => c.value)).size > 1).map((copies) => `conflict ${copies.map((c) => c.line).join(',')}`);
+  const groups = new Map<string, Map<string, VendorFigureRecord>>();
+  for (const f of figures) {
+    const key = [f.series_id, f.as_of, f.window].join('|');
+    const group = groups.get(key) ?? new Map<string, VendorFigureRecord>();
+    if (!group.has(f.metric)) group.set(f.metric, f);
+    groups.set(key, group);
+  }
+  const signs: string[] = [];
+  for (const group of groups.values()) {
+    const [sharpe, beta, treynor] = [group.get('sharpe'), group.get('beta'), group.get('treynor')];
+    if (!sharpe || !beta || !treynor || Math.abs(sharpe.value) < minRatio || Math.abs(beta.value) < minRatio || treynor.value === 0) continue;
+    if (Math.sign(treynor.value) !== Math.sign(sharpe.value) * Math.sign(beta.value)) signs.push(`sign ${treynor.line},${sharpe.line},${beta.line}`);
+  }
+  return [...conflicts, ...signs];
+}
+
+describe('vendor_inconsistent, grouped scan', () => {
+  it('finds the same conflicts and contradicting signs, in the same order, as one key per figure', () => {
+    const record = fc.record({
+      series: fc.constantFrom('NVA0001', 'NVA0002', 'NVA0003'),
+      asOf: fc.constantFrom(AS_OF, AS_OF - 31),
+      window: fc.constantFrom('1y', '3y'),
+      metric: fc.constantFrom<MetricId>('sharpe', 'beta', 'treynor', 'alpha'),
+      value: fc.constantFrom(0.5, -0.5, 0.05, 0, -0, NaN, 1.2),
+    });
+    // Short files, and long ones whose groups pass the size searched pair by pair.
+    const files = fc.oneof(fc.array(record, { maxLength: 60 }), fc.array(record, { minLength: 80, maxLength: 240 }));
+    fc.assert(
+      fc.property(files, (records) => {
+        const figures = records.map((r, i): VendorFigureRecord => ({ series_id: r.series, as_of: r.asOf, window: r.window, metric: r.metric, value: r.value, unit: 'decimal', raw_value: String(r.value), line: i + 2 }));
+        const found = run(figures)
+          .filter((f) => !f.key.endsWith('impossible'))
+          .map((f) => {
+            const evidence = f.evidence as { figures?: Array<{ line: number }>; treynor?: { line: number }; sharpe?: { line: number }; beta?: { line: number } };
+            return evidence.figures ? `conflict ${evidence.figures.map((c) => c.line).join(',')}` : `sign ${evidence.treynor!.line},${evidence.sharpe!.line},${evidence.beta!.line}`;
+          });
+        expect(found).toEqual(plainConflictsAndSigns(figures, vendorInconsistent.defaults.min_ratio_for_sign));
+      }),
+      { numRuns: 2000 },
+    );
+  });
+});

@@ -6,12 +6,15 @@ import { DEFAULT_METHODOLOGY } from '../../src/metrics/methodology.js';
 import { checkAnswer } from '../../src/report/check-answer.js';
 import { buildDailyReport, renderDailyCsv } from '../../src/report/daily/index.js';
 import { DAILY_CSV_COLUMNS, dailyCsvInPieces } from '../../src/report/daily/daily-text.js';
-import { figureFlags, flagFigures, type FlaggedFigure } from '../../src/report/daily/figure-flags.js';
+import { figureFlags, flagFigures, flagsOfMarkedFigures, type FlaggedFigure } from '../../src/report/daily/figure-flags.js';
+import type { SeriesMasterRecord } from '../../src/ingest/records.js';
+import { markSuspectFigures } from '../../src/reconcile/suspect-data.js';
 import { FIGURES_SHOWN_AT_MOST, summarizeFigures } from '../../src/report/daily/daily-report.js';
 import { needingALook } from '../../src/report/daily/reconcile-rows.js';
+import { breachesFirst } from '../../src/report/daily/daily-html.js';
 import { figuresCsv } from '../../src/report/daily/write-daily.js';
 import { csvCell, csvLine } from '../../src/report/safe-text.js';
-import { linesInPieces } from '../../src/report/text-pieces.js';
+import { linesInPieces, TextPieceBuilder } from '../../src/report/text-pieces.js';
 import { spikeFinding } from './findings.js';
 import type { ReconciliationResultLike } from '../../src/tickets/ticket.js';
 
@@ -51,6 +54,31 @@ describe('report shortcuts give what the plain code gave', () => {
     );
   });
 
+  it('a text piece builder gives back exactly the texts written, in pieces taken when full', () => {
+    const written = fc.oneof(
+      fc.string({ unit: 'binary', maxLength: 20 }).map((text) => ({ text })),
+      // Long texts, past a piece and past the buffer: it grows.
+      fc.tuple(fc.integer({ min: 1, max: 150_000 }), fc.constantFrom('a', 'é', '\u{1F600}')).map(([length, unit]) => ({ text: unit.repeat(length) })),
+      fc.constantFrom(0x2c, 0x0a, 0xe9).map((code) => ({ code })),
+    );
+    fc.assert(
+      fc.property(fc.array(written, { maxLength: 60 }), (steps) => {
+        const out = new TextPieceBuilder();
+        const pieces: string[] = [];
+        let expected = '';
+        for (const step of steps) {
+          if ('text' in step) out.text(step.text);
+          else out.code(step.code);
+          expected += 'text' in step ? step.text : String.fromCharCode(step.code);
+          if (out.full) pieces.push(out.take());
+        }
+        pieces.push(out.take());
+        expect(pieces.join('')).toBe(expected);
+      }),
+      { numRuns: 200 },
+    );
+  });
+
   const status = fc.constantFrom('match', 'breach', 'rounding', 'not_computable', 'other');
   const results = fc.array(fc.record({ series_id: fc.string({ maxLength: 3 }), status }), { maxLength: 300 });
 
@@ -60,6 +88,17 @@ describe('report shortcuts give what the plain code gave', () => {
       fc.property(results, fc.oneof(fc.nat(320), fc.constant(Infinity)), (rows: ReconciliationResultLike[], atMost) => {
         const plain = rows.filter((r) => r.status !== 'match').sort((a, b) => rank(a.status) - rank(b.status));
         expect(needingALook(rows, atMost)).toEqual(plain.slice(0, atMost));
+      }),
+    );
+  });
+
+  it('the results the tolerance chart plots, breaches first, are those of a filter and a stable sort', () => {
+    const row = fc.record({ series_id: fc.string({ maxLength: 2 }), status, vendor: fc.oneof(fc.double(), fc.constant(null)) });
+    fc.assert(
+      fc.property(fc.array(row, { maxLength: 120 }), fc.nat(50), (rows, count) => {
+        const plottable = (r: { vendor: number | null }) => typeof r.vendor === 'number';
+        const plain = rows.filter(plottable).sort((a, b) => Number(b.status === 'breach') - Number(a.status === 'breach'));
+        expect(breachesFirst(rows, plottable, count)).toEqual(plain.slice(0, count));
       }),
     );
   });
@@ -93,6 +132,36 @@ describe('report shortcuts give what the plain code gave', () => {
         expect([...figuresCsv(figureFlags(answerOf(metrics), findings.map(toFinding)))].join('')).toBe(lines.join('\n') + '\n');
       }),
       { numRuns: 200 },
+    );
+  });
+
+  it("the flags of figures the metrics stage marked are what marking them again against the same findings gave", () => {
+    const ids = ['S1', 'S2', 'B1', 'B2'];
+    const plainFigure = fc.record(
+      {
+        series_id: fc.constantFrom(...ids),
+        window: fc.constantFrom('1y', '3y', '5y'),
+        metric: fc.constantFrom<MetricRow['metric']>('beta', 'std_dev', 'tracking_error', 'max_drawdown'),
+        value: fc.oneof(cellNumber, fc.constant(null)),
+        observations: fc.nat(120),
+      },
+      { requiredKeys: ['series_id', 'window', 'metric', 'value', 'observations'] },
+    );
+    const anyFinding = fc.record({
+      series: fc.constantFrom(...ids),
+      severity: fc.constantFrom<Finding['severity']>('warning', 'error', 'critical'),
+      start: fc.constantFrom('2021-03-02', '2023-01-16', '2024-06-03', '2026-03-02', '2026-11-30'),
+    });
+    // A series may be its own benchmark: its findings are then found twice.
+    const master = fc.array(fc.record({ series_id: fc.constantFrom(...ids), benchmark_id: fc.oneof(fc.constantFrom(...ids), fc.constant(null)) }), { maxLength: 5 });
+    fc.assert(
+      fc.property(fc.array(plainFigure, { maxLength: 40 }), fc.array(anyFinding, { maxLength: 8 }), master, fc.constantFrom(null, 'B1'), (metrics, findings, records, benchmark) => {
+        const all = findings.map(toFinding);
+        const answer: MetricsAnswer = { as_of: '2026-11-30', methodology: { ...DEFAULT_METHODOLOGY, benchmark }, metrics };
+        const marked = markSuspectFigures(answer, all, records as unknown as SeriesMasterRecord[]);
+        expect(flagsOfMarkedFigures(marked)).toEqual(figureFlags(marked, all));
+      }),
+      { numRuns: 500 },
     );
   });
 

@@ -4,7 +4,7 @@ import type { Finding } from '../../findings.js';
 import type { MetricsAnswer } from '../../metrics/compute.js';
 import type { ReconcileAnswer } from '../../reconcile/reconcile.js';
 import { checkView, type CheckAnswer } from '../../report/check-answer.js';
-import { buildDailyReport, dailyFiles, figureFlags, navChart, type DailyReport, type NavChart } from '../../report/daily/index.js';
+import { buildDailyReport, dailyFiles, flagsOfMarkedFigures, navChart, type DailyReport, type NavChart } from '../../report/daily/index.js';
 import { writeFileAtomically, writeQuarantine } from '../../report/files.js';
 import { metricsView } from '../../report/metrics-answer.js';
 import { reconcileView } from '../../report/reconcile-answer.js';
@@ -22,6 +22,7 @@ export interface ReportPlace {
 export interface StageAnswers {
   readonly feed: string;
   readonly check: CheckAnswer;
+  /** The metrics stage's answer: its figures marked against `check`'s findings and the series master. */
   readonly metrics: MetricsAnswer | null;
   readonly reconciliation: ReconcileAnswer | null;
   readonly tickets: TicketsStageResult;
@@ -48,8 +49,8 @@ export function answersStage(day: Day, answers: StageAnswers, place: ReportPlace
   const notices = tooLong.length
     ? [`${tooLong.join(' and ')} ${tooLong.length > 1 ? 'have' : 'has'} more than ${READABLE_TABLE_ROWS} rows: written as json and csv only; report.html shows what needs a person.`]
     : [];
-  // Flagged once, for the day's report and for figures.csv.
-  const flaggedFigures = metrics && figureFlags(metrics, check.findings);
+  // Flagged once, for the day's report and for figures.csv, from the metrics stage's marks.
+  const flaggedFigures = metrics && flagsOfMarkedFigures(metrics);
   const report = buildDailyReport({
     feed: answers.feed,
     previousAsOf: tickets.previousAsOf,

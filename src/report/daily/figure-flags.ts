@@ -36,6 +36,21 @@ export function figureFlags(metrics: MetricsAnswer, findings: readonly Finding[]
   return { figures: metrics.metrics, flags };
 }
 
+/**
+ * `figureFlags` of figures the metrics stage has marked (`markSuspectFigures` with the series
+ * master) against the same findings, without marking the 360,000 figures again: marking them here
+ * looks at the same findings on the series alone (or the methodology's benchmark, as the metrics
+ * stage did), so it can only find keys the figure carries already, and the flags are its own keys
+ * once each.
+ */
+export function flagsOfMarkedFigures(metrics: MetricsAnswer): FigureFlags {
+  const flags = metrics.metrics.map((figure) => {
+    const own = figure.suspect_data;
+    return own === undefined ? NO_FLAGS : [...new Set(own)];
+  });
+  return { figures: metrics.metrics, flags };
+}
+
 const NO_FLAGS: readonly string[] = Object.freeze([]);
 
 /** Figure `index` with its flags: the figure's keys in their order, then `flagged_by`. */

@@ -5,4 +5,4 @@ export { renderDailyHtml } from './daily-html.js';
 export { renderDailyMarkdown, renderDailyCsv } from './daily-text.js';
 export { renderDailyTerminal } from './daily-terminal.js';
 export { dailyFiles, DAILY_FILES, figuresCsv } from './write-daily.js';
-export { figureFlags, flagFigures, type FigureFlags, type FlaggedFigure } from './figure-flags.js';
+export { figureFlags, flagFigures, flagsOfMarkedFigures, type FigureFlags, type FlaggedFigure } from './figure-flags.js';

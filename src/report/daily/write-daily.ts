@@ -1,8 +1,8 @@
 import { join } from 'node:path';
 import { jsonPieces } from '../json-pieces.js';
 import { withFinalNewline } from '../render.js';
-import { csvCell, csvLine } from '../safe-text.js';
-import { linesInPieces } from '../text-pieces.js';
+import { csvCell, csvLine, memoizedCsvCell } from '../safe-text.js';
+import { TextPieceBuilder } from '../text-pieces.js';
 import { ticketsToCsv, ticketsToJsonLines } from '../../tickets/export.js';
 import type { FigureFlags } from './figure-flags.js';
 import { renderDailyHtml } from './daily-html.js';
@@ -38,19 +38,38 @@ export function dailyFiles(report: DailyReport, flaggedFigures: FigureFlags | nu
 }
 
 /** Every figure, flat, with the flag of an error-level finding in its window: the file the report links, in pieces. */
-export function figuresCsv(flaggedFigures: FigureFlags): Iterable<string> {
-  return linesInPieces(figuresCsvLines(flaggedFigures));
-}
-
-function* figuresCsvLines({ figures, flags }: FigureFlags): Generator<string> {
-  yield csvLine(['series_id', 'window', 'metric', 'value', 'observations', 'reason', 'flagged_by']);
+export function* figuresCsv({ figures, flags }: FigureFlags): Generator<string> {
+  const out = new TextPieceBuilder();
+  // csvLine's cells; a text cell's form kept per text, as ids, windows and metrics repeat.
+  const cell = memoizedCsvCell();
+  out.text(csvLine(FIGURES_CSV_COLUMNS));
+  out.code(LINE_FEED);
   for (let index = 0; index < figures.length; index++) {
     const f = figures[index];
     const flagged_by = flags[index];
-    // csvLine's cells, without an array per line.
-    yield `${csvCell(f.series_id)},${csvCell(f.window)},${csvCell(f.metric)},${csvCell(f.value)},${csvCell(f.observations)},${csvCell(f.reason ?? null)},${csvCell(flagged_by.length === 0 ? '' : flagged_by.join(' '))}`;
+    out.text(cell(f.series_id));
+    out.code(COMMA);
+    out.text(cell(f.window));
+    out.code(COMMA);
+    out.text(cell(f.metric));
+    out.code(COMMA);
+    out.text(csvCell(f.value));
+    out.code(COMMA);
+    out.text(csvCell(f.observations));
+    out.code(COMMA);
+    if (f.reason !== undefined && f.reason !== null) out.text(cell(f.reason));
+    out.code(COMMA);
+    if (flagged_by.length > 0) out.text(csvCell(flagged_by.join(' ')));
+    out.code(LINE_FEED);
+    if (out.full) yield out.take();
   }
+  const last = out.take();
+  if (last.length > 0) yield last;
 }
+
+const FIGURES_CSV_COLUMNS = ['series_id', 'window', 'metric', 'value', 'observations', 'reason', 'flagged_by'];
+const COMMA = 0x2c;
+const LINE_FEED = 0x0a;
 
 export function dailyPaths(dir: string): Record<keyof typeof DAILY_FILES, string> {
   return Object.fromEntries(Object.entries(DAILY_FILES).map(([k, name]) => [k, join(dir, name)])) as Record<keyof typeof DAILY_FILES, string>;
