@@ -139,16 +139,23 @@ function framedInFileOrder(input: UnsortedObservations): SeriesFrame | null {
  * (`starts` ends with the row count) and the code of each run.
  */
 export function frameOfRuns(runCodes: readonly number[], starts: readonly number[], input: Omit<UnsortedObservations, 'codes'>): SeriesFrame {
-  return { ...datedFrameOfRuns(runCodes, starts, input), lines: input.lines };
+  const { ids, offsets, indexById } = seriesOfRuns(runCodes, starts, input.dictionary);
+  return { ids, offsets, dates: input.dates, values: input.values, lines: input.lines, indexById };
 }
 
 /** `frameOfRuns` without the rows' lines. */
 export function datedFrameOfRuns(runCodes: readonly number[], starts: readonly number[], input: Omit<UnsortedObservations, 'codes' | 'lines'>): DatedFrame {
-  const ids = runCodes.map((code) => input.dictionary[code]);
+  const { ids, offsets, indexById } = seriesOfRuns(runCodes, starts, input.dictionary);
+  return { ids, offsets, dates: input.dates, values: input.values, indexById };
+}
+
+/** The ids, row offsets and id map of runs of rows, as a frame holds them. */
+function seriesOfRuns(runCodes: readonly number[], starts: readonly number[], dictionary: readonly string[]) {
+  const ids = runCodes.map((code) => dictionary[code]);
   const indexById = new Map(ids.map((id, i) => [id, i]));
   const offsets = sharedInt32Array(starts.length);
   offsets.set(starts);
-  return { ids, offsets, dates: input.dates, values: input.values, indexById };
+  return { ids, offsets, indexById };
 }
 
 /** The rank of every dictionary entry in ascending id order (as `rankDictionary` compares them). */
