@@ -47,25 +47,7 @@ export interface DailyRun {
 export type StageListener = (text: string) => void;
 
 export async function runDailyJob(config: RunConfig, asOf: number, onStage: StageListener = () => {}): Promise<DailyRun> {
-  onStage('reading the feed …');
-  const threads = config.threads ?? defaultThreads();
-  // A large feed's check workers start with the reading, so their start-up is not paid inside the checks.
-  const workers = checkWorkersAhead(config.paths.nav, threads);
-  const { day, figures, check } = await (async () => {
-    try {
-      const day = await loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: previousSourceOf(config) });
-      const series = day.feed.nav.ids.length;
-      onStage(`checking ${series} series, ${day.feed.rows.accepted} rows, and computing their risk figures …`);
-      const checking = checkStage(day, config.checks, { threads, workers });
-      // Risk figures stand at the last month-end on or before the as-of date.
-      const figureRequest = { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology };
-      // The figures need no finding (only their marks do): this thread computes them while the check workers run, then takes its share of the series checks (src/checks/parallel.ts).
-      const figures = await beside(checking, () => computeFigures(day, figureRequest));
-      return { day, figures, check: await checking };
-    } finally {
-      workers.release();
-    }
-  })();
+  const { day, figures, check } = await readAndCheck(config, asOf, onStage);
   // The snapshot is written on another thread while this one marks the figures, reconciles,
   // carries the tickets and writes the reports; its notices are known before it is written.
   const storing = startSnapshotInBackground(day, { store: config.store, feed: config.feed, previous: config.previous });
@@ -96,6 +78,29 @@ export async function runDailyJob(config: RunConfig, asOf: number, onStage: Stag
     reportFiles: answers.files,
     notices: answers.report.notices,
   };
+}
+
+/**
+ * The load stage, then the checks with the risk figures computed beside them. A large feed's
+ * check workers start with the reading, so their start-up is not paid inside the checks; those
+ * no check took (a small feed, or a run that failed first) are ended here.
+ */
+async function readAndCheck(config: RunConfig, asOf: number, onStage: StageListener) {
+  onStage('reading the feed …');
+  const threads = config.threads ?? defaultThreads();
+  const workers = checkWorkersAhead(config.paths.nav, threads);
+  try {
+    const day = await loadDay({ paths: config.paths, asOf, load: loadOptionsOf(config, asOf), previous: previousSourceOf(config) });
+    onStage(`checking ${day.feed.nav.ids.length} series, ${day.feed.rows.accepted} rows, and computing their risk figures …`);
+    const checking = checkStage(day, config.checks, { threads, workers });
+    // Risk figures stand at the last month-end on or before the as-of date.
+    const figureRequest = { asOf: lastMonthEndOnOrBefore(asOf), windows: config.windows, methodology: config.methodology };
+    // The figures need no finding (only their marks do): this thread computes them while the check workers run, then takes its share of the series checks (src/checks/parallel.ts).
+    const figures = await beside(checking, () => computeFigures(day, figureRequest));
+    return { day, figures, check: await checking };
+  } finally {
+    workers.release();
+  }
 }
 
 /**
