@@ -140,6 +140,21 @@ function readThroughWindows(
   return stitcher.finish();
 }
 
+/**
+ * Writes a NAV file (ISO dates), reads it on two threads through windows of `windowBytes` and on
+ * one, expects the two-thread path taken and the same answer, and returns the one-thread answer.
+ */
+function expectTwoThreadsAsOne(file: string, text: string, windowBytes: number) {
+  const path = join(dir, file);
+  writeFileSync(path, text);
+  const feedProfile = profile({ date_format: 'iso' });
+  const read = readCsvOnTwoThreads(path, 'nav', feedProfile, ANY_DATE_LIMITS, windowBytes, 0);
+  expect(read).not.toBeNull();
+  const whole = readCsvBuffer(Buffer.from(text), path, 'nav', feedProfile, ANY_DATE_LIMITS);
+  expect(read!.result).toStrictEqual(whole);
+  return whole;
+}
+
 function giveUp(): never {
   throw new Error('the first window does not settle the layout');
 }
@@ -218,13 +233,7 @@ describe('reading a file on two threads (a worker and the main thread, through t
     // 3,000 rows through 64-byte windows: some 1,300 windows.
     const rows = Array.from({ length: 3000 }, (_, k) => `NVA${String(k % 41).padStart(4, '0')},2026-${String(1 + (k % 12)).padStart(2, '0')}-1${k % 10},${(k * 0.37).toFixed(2)}`);
     const text = ['series_id,date,nav', ...rows.slice(0, 1500), 'NVA0001,2026-02-30,1', ...rows.slice(1500)].join('\n') + '\n';
-    const path = join(dir, 'plain.csv');
-    writeFileSync(path, text);
-    const feedProfile = profile({ date_format: 'iso' });
-    const read = readCsvOnTwoThreads(path, 'nav', feedProfile, ANY_DATE_LIMITS, 64, 0);
-    expect(read).not.toBeNull();
-    const whole = readCsvBuffer(Buffer.from(text), path, 'nav', feedProfile, ANY_DATE_LIMITS);
-    expect(read!.result).toStrictEqual(whole);
+    const whole = expectTwoThreadsAsOne('plain.csv', text, 64);
     // The expected values, from the text above: 3,001 data rows, the bad date on line 1,502.
     expect(whole.rows).toEqual({ read: 3001, accepted: 3000, rejected: 1 });
     expect(whole.rejected[0].line).toBe(1502);
@@ -238,17 +247,12 @@ describe('reading a file on two threads (a worker and the main thread, through t
     const long = Array.from({ length: 300 }, (_, k) => `${longId(k % 7)},2026-11-${String(1 + (k % 28)).padStart(2, '0')},${k}.25`);
     const short = Array.from({ length: 30_000 }, (_, k) => `N${k % 9},2026-10-${String(1 + (k % 28)).padStart(2, '0')},${k % 97}`);
     const text = ['series_id,date,nav', ...long, ...short.slice(0, 20_000), 'N1,2026-02-30,1', ...short.slice(20_000)].join('\n') + '\n';
-    const path = join(dir, 'short-lines.csv');
-    writeFileSync(path, text);
-    const feedProfile = profile({ date_format: 'iso' });
-    const layout = settleLayout({ bytes: Buffer.from(text).subarray(0, 65536), final: false, totalBytes: text.length, moveOn: giveUp, takeAll: giveUp }, path, 'nav', feedProfile, ANY_DATE_LIMITS);
-    const sized = windowRowsFor(layout, Buffer.from(text).subarray(0, 65536), 65536);
+    const firstWindow = Buffer.from(text).subarray(0, 65536);
+    const layout = settleLayout({ bytes: firstWindow, final: false, totalBytes: text.length, moveOn: giveUp, takeAll: giveUp }, 'short-lines.csv', 'nav', profile({ date_format: 'iso' }), ANY_DATE_LIMITS);
+    const sized = windowRowsFor(layout, firstWindow, 65536);
     expect(sized).toBeGreaterThan(1200);
     expect(sized).toBeLessThan(1600);
-    const read = readCsvOnTwoThreads(path, 'nav', feedProfile, ANY_DATE_LIMITS, 65536, 0);
-    expect(read).not.toBeNull();
-    const whole = readCsvBuffer(Buffer.from(text), path, 'nav', feedProfile, ANY_DATE_LIMITS);
-    expect(read!.result).toStrictEqual(whole);
+    const whole = expectTwoThreadsAsOne('short-lines.csv', text, 65536);
     expect(whole.rows).toEqual({ read: 30_301, accepted: 30_300, rejected: 1 });
     expect(whole.rejected[0].line).toBe(20_302);
   });
