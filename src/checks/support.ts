@@ -7,7 +7,7 @@ import { findingKey, type Finding, type Severity } from '../findings.js';
 import type { SeriesContext } from './check.js';
 import type { DatedSlice } from '../series/frame.js';
 import { indexOfSorted } from '../numeric/search.js';
-import { bracketedMedian, kthSmallest, medianInPlace } from './selection.js';
+import { bracketedMedian, kthSmallest, medianInPlace, medianOfWork } from './selection.js';
 
 export const isoDate = formatIsoDate;
 
@@ -165,7 +165,7 @@ function mergeRuns(order: Int32Array, sorted: Float64Array, toOrder: Int32Array,
 export function robustScale(values: ArrayLike<number>, centre = median(values)): number {
   const deviations = scratch(values.length, 1);
   for (let i = 0; i < values.length; i++) deviations[i] = Math.abs(values[i] - centre);
-  return 1.4826 * (bracketedMedian(deviations) ?? medianInPlace(deviations));
+  return 1.4826 * medianOfWork(deviations);
 }
 
 /** Pearson's correlation, from the one helper (`src/numeric/correlation.ts`). */
