@@ -25,6 +25,7 @@ import { fileURLToPath } from 'node:url';
 import type { ChildReport } from './audit-child.js';
 import { AS_OF, LARGEST_BENCH_INPUT, STANDARD_SIZE, standardUniverse, type StandardUniverse } from './standard-universe.js';
 import { formatIsoDate } from '../src/calendar/days.js';
+import { withEngineFlags } from '../src/cli/engine-flags.js';
 import { environmentWithHugePages } from '../src/cli/huge-pages.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
@@ -59,8 +60,13 @@ const withArrow = !args.includes('--no-arrow');
 const withDayTwo = !args.includes('--no-day-two');
 const extra = args.flatMap((a, i) => (a === '--child-arg' ? [args[i + 1]] : []));
 const nodeArgs = args.flatMap((a, i) => (a === '--node-arg' ? [args[i + 1]] : []));
-/** The child runs as the executable would start it: with huge pages asked for (src/cli/huge-pages.ts). */
-const childEnvironment = environmentWithHugePages(process.env, process.platform) ?? process.env;
+/**
+ * The child runs as the executable would start it: with huge pages asked for and the engine's
+ * settings (src/cli/huge-pages.ts, src/cli/engine-flags.ts), where the executable starts itself again.
+ */
+const startedAgainIn = environmentWithHugePages(process.env, process.platform);
+const childEnvironment = startedAgainIn ?? process.env;
+const childNodeOptions = startedAgainIn === null ? nodeArgs : withEngineFlags(nodeArgs);
 
 const median = (values: number[]) => {
   const sorted = [...values].sort((a, b) => a - b);
@@ -77,7 +83,7 @@ const BESIDE: Record<string, string> = {
 
 console.log(`navassay audit bench: the whole daily audit in a fresh process per run, ${runs} run${runs === 1 ? '' : 's'} per size, warm page cache`);
 console.log(`machine: ${cpus()[0]?.model.trim() ?? 'unknown cpu'}, ${cpus().length} cores, ${(totalmem() / 2 ** 30).toFixed(1)} GiB, Node ${process.version}; load average at start ${loadavg().map((l) => l.toFixed(1)).join(' ')}`);
-console.log(`date: ${new Date().toISOString().slice(0, 16)}Z; child options: ${[...nodeArgs, ...extra].join(' ') || 'none'}`);
+console.log(`date: ${new Date().toISOString().slice(0, 16)}Z; child options: ${[...childNodeOptions, ...extra].join(' ') || 'none'}`);
 
 interface Scenario {
   readonly label: string;
@@ -173,7 +179,7 @@ function measure(scenario: Scenario, universe: StandardUniverse): Run[] {
     if (scenario.previous) linkPrevious(scenario.previous, join(dir, 'store', 'bench', scenario.previous.asOf));
     const t0 = process.hrtime.bigint();
     const loader = child.endsWith('.ts') ? ['--import', 'tsx'] : [];
-    const out = spawnSync(process.execPath, [...loader, ...nodeArgs, child, scenario.config, ...extra], { encoding: 'utf8', maxBuffer: 1 << 26, cwd: repositoryRoot, env: childEnvironment });
+    const out = spawnSync(process.execPath, [...loader, ...childNodeOptions, child, scenario.config, ...extra], { encoding: 'utf8', maxBuffer: 1 << 26, cwd: repositoryRoot, env: childEnvironment });
     const wall = Number(process.hrtime.bigint() - t0) / 1e9;
     if (out.status !== 0) throw new Error(`audit child failed on ${universe.size.series} series (${scenario.label}): ${out.stderr}`);
     const lines = out.stdout.trim().split('\n');

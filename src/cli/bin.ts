@@ -1,4 +1,5 @@
 #!/usr/bin/env node
+import { withEngineFlags } from './engine-flags.js';
 import { environmentWithHugePages, runAgainIn } from './huge-pages.js';
 
 /**
@@ -6,14 +7,15 @@ import { environmentWithHugePages, runAgainIn } from './huge-pages.js';
  * when it is a pipe, still holds unwritten data (a scheduler or `jq` would get a truncated
  * answer). It sets the exit status and lets Node end once both streams have drained.
  *
- * On Linux it first starts itself again with huge pages asked for (huge-pages.ts), and only that
- * second process loads the program.
+ * On Linux it first starts itself again with huge pages asked for (huge-pages.ts) and the
+ * engine's settings for two busy cores (engine-flags.ts), and only that second process loads the
+ * program.
  */
 const INTERNAL_ERROR = 70;
 
 const withHugePages = environmentWithHugePages(process.env, process.platform);
 if (withHugePages === null) runHere();
-else runAgainIn(withHugePages, runHere);
+else runAgainIn(withHugePages, withEngineFlags(process.execArgv), runHere);
 
 function runHere(): void {
   for (const stream of [process.stdout, process.stderr]) stream.on('error', onStreamError);

@@ -32,12 +32,13 @@ export function environmentWithHugePages(env: NodeJS.ProcessEnv, platform: NodeJ
 const HANDED_ON: readonly NodeJS.Signals[] = ['SIGINT', 'SIGTERM', 'SIGHUP'];
 
 /**
- * Runs this same command (Node's options, script and arguments) again in `env`, on the same
- * standard streams, and ends as it ends: its exit status, or the signal that ended it. When the
- * process cannot be started, `runHere` runs the command in this one instead.
+ * Runs this same command (script and arguments) again in `env` with Node's options
+ * `nodeOptions`, on the same standard streams, and ends as it ends: its exit status, or the
+ * signal that ended it. When the process cannot be started, `runHere` runs the command in this
+ * one instead.
  */
-export function runAgainIn(env: NodeJS.ProcessEnv, runHere: () => void): void {
-  const child = spawn(process.execPath, [...process.execArgv, ...process.argv.slice(1)], { env, stdio: 'inherit' });
+export function runAgainIn(env: NodeJS.ProcessEnv, nodeOptions: readonly string[], runHere: () => void): void {
+  const child = spawn(process.execPath, [...nodeOptions, ...process.argv.slice(1)], { env, stdio: 'inherit' });
   const handOn = (signal: NodeJS.Signals) => child.kill(signal);
   const stopHandingOn = () => HANDED_ON.forEach((signal) => process.off(signal, handOn));
   HANDED_ON.forEach((signal) => process.on(signal, handOn));
