@@ -4,7 +4,8 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { bracketedMedian, medianInPlace, sortAscending, topRanks } from '../../src/checks/selection.js';
+import { median as referenceMedian } from 'simple-statistics';
+import { bracketedMedian, medianInPlace, medianOfWork, sortAscending, topRanks } from '../../src/checks/selection.js';
 
 const plainMedian = (values: ArrayLike<number>) => medianInPlace(Float64Array.from(values));
 const agrees = (values: ArrayLike<number>) => {
@@ -47,6 +48,27 @@ describe('bracketedMedian', () => {
     expect(bracketedMedian(Float64Array.from({ length: 1000 }, (_, i) => (i === 3 ? NaN : i)))).toBeUndefined();
     expect(bracketedMedian(Float64Array.from({ length: 100 }, (_, i) => i))).toBeUndefined();
     expect(bracketedMedian(Float64Array.from({ length: 1000 }, (_, i) => i + 1))).toBe(500.5);
+  });
+});
+
+describe('medianOfWork', () => {
+  it('gives the quickselect median whichever way it goes: short arrays, zeros at the middle, long arrays', () => {
+    const value = fc.oneof(fc.constantFrom(0, -0, 0.25, -0.25), fc.double({ min: -0.05, max: 0.05, noNaN: true }));
+    fc.assert(
+      fc.property(fc.array(value, { minLength: 1, maxLength: 1500 }), (values) => {
+        expect(Object.is(medianOfWork(Float64Array.from(values)), plainMedian(values))).toBe(true);
+      }),
+      { numRuns: 300 },
+    );
+  });
+
+  it('agrees with an independent median (simple-statistics) on finite values', () => {
+    fc.assert(
+      fc.property(fc.array(fc.double({ min: -1e6, max: 1e6, noNaN: true }), { minLength: 1, maxLength: 1200 }), (values) => {
+        expect(medianOfWork(Float64Array.from(values))).toBeCloseTo(referenceMedian(values), 9);
+      }),
+      { numRuns: 200 },
+    );
   });
 });
 
