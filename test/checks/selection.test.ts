@@ -51,23 +51,25 @@ describe('bracketedMedian', () => {
   });
 });
 
+// endOnFailure: shrinking an array of a thousand doubles takes minutes; the first counterexample says enough.
 describe('medianOfWork', () => {
   it('gives the quickselect median whichever way it goes: short arrays, zeros at the middle, long arrays', () => {
     const value = fc.oneof(fc.constantFrom(0, -0, 0.25, -0.25), fc.double({ min: -0.05, max: 0.05, noNaN: true }));
     fc.assert(
-      fc.property(fc.array(value, { minLength: 1, maxLength: 1500 }), (values) => {
+      // Arrays of 512 values and more try the bracket first; shorter ones go straight to the quickselect.
+      fc.property(fc.oneof(fc.array(value, { minLength: 1, maxLength: 600 }), fc.array(value, { minLength: 512, maxLength: 1500 })), (values) => {
         expect(Object.is(medianOfWork(Float64Array.from(values)), plainMedian(values))).toBe(true);
       }),
-      { numRuns: 300 },
+      { numRuns: 300, endOnFailure: true },
     );
   });
 
   it('agrees with an independent median (simple-statistics) on finite values', () => {
     fc.assert(
-      fc.property(fc.array(fc.double({ min: -1e6, max: 1e6, noNaN: true }), { minLength: 1, maxLength: 1200 }), (values) => {
+      fc.property(fc.array(fc.double({ min: -1e6, max: 1e6, noNaN: true }), { minLength: 400, maxLength: 1200 }), (values) => {
         expect(medianOfWork(Float64Array.from(values))).toBeCloseTo(referenceMedian(values), 9);
       }),
-      { numRuns: 200 },
+      { numRuns: 200, endOnFailure: true },
     );
   });
 });
