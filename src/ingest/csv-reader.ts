@@ -7,7 +7,8 @@ import { InputError, quoteInput } from './errors.js';
 import { cleanIdentifier, type IdentifierMode } from './identifiers.js';
 import { wholeWindow, type CsvWindow } from './csv-window.js';
 import { DEFAULT_READ_LIMITS, limitsForKind, type ReadLimits } from './limits.js';
-import { profileDelimiter, type DateFormat, type FeedProfile } from './profile.js';
+import type { DateFormat, FeedProfile } from './profile.js';
+import { profileDelimiter } from './profile-marks.js';
 import type { RejectedRow } from './records.js';
 import {
   INVALID_DAY,

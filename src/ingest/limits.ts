@@ -1,10 +1,12 @@
-import { z } from 'zod';
 import { civilFromEpochDay, daysInMonth, epochDay, parseIsoDate, todayEpochDay } from '../calendar/days.js';
+import type { LimitsFile } from './limits-schema.js';
 
 /**
  * The bounds every input is read within, so a hostile or broken file ends in a clear error or a
  * rejected row instead of a hang or an out-of-memory abort. Every default is documented in
- * docs/ingestion.md ("Limits") and can be raised under `limits:` in the run configuration.
+ * docs/ingestion.md ("Limits") and can be raised under `limits:` in the run configuration
+ * (checked by src/ingest/limits-schema.ts). The readers, on every thread, take their limits from
+ * here without loading the schema library: the CSV reader's worker thread starts sooner.
  */
 export const LIMIT_DEFAULTS = {
   /** Largest input file read (bytes); Node.js reads at most 2 GiB into one buffer. */
@@ -24,25 +26,7 @@ export const LIMIT_DEFAULTS = {
 } as const;
 
 /** Node.js cannot read a larger file into one buffer. */
-const READABLE_BYTES = 2 ** 31 - 1;
-
-const isoDate = z.string().refine((text) => parseIsoDate(text) !== null, 'must be a date written YYYY-MM-DD');
-
-export const LimitsSchema = z
-  .object({
-    max_input_bytes: z.number().int().min(1).max(READABLE_BYTES).default(LIMIT_DEFAULTS.max_input_bytes),
-    max_field_bytes: z.number().int().min(16).default(LIMIT_DEFAULTS.max_field_bytes),
-    max_header_columns: z.number().int().min(1).default(LIMIT_DEFAULTS.max_header_columns),
-    yaml_max_aliases: z.number().int().min(0).default(LIMIT_DEFAULTS.yaml_max_aliases),
-    yaml_max_depth: z.number().int().min(2).default(LIMIT_DEFAULTS.yaml_max_depth),
-    decode_timeout_ms: z.number().int().min(100).default(LIMIT_DEFAULTS.decode_timeout_ms),
-    earliest_date: isoDate.default(LIMIT_DEFAULTS.earliest_date),
-    /** Latest date a row may carry; by default the as-of date plus one year. */
-    latest_date: isoDate.optional(),
-  })
-  .strict();
-
-export type LimitsFile = z.output<typeof LimitsSchema>;
+export const READABLE_BYTES = 2 ** 31 - 1;
 
 /** What the readers need of the limits, with the date range as epoch days. */
 export interface ReadLimits {

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { IDENTIFIER_MODES } from './identifiers.js';
+import { describeMark, isSingleByteMark } from './profile-marks.js';
 import { FILE_KINDS } from './schema.js';
 
 /**
@@ -45,27 +46,8 @@ export const FeedProfileSchema = z
     }
   });
 
-/**
- * The CSV reader works on bytes, so a delimiter or quote must be one byte: an ASCII character.
- * A line break cannot be one either, since it ends the row.
- */
-function isSingleByteMark(mark: string): boolean {
-  return mark.length === 1 && mark.charCodeAt(0) < 0x80 && mark !== '\n' && mark !== '\r';
-}
-
-function describeMark(mark: string): string {
-  const shown = JSON.stringify(mark.length > 10 ? `${mark.slice(0, 10)}…` : mark);
-  const bytes = Buffer.byteLength(mark, 'utf8');
-  return `${shown} (${bytes} byte${bytes === 1 ? '' : 's'}${/[\r\n]/.test(mark) ? ', a line break' : ''})`;
-}
-
 export type FeedProfile = z.output<typeof FeedProfileSchema>;
 
 export const DEFAULT_PROFILE: FeedProfile = FeedProfileSchema.parse({});
-
-/** The delimiter a profile asks for, with `\t` spelled out; `auto` stays `auto`. */
-export function profileDelimiter(profile: FeedProfile): string {
-  return profile.delimiter === '\\t' ? '\t' : profile.delimiter;
-}
 
 export const FILE_KIND_SCHEMA = z.enum(FILE_KINDS);

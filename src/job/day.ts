@@ -5,6 +5,7 @@ import { MetricCalculator, type MetricInputs } from '../metrics/compute.js';
 import { adjustForCorporateActions } from '../series/adjust.js';
 import { datedFrameOf, type DatedFrame } from '../series/frame.js';
 import type { PreviousNav as StoredPreviousNav } from '../store/previous-nav.js';
+import { previousNavHere, previousNavInBackground } from '../store/previous-nav-background.js';
 
 /**
  * One day of a feed, loaded once and shared by every stage of the daily job. Each rule that
@@ -99,7 +100,7 @@ async function loadPrevious(source: PreviousSource, asOf: number, load: LoadOpti
       // Compared by date and value only: the file's lines are let go.
       return { nav: datedFrameOf(await loadPreviousNav(source.path, source.profile, load?.limits)), skipped: [] };
     case 'store':
-      return reportSkipped((await storedPreviousReader()).previousNav(source.store, source.feed, formatIsoDate(asOf)));
+      return reportSkipped(await previousNavHere(source.store, source.feed, formatIsoDate(asOf)));
   }
 }
 
@@ -108,17 +109,9 @@ async function loadPrevious(source: PreviousSource, asOf: number, load: LoadOpti
  * thread for a large store (src/store/previous-nav.ts).
  */
 function startReadingStoredPrevious(source: Extract<PreviousSource, { kind: 'store' }>, asOf: number): Promise<StoredPreviousNav> {
-  const reading = storedPreviousReader().then(({ previousNavInBackground }) => previousNavInBackground(source.store, source.feed, formatIsoDate(asOf)));
+  const reading = previousNavInBackground(source.store, source.feed, formatIsoDate(asOf));
   reading.catch(() => {}); // awaited by loadDay once today's files are read
   return reading;
-}
-
-/**
- * The reader of stored snapshots, loaded when a previous day is read from the store: it brings
- * the Arrow library, which a first day (or a run without a store) does not need at all.
- */
-function storedPreviousReader(): Promise<typeof import('../store/previous-nav.js')> {
-  return import('../store/previous-nav.js');
 }
 
 /** Today's files; when they fail, their error is told once the previous NAVs' reader has finished. */

@@ -1,4 +1,5 @@
-import Table from 'cli-table3';
+import { createRequire } from 'node:module';
+import type Table from 'cli-table3';
 import { jsonPieces } from './json-pieces.js';
 import { csvCell, escapeHtml, markdownText } from './safe-text.js';
 import { CAUTION, cellText, isEmpty, type Cell, type ReportSection, type ReportView } from './view.js';
@@ -51,6 +52,17 @@ export function* withFinalNewline(pieces: Iterable<string>): Generator<string> {
   yield '\n';
 }
 
+/**
+ * The terminal table library, loaded when the first table is drawn: only the `table` format
+ * needs it, and a run that answers in json (a scheduler, the daily audit) never loads its ten
+ * modules on its main thread. It is CommonJS, so `require` loads it at once and the renderers
+ * stay synchronous.
+ */
+let tableClass: typeof Table | undefined;
+function terminalTable(): typeof Table {
+  return (tableClass ??= createRequire(import.meta.url)('cli-table3') as typeof Table);
+}
+
 /** No rule between body rows: a long report stays readable on one screen. */
 const COMPACT_RULES = { mid: '', 'left-mid': '', 'mid-mid': '', 'right-mid': '' };
 
@@ -62,7 +74,7 @@ export function renderTable(view: ReportView, width = process.stdout.columns || 
     if (section.heading) lines.push(section.heading);
     const cells = section.rows.map((row) => row.map(cellText));
     const colWidths = fitColumns(section.columns, cells, width);
-    const table = new Table({ head: [...section.columns], colWidths, wordWrap: true, chars: COMPACT_RULES, style: { head: [], border: [] } });
+    const table = new (terminalTable())({ head: [...section.columns], colWidths, wordWrap: true, chars: COMPACT_RULES, style: { head: [], border: [] } });
     for (const row of cells) table.push(row.map((text) => (NUMBER_TEXT.test(text) ? { content: text, hAlign: 'right' as const } : text)));
     lines.push(table.toString(), '');
   }

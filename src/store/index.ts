@@ -2,17 +2,19 @@ export {
   findSnapshot,
   listFeeds,
   listSnapshots,
-  previousReadableSnapshot,
   previousSnapshot,
-  scanSnapshots,
   readManifest,
+  scanSnapshots,
+  type SnapshotRef,
+  type UnreadableSnapshot,
+} from './snapshot-catalog.js';
+export {
+  previousReadableSnapshot,
   readSnapshot,
   writeSnapshot,
   type LoadedSnapshot,
   type SnapshotInput,
-  type SnapshotRef,
   type SnapshotSource,
-  type UnreadableSnapshot,
   type WriteOptions,
   type WriteStep,
 } from './snapshot-store.js';

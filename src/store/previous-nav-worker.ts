@@ -1,6 +1,7 @@
 /**
- * The worker thread that reads the previous day's NAVs (src/store/previous-nav.ts,
- * `previousNavInBackground`): `previousNav` as on the main thread, its answer or error posted back.
+ * The worker thread that reads the previous day's NAVs (`previousNavInBackground`, in
+ * src/store/previous-nav-background.ts): `previousNav` as on the main thread, its answer or
+ * error posted back.
  */
 import { workerData } from 'node:worker_threads';
 import { postOutcomeOf } from '../threads/module-worker.js';

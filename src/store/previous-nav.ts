@@ -3,10 +3,10 @@ import { DataType, DateUnit, tableFromIPC, type Data, type Table } from 'apache-
 import { arrowToCanonical } from '../ingest/arrow-table.js';
 import { toSeriesFrame } from '../ingest/convert.js';
 import { buildSeriesFrame, datedFrameOf, type DatedFrame, type SeriesFrame } from '../series/frame.js';
-import { MIN_ROWS_FOR_A_WORKER, onWorkerWhenLarge } from '../threads/module-worker.js';
 import type { SnapshotFile } from './manifest.js';
 import { readNavFrameInPart } from './stored-nav-frame.js';
-import { latestEarlierThatLoads, readStoredArrow, scanSnapshots, type UnreadableSnapshot } from './snapshot-store.js';
+import { latestEarlierThatLoads, type UnreadableSnapshot } from './snapshot-catalog.js';
+import { readStoredArrow } from './stored-files.js';
 
 /**
  * The previous business day's NAVs, which today's feed is compared with (restated history):
@@ -89,26 +89,4 @@ function onlyChunk(table: Table, name: string): Data | null {
   if (!column || column.data.length !== 1) return null;
   const data = column.data[0];
   return data.nullCount === 0 && data.offset === 0 ? data : null;
-}
-
-/**
- * `previousNav` on a worker thread, so the previous day's table is read, checked and framed
- * while this thread parses today's files. The frame's columns come back as the same shared
- * memory; a small store is read here at once. It never throws: its errors reject the promise.
- */
-export function previousNavInBackground(storeDir: string, feed: string, asOfExclusive: string, minRows = MIN_ROWS_FOR_A_WORKER): Promise<PreviousNav> {
-  let rows: number;
-  try {
-    rows = latestNavRows(storeDir, feed, asOfExclusive);
-  } catch (error) {
-    return Promise.reject(error);
-  }
-  const worker = { callerUrl: import.meta.url, name: 'previous-nav-worker', workerData: { storeDir, feed, asOfExclusive }, what: 'the reader of the previous snapshot' };
-  return onWorkerWhenLarge(worker, rows, minRows, () => previousNav(storeDir, feed, asOfExclusive));
-}
-
-/** The NAV rows of the latest earlier snapshot, as its manifest counts them. */
-function latestNavRows(storeDir: string, feed: string, asOfExclusive: string): number {
-  const latest = scanSnapshots(storeDir, feed).snapshots.filter((snapshot) => snapshot.asOf < asOfExclusive).at(-1);
-  return latest?.manifest.files.find((file) => file.kind === 'nav')?.rows.accepted ?? 0;
 }

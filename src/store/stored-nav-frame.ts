@@ -5,7 +5,7 @@ import { Message } from 'apache-arrow/ipc/metadata/message';
 import { sharedFloat64Array, sharedInt32Array } from '../ingest/shared-columns.js';
 import { datedFrameOfRuns, rankOfEveryCode, type DatedFrame } from '../series/frame.js';
 import { sha256OfOpenFile } from './durable-files.js';
-import { alteredStoredFile, unreadableStoredFile } from './snapshot-store.js';
+import { alteredStoredFile, unreadableStoredFile } from './stored-files.js';
 
 /**
  * A stored NAV table read in part: the file is checked against its SHA-256 through a small reused

@@ -64,15 +64,15 @@ export function postOutcomeOf<T>(work: () => T): void {
 
 /**
  * `work` of `rows` rows, on the sibling worker `name` (which calls `postOutcomeOf` with the same
- * work) when there are enough rows, else on this thread at once. Either way a promise that
- * settles with the answer, or rejects with the error of the same class the work threw; it never
- * throws itself.
+ * work) when there are enough rows, else on this thread at once (`work` may answer a promise, as
+ * one that loads its module first does). Either way a promise that settles with the answer, or
+ * rejects with the error of the same class the work threw; it never throws itself.
  */
 export function onWorkerWhenLarge<T>(
   job: { readonly callerUrl: string; readonly name: string; readonly workerData: unknown; readonly what: string },
   rows: number,
   minRows: number,
-  work: () => T,
+  work: () => T | PromiseLike<T>,
 ): Promise<T> {
   if (rows < minRows) {
     try {

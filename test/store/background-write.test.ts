@@ -40,7 +40,7 @@ describe('the snapshot stage on a worker thread', () => {
     const day = await demoDay();
     // minRows 0: the demo is small, so without it the write would stay on this thread.
     const onWorker = await startSnapshotInBackground(day, { store: join(work, 'worker-store'), feed: 'demo' }, { minRows: 0 }).stored;
-    const onThisThread = snapshotStage(day, { store: join(work, 'plain-store'), feed: 'demo' });
+    const onThisThread = await snapshotStage(day, { store: join(work, 'plain-store'), feed: 'demo' });
     expect(onWorker.ref.dir).toBe(join(work, 'worker-store', 'demo', '2026-11-30'));
     expect(snapshotContent(onWorker.ref.dir)).toEqual(snapshotContent(onThisThread.ref.dir));
     // Not an empty agreement: every table of the day was written.
@@ -64,12 +64,7 @@ describe('the snapshot stage on a worker thread', () => {
     // A store path under a plain file cannot hold a directory.
     writeFileSync(join(work, 'not-a-dir'), 'x');
     const place = { store: join(work, 'not-a-dir', 'store'), feed: 'demo' };
-    let plain: unknown;
-    try {
-      snapshotStage(day, place);
-    } catch (error) {
-      plain = error;
-    }
+    const plain = await snapshotStage(day, place).catch((error: unknown) => error);
     const fromWorker = await startSnapshotInBackground(day, place, { minRows: 0 }).stored.catch((error: unknown) => error);
     expect(plain).toBeInstanceOf(ConfigError);
     expect(fromWorker).toBeInstanceOf(ConfigError);

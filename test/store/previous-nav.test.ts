@@ -5,7 +5,8 @@ import fc from 'fast-check';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { arrowIpcToCanonical } from '../../src/ingest/arrow-table.js';
 import { toSeriesFrame } from '../../src/ingest/convert.js';
-import { previousNav, previousNavInBackground, readStoredNavFrame } from '../../src/store/previous-nav.js';
+import { previousNav, readStoredNavFrame } from '../../src/store/previous-nav.js';
+import { previousNavInBackground } from '../../src/store/previous-nav-background.js';
 import { readManifest, writeSnapshot, type SnapshotInput } from '../../src/store/index.js';
 import { tableFromRows } from '../ingest-formats/tables.js';
 import { datedFrameOf, type DatedFrame } from '../../src/series/frame.js';
@@ -120,6 +121,17 @@ describe('the previous NAVs read on a worker thread', () => {
     expect(onWorker.skipped).toEqual(here.skipped);
     expect(onWorker.asOf).toBe('2026-03-02');
     expect(onWorker.nav!.values.buffer).toBeInstanceOf(SharedArrayBuffer);
+  });
+
+  it("answer as the calling thread on a feed's first day, damaged earlier snapshots told, without reading a table", async () => {
+    const damaged = store('2026-03-02', [{ series_id: 'NVA0001', date: '2026-03-02', nav: 100 }]);
+    writeFileSync(join(damaged, 'manifest.json'), '{ not json');
+    store('2026-03-05', [{ series_id: 'NVA0001', date: '2026-03-05', nav: 102 }]);
+    const here = previousNav(join(work, 'store'), 'f', '2026-03-04');
+    expect(here.skipped.map((entry) => entry.asOf)).toEqual(['2026-03-02']);
+    expect(here.nav).toBeUndefined();
+    for (const minRows of [0, Infinity]) expect(await previousNavInBackground(join(work, 'store'), 'f', '2026-03-04', minRows)).toEqual(here);
+    expect(await previousNavInBackground(join(work, 'empty-store'), 'f', '2026-03-04')).toEqual(previousNav(join(work, 'empty-store'), 'f', '2026-03-04'));
   });
 
   it('reject with the error class the calling thread would throw', async () => {

@@ -64,7 +64,7 @@ async function runIngest(options: IngestOptions): Promise<number> {
   ]);
   const day = await loadDay({ paths, asOf, load: loadOptionsOf(config, asOf) });
   const { feed } = day;
-  const { ref: snapshot, notices } = snapshotStage(day, { store, feed: feedName });
+  const { ref: snapshot, notices } = await snapshotStage(day, { store, feed: feedName });
   for (const notice of notices) process.stderr.write(`navassay: ${notice}\n`);
   const answer = {
     feed: feedName,

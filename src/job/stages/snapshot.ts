@@ -1,6 +1,7 @@
 import { formatIsoDate } from '../../calendar/days.js';
-import { writeSnapshotInBackground, type BackgroundOptions } from '../../store/background-write.js';
-import { findSnapshot, listSnapshots, previousSnapshot, writeSnapshot, type SnapshotInput, type SnapshotRef } from '../../store/index.js';
+import { writeSnapshotHere, writeSnapshotInBackground, type BackgroundOptions } from '../../store/background-write.js';
+import { findSnapshot, listSnapshots, previousSnapshot, type SnapshotRef } from '../../store/snapshot-catalog.js';
+import type { SnapshotInput } from '../../store/snapshot-store.js';
 import type { Day } from '../day.js';
 
 export interface SnapshotPlace {
@@ -17,13 +18,13 @@ export interface StoredSnapshot {
 }
 
 /**
- * The snapshot stage: the day's canonical tables, with the hashes of the bytes that were parsed.
- * A snapshot already stored for the same as-of is never replaced silently: one of the same files
- * is kept as it is, one of other files is replaced and the notice says so.
+ * The snapshot stage on this thread: the day's canonical tables, with the hashes of the bytes
+ * that were parsed. A snapshot already stored for the same as-of is never replaced silently: one
+ * of the same files is kept as it is, one of other files is replaced and the notice says so.
  */
-export function snapshotStage(day: Day, place: SnapshotPlace): StoredSnapshot {
+export async function snapshotStage(day: Day, place: SnapshotPlace): Promise<StoredSnapshot> {
   const plan = planSnapshot(day, place);
-  return plan.kept ?? { ref: writeSnapshot(place.store, plan.input), notices: plan.notices };
+  return plan.kept ?? { ref: await writeSnapshotHere(place.store, plan.input), notices: plan.notices };
 }
 
 /** A snapshot being written on a worker thread, with what its notices say already known. */
