@@ -25,8 +25,7 @@ import { fileURLToPath } from 'node:url';
 import type { ChildReport } from './audit-child.js';
 import { AS_OF, LARGEST_BENCH_INPUT, STANDARD_SIZE, standardUniverse, type StandardUniverse } from './standard-universe.js';
 import { formatIsoDate } from '../src/calendar/days.js';
-import { withEngineFlags } from '../src/cli/engine-flags.js';
-import { environmentWithHugePages } from '../src/cli/huge-pages.js';
+import { startAgain } from '../src/cli/huge-pages.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 /** bench/.cache at the repository root, whether this runs from bench/ (tsx) or dist/bench/ (built). */
@@ -64,9 +63,9 @@ const nodeArgs = args.flatMap((a, i) => (a === '--node-arg' ? [args[i + 1]] : []
  * The child runs as the executable would start it: with huge pages asked for and the engine's
  * settings (src/cli/huge-pages.ts, src/cli/engine-flags.ts), where the executable starts itself again.
  */
-const startedAgainIn = environmentWithHugePages(process.env, process.platform);
-const childEnvironment = startedAgainIn ?? process.env;
-const childNodeOptions = startedAgainIn === null ? nodeArgs : withEngineFlags(nodeArgs);
+const again = startAgain(process.env, process.platform, nodeArgs);
+const childEnvironment = again?.env ?? process.env;
+const childNodeOptions = again?.nodeOptions ?? nodeArgs;
 
 const median = (values: number[]) => {
   const sorted = [...values].sort((a, b) => a - b);

@@ -1,6 +1,5 @@
 #!/usr/bin/env node
-import { withEngineFlags } from './engine-flags.js';
-import { environmentWithHugePages, runAgainIn } from './huge-pages.js';
+import { runAgainIn, startAgain } from './huge-pages.js';
 
 /**
  * The executable. It never calls process.exit: that would end the process while standard output,
@@ -13,9 +12,9 @@ import { environmentWithHugePages, runAgainIn } from './huge-pages.js';
  */
 const INTERNAL_ERROR = 70;
 
-const withHugePages = environmentWithHugePages(process.env, process.platform);
-if (withHugePages === null) runHere();
-else runAgainIn(withHugePages, withEngineFlags(process.execArgv), runHere);
+const again = startAgain(process.env, process.platform, process.execArgv);
+if (again === null) runHere();
+else runAgainIn(again, runHere);
 
 function runHere(): void {
   for (const stream of [process.stdout, process.stderr]) stream.on('error', onStreamError);

@@ -1,4 +1,5 @@
 import { spawn } from 'node:child_process';
+import { withEngineFlags } from './engine-flags.js';
 
 /**
  * Fresh memory costs a page fault per 4 KiB the first time it is written, and on the virtual
@@ -28,17 +29,33 @@ export function environmentWithHugePages(env: NodeJS.ProcessEnv, platform: NodeJ
   return { ...env, GLIBC_TUNABLES: tunables === '' ? HUGE_PAGES_TUNABLE : `${tunables}:${HUGE_PAGES_TUNABLE}` };
 }
 
+/** What the command is started again with: its environment and Node's options. */
+export interface StartAgain {
+  readonly env: NodeJS.ProcessEnv;
+  readonly nodeOptions: readonly string[];
+}
+
+/**
+ * How the executable starts itself again, in its one place: with huge pages asked for and the
+ * engine's flags (engine-flags.ts) before `execArgv`, Node's options it was given; or null when
+ * it runs the command itself (see `environmentWithHugePages`).
+ */
+export function startAgain(env: NodeJS.ProcessEnv, platform: NodeJS.Platform, execArgv: readonly string[]): StartAgain | null {
+  const withHugePages = environmentWithHugePages(env, platform);
+  return withHugePages && { env: withHugePages, nodeOptions: withEngineFlags(execArgv) };
+}
+
 /** Signals a scheduler or a terminal may send this process, handed on to the process started again. */
 const HANDED_ON: readonly NodeJS.Signals[] = ['SIGINT', 'SIGTERM', 'SIGHUP'];
 
 /**
- * Runs this same command (script and arguments) again in `env` with Node's options
- * `nodeOptions`, on the same standard streams, and ends as it ends: its exit status, or the
+ * Runs this same command (script and arguments) again with `again`'s environment and Node's
+ * options, on the same standard streams, and ends as it ends: its exit status, or the
  * signal that ended it. When the process cannot be started, `runHere` runs the command in this
  * one instead.
  */
-export function runAgainIn(env: NodeJS.ProcessEnv, nodeOptions: readonly string[], runHere: () => void): void {
-  const child = spawn(process.execPath, [...nodeOptions, ...process.argv.slice(1)], { env, stdio: 'inherit' });
+export function runAgainIn(again: StartAgain, runHere: () => void): void {
+  const child = spawn(process.execPath, [...again.nodeOptions, ...process.argv.slice(1)], { env: again.env, stdio: 'inherit' });
   const handOn = (signal: NodeJS.Signals) => child.kill(signal);
   const stopHandingOn = () => HANDED_ON.forEach((signal) => process.off(signal, handOn));
   HANDED_ON.forEach((signal) => process.on(signal, handOn));

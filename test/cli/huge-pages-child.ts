@@ -1,5 +1,4 @@
-import { withEngineFlags } from '../../src/cli/engine-flags.js';
-import { environmentWithHugePages, runAgainIn } from '../../src/cli/huge-pages.js';
+import { runAgainIn, startAgain } from '../../src/cli/huge-pages.js';
 
 /**
  * A stand-in for the executable (huge-pages.test.ts): starts itself again as bin.ts does, and the
@@ -7,9 +6,9 @@ import { environmentWithHugePages, runAgainIn } from '../../src/cli/huge-pages.j
  * exit status, or a signal).
  */
 const ending = process.argv[2] ?? '0';
-const withHugePages = environmentWithHugePages(process.env, process.platform);
-if (withHugePages === null) runHere();
-else runAgainIn(withHugePages, withEngineFlags(process.execArgv), runHere);
+const again = startAgain(process.env, process.platform, process.execArgv);
+if (again === null) runHere();
+else runAgainIn(again, runHere);
 
 function runHere(): void {
   process.stdout.write(`tunables=${process.env.GLIBC_TUNABLES ?? ''}\n`);

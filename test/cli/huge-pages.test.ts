@@ -2,7 +2,7 @@ import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { ENGINE_FLAGS, withEngineFlags } from '../../src/cli/engine-flags.js';
-import { environmentWithHugePages, HUGE_PAGES_SWITCH } from '../../src/cli/huge-pages.js';
+import { environmentWithHugePages, HUGE_PAGES_SWITCH, startAgain } from '../../src/cli/huge-pages.js';
 
 const CHILD = fileURLToPath(new URL('./huge-pages-child.ts', import.meta.url));
 
@@ -55,6 +55,15 @@ describe("the engine's settings for the process started again", () => {
     expect(ENGINE_FLAGS).toEqual(['--no-concurrent-recompilation', '--single-threaded-gc']);
     expect(withEngineFlags([])).toEqual([...ENGINE_FLAGS]);
     expect(withEngineFlags(['--concurrent-recompilation', '--max-old-space-size=4096'])).toEqual([...ENGINE_FLAGS, '--concurrent-recompilation', '--max-old-space-size=4096']);
+  });
+
+  it('go with huge pages, in the one answer to how the executable starts itself again', () => {
+    expect(startAgain({ PATH: '/bin' }, 'linux', ['--max-old-space-size=3000'])).toEqual({
+      env: { PATH: '/bin', GLIBC_TUNABLES: 'glibc.malloc.hugetlb=1' },
+      nodeOptions: [...ENGINE_FLAGS, '--max-old-space-size=3000'],
+    });
+    expect(startAgain({}, 'darwin', [])).toBeNull();
+    expect(startAgain({ [HUGE_PAGES_SWITCH]: '0' }, 'linux', [])).toBeNull();
   });
 
   it.runIf(process.platform === 'linux')('keeps the options the user gave node, after the engine flags', () => {
